@@ -1,0 +1,287 @@
+//! Generates the demo workbook `demo-data/garden-centres.xlsx` used by the
+//! sheetfit demo job `demo-data/garden-centres.toml`.
+//!
+//! The data is invented: a fictional chain of eight garden centres, two in
+//! each of four regions, observed monthly from 2022-01-01 through 2025-12-01
+//! (48 months, 384 rows). It describes no real business. Revenue is built
+//! from a known linear formula plus a mild seasonal swing, a slow upward
+//! trend and normal noise, so the fitted coefficients can be compared with
+//! the values used here.
+//!
+//! The workbook has two sheets:
+//!
+//! * `records`: one row per store-month with the columns `month` (a date
+//!   cell, first day of the month), `store`, `region`, `format`,
+//!   `floor_area` (square metres), `staff_hours` (hours in the month),
+//!   `promo` (1 if a promotion ran that month, else 0) and `revenue`
+//!   (thousands, one decimal). Three revenue cells are deliberately left
+//!   blank to show how sheetfit drops and lists incomplete rows.
+//! * `about`: a few lines describing the data.
+//!
+//! Only `rust_xlsxwriter` and the standard library are used. Random numbers
+//! come from a small splitmix64 generator with the fixed seed 20261202 and
+//! Box-Muller normals, so every run writes the same values.
+//!
+//! Rerun with:
+//!
+//! ```text
+//! cargo run --example make_demo_data
+//! ```
+
+use std::error::Error;
+use std::f64::consts::PI;
+use std::path::PathBuf;
+
+use rust_xlsxwriter::{ExcelDateTime, Format, Workbook};
+
+/// Fixed seed, so the demo workbook is reproducible.
+const SEED: u64 = 20261202;
+
+const FIRST_YEAR: u16 = 2022;
+const MONTHS: usize = 48;
+
+/// One invented store: name, region, format and floor area (square metres).
+struct Store {
+    name: &'static str,
+    region: &'static str,
+    format: &'static str,
+    floor_area: f64,
+}
+
+/// Eight invented stores, two per region; each region has one store of
+/// each format so that region and format effects are not confounded.
+const STORES: [Store; 8] = [
+    Store {
+        name: "Willow Lane",
+        region: "North",
+        format: "Garden shop",
+        floor_area: 720.0,
+    },
+    Store {
+        name: "Lantern Hill",
+        region: "North",
+        format: "Retail park",
+        floor_area: 1540.0,
+    },
+    Store {
+        name: "Mossgate",
+        region: "South",
+        format: "Garden shop",
+        floor_area: 980.0,
+    },
+    Store {
+        name: "Reed Meadow",
+        region: "South",
+        format: "Retail park",
+        floor_area: 1760.0,
+    },
+    Store {
+        name: "Copper Yard",
+        region: "East",
+        format: "Garden shop",
+        floor_area: 610.0,
+    },
+    Store {
+        name: "Thistle Row",
+        region: "East",
+        format: "Retail park",
+        floor_area: 1230.0,
+    },
+    Store {
+        name: "Kettle Bridge",
+        region: "West",
+        format: "Garden shop",
+        floor_area: 1140.0,
+    },
+    Store {
+        name: "Sparrow Park",
+        region: "West",
+        format: "Retail park",
+        floor_area: 1380.0,
+    },
+];
+
+/// Store-months whose revenue cell is left blank: (store name, year, month).
+const BLANK_REVENUE: [(&str, u16, u8); 3] = [
+    ("Lantern Hill", 2022, 7),
+    ("Copper Yard", 2023, 11),
+    ("Sparrow Park", 2025, 3),
+];
+
+/// Column headers of the `records` sheet, with their widths.
+const COLUMNS: [(&str, f64); 8] = [
+    ("month", 12.0),
+    ("store", 16.0),
+    ("region", 9.0),
+    ("format", 13.0),
+    ("floor_area", 11.0),
+    ("staff_hours", 12.0),
+    ("promo", 7.0),
+    ("revenue", 10.0),
+];
+
+/// splitmix64: a tiny, well-mixed 64-bit generator.
+struct SplitMix64 {
+    state: u64,
+}
+
+impl SplitMix64 {
+    fn new(seed: u64) -> Self {
+        Self { state: seed }
+    }
+
+    fn next_u64(&mut self) -> u64 {
+        self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.state;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^ (z >> 31)
+    }
+
+    /// Uniform in [0, 1), using the top 53 bits.
+    fn uniform(&mut self) -> f64 {
+        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
+    }
+
+    /// Standard normal via Box-Muller (one value per call, for simplicity).
+    fn normal(&mut self) -> f64 {
+        // 1 - u lies in (0, 1], so the logarithm is finite.
+        let u1 = 1.0 - self.uniform();
+        let u2 = self.uniform();
+        (-2.0 * u1.ln()).sqrt() * (2.0 * PI * u2).cos()
+    }
+}
+
+fn region_effect(region: &str) -> f64 {
+    match region {
+        "South" => 6.0,
+        "East" => -4.0,
+        "West" => 3.0,
+        _ => 0.0, // North is the baseline.
+    }
+}
+
+fn format_effect(format: &str) -> f64 {
+    if format == "Retail park" {
+        10.0
+    } else {
+        0.0
+    }
+}
+
+fn round_to(value: f64, decimals: i32) -> f64 {
+    let scale = 10f64.powi(decimals);
+    (value * scale).round() / scale
+}
+
+fn main() -> Result<(), Box<dyn Error>> {
+    let out_dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data");
+    std::fs::create_dir_all(&out_dir)?;
+    let out_path = out_dir.join("garden-centres.xlsx");
+
+    let mut rng = SplitMix64::new(SEED);
+    let mut workbook = Workbook::new();
+
+    let bold = Format::new().set_bold();
+    let date_format = Format::new().set_num_format("yyyy-mm-dd");
+    let one_decimal = Format::new().set_num_format("0.0");
+
+    let sheet = workbook.add_worksheet();
+    sheet.set_name("records")?;
+    for (col, (header, width)) in (0u16..).zip(COLUMNS) {
+        sheet.write_string_with_format(0, col, header, &bold)?;
+        sheet.set_column_width(col, width)?;
+    }
+    sheet.set_freeze_panes(1, 0)?;
+
+    let mut row: u32 = 1;
+    let mut blanks = Vec::new();
+    for month_index in 0..MONTHS {
+        // month_index < 48, so these conversions cannot truncate.
+        let year = FIRST_YEAR + (month_index / 12) as u16;
+        let month = (month_index % 12) as u8 + 1;
+        let date = ExcelDateTime::from_ymd(year, month, 1)?;
+
+        // Spring peak: the cosine is largest in April (month 4).
+        let seasonal = 5.0 * (2.0 * PI * (f64::from(month) - 4.0) / 12.0).cos();
+        // Slow upward trend: about 0.1 thousand per month.
+        let trend = 0.1 * month_index as f64;
+
+        for store in &STORES {
+            let staff_hours = (0.4 * store.floor_area + 30.0 * rng.normal()).round();
+            let promo = if rng.uniform() < 0.25 { 1.0 } else { 0.0 };
+            let noise = 4.0 * rng.normal();
+            let revenue = 20.0
+                + 0.045 * store.floor_area
+                + 0.06 * staff_hours
+                + 8.0 * promo
+                + region_effect(store.region)
+                + format_effect(store.format)
+                + seasonal
+                + trend
+                + noise;
+
+            sheet.write_datetime_with_format(row, 0, &date, &date_format)?;
+            sheet.write_string(row, 1, store.name)?;
+            sheet.write_string(row, 2, store.region)?;
+            sheet.write_string(row, 3, store.format)?;
+            sheet.write_number(row, 4, store.floor_area)?;
+            sheet.write_number(row, 5, staff_hours)?;
+            sheet.write_number(row, 6, promo)?;
+
+            let is_blank = BLANK_REVENUE
+                .iter()
+                .any(|&(name, y, m)| name == store.name && y == year && m == month);
+            if is_blank {
+                blanks.push(format!(
+                    "row {} ({}, {year}-{month:02}-01)",
+                    row + 1,
+                    store.name
+                ));
+            } else {
+                sheet.write_number_with_format(row, 7, round_to(revenue, 1), &one_decimal)?;
+            }
+            row += 1;
+        }
+    }
+
+    let about = workbook.add_worksheet();
+    about.set_name("about")?;
+    about.set_column_width(0, 100)?;
+    let lines = [
+        "Invented data for the sheetfit demo. It describes no real business.",
+        "Generated by examples/make_demo_data.rs with the fixed seed 20261202.",
+        "Rerun: cargo run --example make_demo_data",
+        "",
+        "Sheet 'records': one row per store-month, 8 stores x 48 months (2022-01 to 2025-12).",
+        "month: first day of the month (date)",
+        "store: invented store name",
+        "region: North, South, East or West (two stores each)",
+        "format: Garden shop or Retail park (fixed per store)",
+        "floor_area: sales floor area, square metres (fixed per store)",
+        "staff_hours: staff hours worked in the month, hours",
+        "promo: 1 if a promotion ran that month, else 0",
+        "revenue: monthly revenue, thousands (one decimal)",
+        "",
+        "Three revenue cells are left blank on purpose, to show how incomplete rows are dropped.",
+    ];
+    for (r, line) in (0u32..).zip(lines) {
+        if r == 0 {
+            about.write_string_with_format(r, 0, line, &bold)?;
+        } else if !line.is_empty() {
+            about.write_string(r, 0, line)?;
+        }
+    }
+
+    workbook.save(&out_path)?;
+
+    println!(
+        "wrote {} ({} data rows)",
+        out_path.display(),
+        row.saturating_sub(1)
+    );
+    for blank in &blanks {
+        println!("blank revenue: {blank}");
+    }
+    Ok(())
+}

@@ -1,0 +1,227 @@
+//! Tests and diagnostics computed from a fitted model: the ANOVA tables and
+//! per-row influence measures.
+//!
+//! Every function here reads a [`Fit`] (and its [`Design`]) and returns new
+//! values; nothing is stored back into the fit.
+
+use crate::design::{Design, Term, TermKind};
+use crate::fit::{f_sf, least_squares, Fit};
+
+/// One row of an ANOVA table: a term's sum of squares and its F test
+/// against the full model's residual mean square.
+#[derive(Debug, Clone, serde::Serialize)]
+pub struct AnovaRow {
+    /// The term (a column name, not an indicator), or `Residual`.
+    pub term: String,
+    /// Degrees of freedom: the term's estimable columns.
+    pub df: usize,
+    /// Sum of squares.
+    pub sum_sq: f64,
+    /// Mean square SS/df.
+    pub mean_sq: f64,
+    /// F = mean square / residual mean square; absent for the residual row.
+    pub f_stat: Option<f64>,
+    /// P(F > f) with (df, df_resid) degrees of freedom.
+    pub p_value: Option<f64>,
+}
+
+/// Sequential ANOVA: each term's sum of squares given the terms listed before
+/// it, from the QR effects (the squared entries of Qᵀy), then the residual
+/// row. The intercept is not a row: sums are about the mean.
+pub fn sequential_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
+    let ls = &fit.solution;
+    let rows = design
+        .terms
+        .iter()
+        .filter(|t| t.kind != TermKind::Intercept)
+        .map(|term| {
+            let (df, sum_sq) = ls
+                .kept
+                .iter()
+                .zip(&ls.effects)
+                .filter(|(j, _)| term.columns.contains(j))
+                .fold((0, 0.0), |(df, ss), (_, e)| (df + 1, ss + e * e));
+            term_row(term, df, sum_sq, fit)
+        })
+        .collect();
+    with_residual(rows, fit)
+}
+
+/// Each term given all the others: the rise in residual sum of squares when
+/// the term's columns are dropped from the full model, tested by the partial
+/// F test. For a categorical predictor this is the joint test of all its
+/// indicators together. Without interactions this equals what is often
+/// called the Type II (and Type III) test.
+pub fn each_term_last_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
+    let rank = fit.solution.kept.len();
+    let rows = design
+        .terms
+        .iter()
+        .filter(|t| t.kind != TermKind::Intercept)
+        .map(|term| {
+            let others: Vec<usize> = (0..design.x.ncols())
+                .filter(|j| !term.columns.contains(j))
+                .collect();
+            let reduced = least_squares(&design.x.select_columns(&others), &design.y);
+            let df = rank - reduced.kept.len();
+            let sum_sq = (reduced.residuals.norm_squared() - fit.quality.sse).max(0.0);
+            term_row(term, df, sum_sq, fit)
+        })
+        .collect();
+    with_residual(rows, fit)
+}
+
+fn term_row(term: &Term, df: usize, sum_sq: f64, fit: &Fit) -> AnovaRow {
+    let residual_ms = fit.quality.sse / fit.df_resid as f64;
+    let (mean_sq, f_stat) = if df == 0 {
+        (f64::NAN, None)
+    } else {
+        let ms = sum_sq / df as f64;
+        (ms, (residual_ms > 0.0).then(|| ms / residual_ms))
+    };
+    AnovaRow {
+        term: term.name.clone(),
+        df,
+        sum_sq,
+        mean_sq,
+        f_stat,
+        p_value: f_stat.and_then(|f| f_sf(f, df as f64, fit.df_resid as f64)),
+    }
+}
+
+fn with_residual(mut rows: Vec<AnovaRow>, fit: &Fit) -> Vec<AnovaRow> {
+    rows.push(AnovaRow {
+        term: "Residual".into(),
+        df: fit.df_resid,
+        sum_sq: fit.quality.sse,
+        mean_sq: fit.quality.sse / fit.df_resid as f64,
+        f_stat: None,
+        p_value: None,
+    });
+    rows
+}
+
+/// Per-row values for the residual sheet.
+#[derive(Debug, Clone, serde::Serialize)]
+pub struct RowDiagnostics {
+    /// Sheet row of the observation, counted from 1.
+    pub row: u32,
+    /// Observed response.
+    pub actual: f64,
+    /// Fitted value.
+    pub fitted: f64,
+    /// Residual e = actual − fitted.
+    pub residual: f64,
+    /// Standardized (internally studentized) residual e / (s·√(1 − h));
+    /// absent when h = 1 or s = 0.
+    pub standardized_residual: Option<f64>,
+    /// Leverage h, the diagonal of the hat matrix X(X'X)⁻¹X'.
+    pub leverage: f64,
+    /// Cook's distance r²·h / (p·(1 − h)), r the standardized residual
+    /// (Cook 1977); absent where the standardized residual is.
+    pub cooks_distance: Option<f64>,
+}
+
+/// Residuals, leverage and Cook's distance for every used row (Cook, R. D.
+/// 1977, "Detection of influential observation in linear regression",
+/// Technometrics 19(1)).
+pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
+    let s = fit.quality.sigma;
+    let p = fit.solution.kept.len() as f64;
+    design
+        .rows
+        .iter()
+        .enumerate()
+        .map(|(i, &row)| {
+            let residual = fit.solution.residuals[i];
+            let h = fit.solution.leverage[i];
+            let standardized =
+                (s > 0.0 && h < 1.0 - 1e-12).then(|| residual / (s * (1.0 - h).sqrt()));
+            RowDiagnostics {
+                row,
+                actual: design.y[i],
+                fitted: fit.fitted[i],
+                residual,
+                standardized_residual: standardized,
+                leverage: h,
+                cooks_distance: standardized.map(|r| r * r * h / (p * (1.0 - h))),
+            }
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::design::build;
+    use crate::job::{Baseline, CategoricalSpec, ModelSpec};
+    use crate::source::{Column, Table, Value};
+    use std::path::PathBuf;
+
+    /// One-way layout, three groups of two: y = 1,3 | 4,6 | 10,12.
+    /// By hand: group means 2, 5, 11, grand mean 6; between-group SS =
+    /// 2·(16 + 1 + 25) = 84 on 2 df; within SS = 6·1 = 6 on 3 df; F = 21.
+    fn one_way() -> (Design, Fit) {
+        let table = Table {
+            path: PathBuf::from("d.csv"),
+            sheet: "d.csv".into(),
+            rows: (2..8).collect(),
+            columns: vec![
+                Column {
+                    name: "y".into(),
+                    col: 0,
+                    values: [1.0, 3.0, 4.0, 6.0, 10.0, 12.0].map(Value::Number).to_vec(),
+                },
+                Column {
+                    name: "g".into(),
+                    col: 1,
+                    values: ["a", "a", "b", "b", "c", "c"]
+                        .map(|s| Value::Text(s.into()))
+                        .to_vec(),
+                },
+            ],
+        };
+        let spec = ModelSpec {
+            name: "m".into(),
+            response: "y".into(),
+            numeric: vec![],
+            categorical: vec![CategoricalSpec {
+                column: "g".into(),
+                baseline: Baseline::FirstSorted,
+            }],
+            intercept: true,
+            confidence: 0.95,
+        };
+        let design = build(&table, &spec).unwrap();
+        let fit = crate::fit::fit("m", &design, 0.95).unwrap();
+        (design, fit)
+    }
+
+    #[test]
+    fn one_way_anova_matches_the_hand_computation() {
+        let (design, fit) = one_way();
+        for table in [
+            sequential_anova(&design, &fit),
+            each_term_last_anova(&design, &fit),
+        ] {
+            assert_eq!(table[0].df, 2);
+            assert!((table[0].sum_sq - 84.0).abs() < 1e-12);
+            assert!((table[0].f_stat.unwrap() - 21.0).abs() < 1e-12);
+            assert_eq!(table[1].df, 3);
+            assert!((table[1].sum_sq - 6.0).abs() < 1e-12);
+        }
+    }
+
+    #[test]
+    fn cooks_distance_follows_its_definition() {
+        let (design, fit) = one_way();
+        let rows = row_diagnostics(&design, &fit);
+        // Each group has two rows, so h = 1/2 everywhere; residuals are ±1,
+        // s² = 6/3 = 2; r = 1/(√2·√½) = 1; D = 1·½/(3·½) = 1/3.
+        for r in &rows {
+            assert!((r.leverage - 0.5).abs() < 1e-12);
+            assert!((r.standardized_residual.unwrap().abs() - 1.0).abs() < 1e-12);
+            assert!((r.cooks_distance.unwrap() - 1.0 / 3.0).abs() < 1e-12);
+        }
+    }
+}

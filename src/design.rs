@@ -1,0 +1,494 @@
+//! From a table and a model to the numbers least squares needs.
+//!
+//! For one [`ModelSpec`] this stage checks that every column exists and holds
+//! what its role needs, drops rows with a blank in any column the model uses
+//! (recording their sheet rows), and builds the response vector and the design
+//! matrix: an intercept column, one column per numeric predictor, and for each
+//! categorical predictor one 0/1 indicator column per level other than the
+//! baseline (treatment coding). Each column remembers the [`Term`] it belongs
+//! to, so that a factor can be tested as one term.
+
+use std::collections::BTreeSet;
+
+use nalgebra::{DMatrix, DVector};
+
+use crate::job::{Baseline, CategoricalSpec, ModelSpec};
+use crate::source::{CellRef, Column, Table, Value};
+
+/// An error that stops one model: its columns do not fit its roles.
+#[derive(Debug, thiserror::Error)]
+pub enum DesignError {
+    /// A column named in the job is not in the table.
+    #[error("model '{model}': {place} has no column '{column}'{suggestion}; its columns are: {available}")]
+    NoSuchColumn {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The missing column.
+        column: String,
+        /// ", did you mean 'x'?" or nothing.
+        suggestion: String,
+        /// The table's column names.
+        available: String,
+    },
+    /// A cell in a numeric column holds something that is not a number.
+    #[error("model '{model}': {place}, cell {cell} in numeric column '{column}' holds {kind} '{value}', not a number; correct the cell, clear it to leave the row out, or list the column under `categorical`")]
+    NotANumber {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The kind of value found.
+        kind: &'static str,
+        /// The value as text.
+        value: String,
+    },
+    /// A cell holds an error value such as `#N/A`.
+    #[error("model '{model}': {place}, cell {cell} in column '{column}' holds the error value {value}; fix the formula or clear the cell to leave the row out")]
+    ErrorCell {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The error text.
+        value: String,
+    },
+    /// A number that is not finite.
+    #[error("model '{model}': {place}, cell {cell} in column '{column}' holds {value}, which is not a finite number")]
+    NotFinite {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The value.
+        value: f64,
+    },
+    /// The baseline named in the job is not a level of the column.
+    #[error("model '{model}': baseline '{baseline}' is not a level of column '{column}' in the rows used; its levels are: {levels}")]
+    NoSuchBaseline {
+        /// The model.
+        model: String,
+        /// The column.
+        column: String,
+        /// The baseline asked for.
+        baseline: String,
+        /// The levels found, quoted.
+        levels: String,
+    },
+    /// A categorical column has a single level in the rows used.
+    #[error("model '{model}': categorical column '{column}' has only one level ('{level}') in the rows used; a categorical predictor needs two or more levels")]
+    OneLevel {
+        /// The model.
+        model: String,
+        /// The column.
+        column: String,
+        /// Its only level.
+        level: String,
+    },
+}
+
+/// What a design-matrix column stands for.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum TermKind {
+    /// The constant column of ones.
+    Intercept,
+    /// A numeric predictor entered as it is.
+    Numeric,
+    /// A categorical predictor: one indicator per non-baseline level.
+    Categorical {
+        /// The baseline level.
+        baseline: String,
+        /// How it was chosen.
+        chosen: Baseline,
+        /// Every level found in the rows used, sorted, baseline included.
+        levels: Vec<String>,
+    },
+}
+
+/// A model term: a group of design-matrix columns tested together.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Term {
+    /// "Intercept", or the column name.
+    pub name: String,
+    /// What kind of term.
+    pub kind: TermKind,
+    /// Indices of this term's columns in the design matrix.
+    pub columns: std::ops::Range<usize>,
+}
+
+/// The response and design matrix of one model, over its usable rows.
+#[derive(Debug, Clone)]
+pub struct Design {
+    /// The response column's name.
+    pub response: String,
+    /// Response values, one per used row.
+    pub y: DVector<f64>,
+    /// Design matrix: one row per used row, one column per coefficient.
+    pub x: DMatrix<f64>,
+    /// Coefficient names, one per column of `x`: `Intercept`, the numeric
+    /// column's name, or `column[level]` for an indicator.
+    pub names: Vec<String>,
+    /// Terms in model order; their column ranges cover `x` in order.
+    pub terms: Vec<Term>,
+    /// Whether the first term is the intercept.
+    pub intercept: bool,
+    /// Sheet row (from 1) of each used row.
+    pub rows: Vec<u32>,
+    /// Sheet rows left out because a used column was blank there.
+    pub dropped: Vec<u32>,
+}
+
+/// Builds the design for `model` from `table`.
+///
+/// # Errors
+/// [`DesignError`] for a missing column, a cell that does not suit its
+/// column's role, a baseline that is not a level, or a one-level factor.
+pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
+    let ctx = Context { table, model };
+    let response = ctx.numbers(ctx.column(&model.response)?)?;
+    let numeric = model
+        .numeric
+        .iter()
+        .map(|name| ctx.numbers(ctx.column(name)?))
+        .collect::<Result<Vec<_>, _>>()?;
+    let labels = model
+        .categorical
+        .iter()
+        .map(|c| ctx.labels(ctx.column(&c.column)?))
+        .collect::<Result<Vec<_>, _>>()?;
+
+    let keep: Vec<usize> = (0..table.rows.len())
+        .filter(|&i| {
+            response[i].is_some()
+                && numeric.iter().all(|c| c[i].is_some())
+                && labels.iter().all(|c| c[i].is_some())
+        })
+        .collect();
+    let dropped = (0..table.rows.len())
+        .filter(|i| keep.binary_search(i).is_err())
+        .map(|i| table.rows[i])
+        .collect();
+
+    let mut names = Vec::new();
+    let mut terms = Vec::new();
+    let mut columns: Vec<Vec<f64>> = Vec::new();
+    let mut push_term = |name: &str, kind: TermKind, cols: Vec<(String, Vec<f64>)>| {
+        let start = columns.len();
+        for (n, c) in cols {
+            names.push(n);
+            columns.push(c);
+        }
+        terms.push(Term {
+            name: name.to_string(),
+            kind,
+            columns: start..columns.len(),
+        });
+    };
+    if model.intercept {
+        push_term(
+            "Intercept",
+            TermKind::Intercept,
+            vec![("Intercept".into(), vec![1.0; keep.len()])],
+        );
+    }
+    for (name, values) in model.numeric.iter().zip(&numeric) {
+        let col = keep
+            .iter()
+            .map(|&i| values[i].unwrap_or(f64::NAN))
+            .collect();
+        push_term(name, TermKind::Numeric, vec![(name.clone(), col)]);
+    }
+    for (spec, values) in model.categorical.iter().zip(&labels) {
+        let used: Vec<&str> = keep.iter().filter_map(|&i| values[i].as_deref()).collect();
+        let (kind, indicators) = indicators(&ctx, spec, &used)?;
+        push_term(&spec.column, kind, indicators);
+    }
+
+    let y = DVector::from_iterator(
+        keep.len(),
+        keep.iter().map(|&i| response[i].unwrap_or(f64::NAN)),
+    );
+    let x = DMatrix::from_fn(keep.len(), columns.len(), |r, c| columns[c][r]);
+    Ok(Design {
+        response: model.response.clone(),
+        y,
+        x,
+        names,
+        terms,
+        intercept: model.intercept,
+        rows: keep.iter().map(|&i| table.rows[i]).collect(),
+        dropped,
+    })
+}
+
+type Indicators = Vec<(String, Vec<f64>)>;
+
+/// Treatment coding of one factor: levels sorted, one 0/1 column per level
+/// other than the baseline.
+fn indicators(
+    ctx: &Context<'_>,
+    spec: &CategoricalSpec,
+    used: &[&str],
+) -> Result<(TermKind, Indicators), DesignError> {
+    let levels: Vec<String> = used
+        .iter()
+        .copied()
+        .collect::<BTreeSet<_>>()
+        .into_iter()
+        .map(str::to_string)
+        .collect();
+    let baseline = match &spec.baseline {
+        Baseline::Given(level) if levels.contains(level) => level.clone(),
+        Baseline::Given(level) => {
+            return Err(DesignError::NoSuchBaseline {
+                model: ctx.model.name.clone(),
+                column: spec.column.clone(),
+                baseline: level.clone(),
+                levels: quoted(&levels),
+            })
+        }
+        Baseline::FirstSorted => levels.first().cloned().unwrap_or_default(),
+    };
+    if levels.len() < 2 {
+        return Err(DesignError::OneLevel {
+            model: ctx.model.name.clone(),
+            column: spec.column.clone(),
+            level: baseline,
+        });
+    }
+    let cols = levels
+        .iter()
+        .filter(|l| **l != baseline)
+        .map(|level| {
+            let col = used
+                .iter()
+                .map(|v| f64::from(u8::from(*v == level)))
+                .collect();
+            (format!("{}[{}]", spec.column, level), col)
+        })
+        .collect();
+    Ok((
+        TermKind::Categorical {
+            baseline,
+            chosen: spec.baseline.clone(),
+            levels,
+        },
+        cols,
+    ))
+}
+
+fn quoted(items: &[String]) -> String {
+    items
+        .iter()
+        .map(|s| format!("'{s}'"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+struct Context<'a> {
+    table: &'a Table,
+    model: &'a ModelSpec,
+}
+
+impl Context<'_> {
+    fn column(&self, name: &str) -> Result<&Column, DesignError> {
+        self.table.column(name).ok_or_else(|| {
+            let names: Vec<String> = self.table.columns.iter().map(|c| c.name.clone()).collect();
+            DesignError::NoSuchColumn {
+                model: self.model.name.clone(),
+                place: self.table.place(),
+                column: name.to_string(),
+                suggestion: closest(name, &names)
+                    .map(|s| format!(" (did you mean '{s}'?)"))
+                    .unwrap_or_default(),
+                available: quoted(&names),
+            }
+        })
+    }
+
+    /// The column as numbers; `None` where the cell is blank.
+    fn numbers(&self, column: &Column) -> Result<Vec<Option<f64>>, DesignError> {
+        column
+            .values
+            .iter()
+            .enumerate()
+            .map(|(i, v)| match v {
+                Value::Blank => Ok(None),
+                Value::Number(x) if x.is_finite() => Ok(Some(*x)),
+                Value::Number(x) => Err(DesignError::NotFinite {
+                    model: self.model.name.clone(),
+                    place: self.table.place(),
+                    column: column.name.clone(),
+                    cell: self.table.cell(column, i),
+                    value: *x,
+                }),
+                Value::Error(e) => Err(self.error_cell(column, i, e)),
+                other => Err(DesignError::NotANumber {
+                    model: self.model.name.clone(),
+                    place: self.table.place(),
+                    column: column.name.clone(),
+                    cell: self.table.cell(column, i),
+                    kind: other.kind(),
+                    value: other.to_string(),
+                }),
+            })
+            .collect()
+    }
+
+    /// The column as level labels; `None` where the cell is blank. Numbers
+    /// become their shortest decimal text ("3", "2.5").
+    fn labels(&self, column: &Column) -> Result<Vec<Option<String>>, DesignError> {
+        column
+            .values
+            .iter()
+            .enumerate()
+            .map(|(i, v)| match v {
+                Value::Blank => Ok(None),
+                Value::Error(e) => Err(self.error_cell(column, i, e)),
+                other => Ok(Some(other.to_string())),
+            })
+            .collect()
+    }
+
+    fn error_cell(&self, column: &Column, i: usize, value: &str) -> DesignError {
+        DesignError::ErrorCell {
+            model: self.model.name.clone(),
+            place: self.table.place(),
+            column: column.name.clone(),
+            cell: self.table.cell(column, i),
+            value: value.to_string(),
+        }
+    }
+}
+
+/// The name in `names` closest to `name` by Jaro-Winkler similarity, when it
+/// is close enough (similarity at least 0.8) to be worth suggesting.
+pub fn closest<'a>(name: &str, names: &'a [String]) -> Option<&'a str> {
+    let lower = name.to_lowercase();
+    names
+        .iter()
+        .map(|n| (strsim::jaro_winkler(&lower, &n.to_lowercase()), n))
+        .filter(|(score, _)| *score >= 0.8)
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .map(|(_, n)| n.as_str())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::path::PathBuf;
+
+    fn table() -> Table {
+        let col = |name: &str, col: u32, values: Vec<Value>| Column {
+            name: name.into(),
+            col,
+            values,
+        };
+        let n = |x: f64| Value::Number(x);
+        let t = |s: &str| Value::Text(s.into());
+        Table {
+            path: PathBuf::from("d.xlsx"),
+            sheet: "records".into(),
+            rows: vec![2, 3, 4, 5, 6],
+            columns: vec![
+                col("y", 0, vec![n(1.0), n(2.0), Value::Blank, n(4.0), n(5.0)]),
+                col("x", 1, vec![n(1.0), n(2.0), n(3.0), n(4.0), n(6.0)]),
+                col("region", 2, vec![t("S"), t("N"), t("N"), t("W"), t("S")]),
+            ],
+        }
+    }
+
+    fn spec(numeric: &[&str], categorical: &[(&str, Baseline)]) -> ModelSpec {
+        ModelSpec {
+            name: "m".into(),
+            response: "y".into(),
+            numeric: numeric.iter().map(|s| s.to_string()).collect(),
+            categorical: categorical
+                .iter()
+                .map(|(c, b)| CategoricalSpec {
+                    column: c.to_string(),
+                    baseline: b.clone(),
+                })
+                .collect(),
+            intercept: true,
+            confidence: 0.95,
+        }
+    }
+
+    #[test]
+    fn blank_rows_are_dropped_and_listed() {
+        let d = build(&table(), &spec(&["x"], &[])).unwrap();
+        assert_eq!(d.rows, vec![2, 3, 5, 6]);
+        assert_eq!(d.dropped, vec![4]);
+        assert_eq!(d.x.ncols(), 2);
+        assert_eq!(d.y.as_slice(), &[1.0, 2.0, 4.0, 5.0]);
+    }
+
+    #[test]
+    fn indicators_use_treatment_coding_against_the_baseline() {
+        let d = build(
+            &table(),
+            &spec(&[], &[("region", Baseline::Given("S".into()))]),
+        )
+        .unwrap();
+        assert_eq!(d.names, vec!["Intercept", "region[N]", "region[W]"]);
+        assert_eq!(d.x.column(1).as_slice(), &[0.0, 1.0, 0.0, 0.0]);
+        assert_eq!(d.x.column(2).as_slice(), &[0.0, 0.0, 1.0, 0.0]);
+        assert_eq!(d.terms[1].columns, 1..3);
+    }
+
+    #[test]
+    fn default_baseline_is_the_first_sorted_level() {
+        let d = build(&table(), &spec(&[], &[("region", Baseline::FirstSorted)])).unwrap();
+        assert_eq!(d.names, vec!["Intercept", "region[S]", "region[W]"]);
+    }
+
+    #[test]
+    fn unknown_baseline_lists_the_levels() {
+        let err = build(
+            &table(),
+            &spec(&[], &[("region", Baseline::Given("E".into()))]),
+        )
+        .unwrap_err();
+        assert_eq!(
+            err.to_string(),
+            "model 'm': baseline 'E' is not a level of column 'region' in the rows used; \
+             its levels are: 'N', 'S', 'W'"
+        );
+    }
+
+    #[test]
+    fn unknown_column_suggests_the_closest() {
+        let err = build(&table(), &spec(&["regoin"], &[])).unwrap_err();
+        let msg = err.to_string();
+        assert!(
+            msg.contains("no column 'regoin' (did you mean 'region'?)"),
+            "{msg}"
+        );
+        assert!(msg.contains("its columns are: 'y', 'x', 'region'"), "{msg}");
+    }
+
+    #[test]
+    fn text_in_a_numeric_column_names_the_cell() {
+        let err = build(&table(), &spec(&["region"], &[])).unwrap_err();
+        assert_eq!(
+            err.to_string(),
+            "model 'm': sheet 'records' of d.xlsx, cell C2 in numeric column 'region' holds \
+             text 'S', not a number; correct the cell, clear it to leave the row out, or list \
+             the column under `categorical`"
+        );
+    }
+}

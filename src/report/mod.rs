@@ -1,0 +1,158 @@
+//! Writing the results: the report workbook and the results JSON beside it.
+//!
+//! Both files are built in memory, written to temporary files in the target
+//! folder and only then renamed into place, so a failed run leaves the
+//! previous report untouched and never a half-written one.
+
+pub mod workbook;
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use crate::results::Results;
+
+/// An error while writing the report.
+#[derive(Debug, thiserror::Error)]
+pub enum ReportError {
+    /// The report would replace the input it was computed from.
+    #[error("the report path {path} is the input file itself; choose another `output.workbook` in the job file")]
+    OutputIsInput {
+        /// The path given for the report.
+        path: PathBuf,
+    },
+    /// The output path names a folder.
+    #[error(
+        "the report path {path} is a folder; give a file name ending in .xlsx in `output.workbook`"
+    )]
+    OutputIsFolder {
+        /// The path given for the report.
+        path: PathBuf,
+    },
+    /// A file or folder could not be written.
+    #[error("cannot write {path}: {source}")]
+    Io {
+        /// The file or folder.
+        path: PathBuf,
+        /// The operating system's reason.
+        source: std::io::Error,
+    },
+    /// The workbook writer refused the content.
+    #[error("cannot build the report workbook {path}: {source}")]
+    Workbook {
+        /// The report path.
+        path: PathBuf,
+        /// The writer's error.
+        source: rust_xlsxwriter::XlsxError,
+    },
+    /// The results could not be turned into JSON.
+    #[error("cannot build the results JSON {path}: {source}")]
+    Json {
+        /// The JSON path.
+        path: PathBuf,
+        /// The serializer's error.
+        source: serde_json::Error,
+    },
+}
+
+/// The files a run wrote.
+#[derive(Debug, Clone)]
+pub struct Written {
+    /// The report workbook.
+    pub workbook: PathBuf,
+    /// The results JSON.
+    pub json: PathBuf,
+}
+
+/// The results JSON path for a report workbook: the same name with `.json`.
+pub fn json_path(workbook: &Path) -> PathBuf {
+    workbook.with_extension("json")
+}
+
+/// Writes the workbook to `path` and the results JSON beside it, refusing
+/// to overwrite `input`.
+///
+/// # Errors
+/// [`ReportError`] when the path is unusable or a write fails; in that case
+/// neither file has been replaced.
+pub fn write(results: &Results, path: &Path, input: &Path) -> Result<Written, ReportError> {
+    if path.is_dir() {
+        return Err(ReportError::OutputIsFolder {
+            path: path.to_path_buf(),
+        });
+    }
+    if same_file(path, input) {
+        return Err(ReportError::OutputIsInput {
+            path: path.to_path_buf(),
+        });
+    }
+    let json = json_path(path);
+    let workbook_bytes =
+        workbook::workbook_bytes(results).map_err(|source| ReportError::Workbook {
+            path: path.to_path_buf(),
+            source,
+        })?;
+    let mut json_bytes =
+        serde_json::to_vec_pretty(results).map_err(|source| ReportError::Json {
+            path: json.clone(),
+            source,
+        })?;
+    json_bytes.push(b'\n');
+
+    let folder = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    std::fs::create_dir_all(&folder).map_err(|source| ReportError::Io {
+        path: folder.clone(),
+        source,
+    })?;
+    let staged_workbook = stage(&folder, &workbook_bytes)?;
+    let staged_json = stage(&folder, &json_bytes)?;
+    let persist = |staged: tempfile::NamedTempFile, target: &Path| {
+        staged.persist(target).map_err(|e| ReportError::Io {
+            path: target.to_path_buf(),
+            source: e.error,
+        })
+    };
+    persist(staged_workbook, path)?;
+    persist(staged_json, &json)?;
+    Ok(Written {
+        workbook: path.to_path_buf(),
+        json,
+    })
+}
+
+fn stage(folder: &Path, bytes: &[u8]) -> Result<tempfile::NamedTempFile, ReportError> {
+    let io = |source| ReportError::Io {
+        path: folder.to_path_buf(),
+        source,
+    };
+    let mut file = tempfile::Builder::new()
+        .prefix(".sheetfit-")
+        .tempfile_in(folder)
+        .map_err(io)?;
+    file.write_all(bytes).map_err(io)?;
+    readable_by_others(file.as_file()).map_err(io)?;
+    file.as_file().sync_all().map_err(io)?;
+    Ok(file)
+}
+
+/// Temporary files are private to their owner; a report is a normal file
+/// (read and write for the owner, read for others, as a new file would be).
+#[cfg(unix)]
+fn readable_by_others(file: &std::fs::File) -> std::io::Result<()> {
+    use std::os::unix::fs::PermissionsExt;
+    file.set_permissions(std::fs::Permissions::from_mode(0o644))
+}
+
+#[cfg(not(unix))]
+fn readable_by_others(_file: &std::fs::File) -> std::io::Result<()> {
+    Ok(())
+}
+
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (a.canonicalize(), b.canonicalize()) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    }
+}

@@ -1,0 +1,547 @@
+//! The report workbook: sheets laid out from [`Results`], nothing computed.
+//!
+//! Each table sheet holds one worksheet table (filter buttons, banded rows,
+//! a defined name) with a row per model and item, so a reader can filter to
+//! one model. Charts are built from the cell ranges recorded while the
+//! residual table is written, never from hand-typed coordinates.
+
+use rust_xlsxwriter::{
+    Chart, ChartMarker, ChartMarkerType, ChartType, DocProperties, Format, FormatAlign, Table,
+    TableColumn, TableStyle, Workbook, Worksheet, XlsxError,
+};
+
+use crate::results::{row_ranges, ModelResults, Results};
+
+/// Sheet names, in the order they appear.
+pub const SHEETS: [&str; 6] = [
+    "Overview",
+    "Coefficients",
+    "ANOVA",
+    "Fit quality",
+    "Residuals",
+    "Charts",
+];
+
+/// One cell of a table row.
+enum Cell {
+    Text(String),
+    Number(f64, Style),
+    Empty,
+}
+
+/// How a number is shown; the cell always holds the full value.
+#[derive(Clone, Copy)]
+enum Style {
+    /// Estimates and sums: four decimals, scientific when very small or large.
+    Value,
+    /// p-values: four decimals, "<0.0001" below that.
+    PValue,
+    /// Shares such as R²: four decimals.
+    Ratio,
+    /// Counts and row numbers.
+    Count,
+}
+
+fn opt(x: Option<f64>, style: Style) -> Cell {
+    match x {
+        Some(v) if v.is_finite() => Cell::Number(v, style),
+        _ => Cell::Empty,
+    }
+}
+
+fn num(x: f64, style: Style) -> Cell {
+    opt(Some(x), style)
+}
+
+fn text(s: impl Into<String>) -> Cell {
+    Cell::Text(s.into())
+}
+
+struct Formats {
+    fixed: Format,
+    scientific: Format,
+    p_value: Format,
+    ratio: Format,
+    count: Format,
+    title: Format,
+    heading: Format,
+    bold: Format,
+    wrap: Format,
+}
+
+impl Formats {
+    fn new() -> Self {
+        Formats {
+            fixed: Format::new().set_num_format("#,##0.0000"),
+            scientific: Format::new().set_num_format("0.0000E+00"),
+            p_value: Format::new().set_num_format("[<0.0001]\"<0.0001\";0.0000"),
+            ratio: Format::new().set_num_format("0.0000"),
+            count: Format::new().set_num_format("0"),
+            title: Format::new().set_bold().set_font_size(16),
+            heading: Format::new().set_bold().set_font_size(12),
+            bold: Format::new().set_bold(),
+            wrap: Format::new().set_text_wrap().set_align(FormatAlign::Top),
+        }
+    }
+
+    fn for_number(&self, x: f64, style: Style) -> &Format {
+        match style {
+            Style::Value if x != 0.0 && !(1e-4..1e10).contains(&x.abs()) => &self.scientific,
+            Style::Value => &self.fixed,
+            Style::PValue => &self.p_value,
+            Style::Ratio => &self.ratio,
+            Style::Count => &self.count,
+        }
+    }
+}
+
+/// The rows a table occupies, zero-based and inclusive; `first` is the first
+/// data row (below the header).
+#[derive(Clone, Copy)]
+struct Span {
+    first: u32,
+    last: u32,
+}
+
+/// Writes a worksheet table with a header row at `top` and returns, per data
+/// row group, nothing: callers that need ranges compute them from `top`.
+fn write_table(
+    sheet: &mut Worksheet,
+    formats: &Formats,
+    name: &str,
+    top: u32,
+    headers: &[&str],
+    rows: &[Vec<Cell>],
+) -> Result<(), XlsxError> {
+    let mut widths: Vec<usize> = headers.iter().map(|h| h.chars().count() + 4).collect();
+    for (i, row) in rows.iter().enumerate() {
+        let r = top + 1 + i as u32;
+        for (j, cell) in row.iter().enumerate() {
+            let c = j as u16;
+            let width = match cell {
+                Cell::Text(s) => {
+                    sheet.write_string(r, c, s)?;
+                    s.chars().count()
+                }
+                Cell::Number(x, style) => {
+                    sheet.write_number_with_format(r, c, *x, formats.for_number(*x, *style))?;
+                    12
+                }
+                Cell::Empty => 0,
+            };
+            widths[j] = widths[j].max(width + 2);
+        }
+    }
+    let columns: Vec<TableColumn> = headers
+        .iter()
+        .map(|h| TableColumn::new().set_header(*h))
+        .collect();
+    let table = Table::new()
+        .set_name(name)
+        .set_style(TableStyle::Medium2)
+        .set_columns(&columns);
+    let last_row = top + rows.len().max(1) as u32;
+    sheet.add_table(top, 0, last_row, headers.len() as u16 - 1, &table)?;
+    for (j, w) in widths.iter().enumerate() {
+        sheet.set_column_width(j as u16, (*w).min(60) as f64)?;
+    }
+    sheet.set_freeze_panes(top + 1, 0)?;
+    Ok(())
+}
+
+/// Lays `results` out as a workbook and returns its bytes.
+///
+/// # Errors
+/// Any [`XlsxError`] from the writer (a limit of the file format).
+pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
+    let formats = Formats::new();
+    let mut workbook = Workbook::new();
+    workbook.set_properties(
+        &DocProperties::new()
+            .set_title(&results.title)
+            .set_subject("Linear regression report")
+            .set_author(&results.run.tool)
+            .set_comment(format!("Run {}", results.run.run_time)),
+    );
+    overview(
+        workbook.add_worksheet().set_name(SHEETS[0])?,
+        &formats,
+        results,
+    )?;
+    coefficients(
+        workbook.add_worksheet().set_name(SHEETS[1])?,
+        &formats,
+        results,
+    )?;
+    anova(
+        workbook.add_worksheet().set_name(SHEETS[2])?,
+        &formats,
+        results,
+    )?;
+    fit_quality(
+        workbook.add_worksheet().set_name(SHEETS[3])?,
+        &formats,
+        results,
+    )?;
+    let spans = residuals(
+        workbook.add_worksheet().set_name(SHEETS[4])?,
+        &formats,
+        results,
+    )?;
+    charts(
+        workbook.add_worksheet().set_name(SHEETS[5])?,
+        results,
+        &spans,
+    )?;
+    workbook.save_to_buffer()
+}
+
+fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
+    sheet.set_column_width(0, 28)?;
+    for c in 1..=results.models.len() as u16 {
+        sheet.set_column_width(c, 22)?;
+    }
+    sheet.write_string_with_format(0, 0, &results.title, &f.title)?;
+    let mut r = 2;
+    sheet.write_string_with_format(r, 0, "Models side by side", &f.heading)?;
+    r += 1;
+    sheet.write_string_with_format(r, 0, "Statistic", &f.bold)?;
+    for (j, m) in results.models.iter().enumerate() {
+        sheet.write_string_with_format(r, 1 + j as u16, &m.name, &f.bold)?;
+    }
+    type Row = (&'static str, fn(&ModelResults) -> Cell);
+    let rows: [Row; 14] = [
+        ("Response", |m| text(&m.response)),
+        ("Rows used (n)", |m| num(m.n as f64, Style::Count)),
+        ("Rows left out (blank cells)", |m| {
+            num(m.dropped_rows.len() as f64, Style::Count)
+        }),
+        ("Coefficients estimated", |m| {
+            num(m.coefficients.len() as f64, Style::Count)
+        }),
+        ("Residual degrees of freedom", |m| {
+            num(m.df_resid as f64, Style::Count)
+        }),
+        ("R²", |m| opt(m.fit.r_squared, Style::Ratio)),
+        ("Adjusted R²", |m| opt(m.fit.adj_r_squared, Style::Ratio)),
+        ("Residual standard error", |m| {
+            num(m.fit.sigma, Style::Value)
+        }),
+        ("F statistic", |m| opt(m.fit.f_stat, Style::Value)),
+        ("F p-value", |m| opt(m.fit.f_p_value, Style::PValue)),
+        ("Log-likelihood", |m| {
+            num(m.fit.log_likelihood, Style::Value)
+        }),
+        ("AIC (lower is better)", |m| num(m.fit.aic, Style::Value)),
+        ("BIC (lower is better)", |m| num(m.fit.bic, Style::Value)),
+        ("Confidence level", |m| num(m.confidence, Style::Ratio)),
+    ];
+    for (label, value) in rows {
+        r += 1;
+        sheet.write_string(r, 0, label)?;
+        for (j, m) in results.models.iter().enumerate() {
+            match value(m) {
+                Cell::Text(s) => sheet.write_string(r, 1 + j as u16, s)?,
+                Cell::Number(x, style) => {
+                    sheet.write_number_with_format(r, 1 + j as u16, x, f.for_number(x, style))?
+                }
+                Cell::Empty => sheet.write_string(r, 1 + j as u16, "n/a")?,
+            };
+        }
+    }
+
+    r += 2;
+    sheet.write_string_with_format(r, 0, "Fitted equations", &f.heading)?;
+    for m in &results.models {
+        r += 1;
+        sheet.write_string_with_format(r, 0, &m.name, &f.bold)?;
+        sheet.write_string(r, 1, &m.equation)?;
+    }
+
+    r += 2;
+    sheet.write_string_with_format(r, 0, "How each model was set up", &f.heading)?;
+    for m in &results.models {
+        for note in model_notes(m) {
+            r += 1;
+            sheet.write_string_with_format(r, 0, &m.name, &f.bold)?;
+            sheet.write_string(r, 1, note)?;
+        }
+    }
+
+    r += 2;
+    sheet.write_string_with_format(r, 0, "Run", &f.heading)?;
+    let run = &results.run;
+    let stamp = [
+        ("Tool", run.tool.clone()),
+        ("Run time (UTC)", run.run_time.clone()),
+        ("Job file", run.job_file.clone()),
+        ("Job file SHA-256", run.job_sha256.clone()),
+        ("Input file", run.input_file.clone()),
+        ("Input SHA-256", run.input_sha256.clone()),
+        ("Sheet", run.sheet.clone()),
+    ];
+    for (label, value) in stamp {
+        r += 1;
+        sheet.write_string(r, 0, label)?;
+        sheet.write_string(r, 1, value)?;
+    }
+    r += 1;
+    sheet.write_string(r, 0, "Data rows read")?;
+    sheet.write_number_with_format(r, 1, run.rows_read as f64, &f.count)?;
+
+    r += 2;
+    sheet.write_string_with_format(r, 0, "Before you rely on these numbers", &f.heading)?;
+    for caution in &results.cautions {
+        r += 1;
+        sheet.merge_range(r, 0, r, 6, caution, &f.wrap)?;
+        sheet.set_row_height(r, 32)?;
+    }
+    Ok(())
+}
+
+/// Plain sentences on how a model was set up: baselines, aliased terms,
+/// rows left out.
+pub fn model_notes(m: &ModelResults) -> Vec<String> {
+    let mut notes = Vec::new();
+    if !m.intercept {
+        notes.push(
+            "Fitted without an intercept: R² and F are measured about zero, not about the mean."
+                .to_string(),
+        );
+    }
+    for b in &m.baselines {
+        notes.push(format!(
+            "{}: baseline level '{}' ({}); each {}[level] coefficient is the difference from it. Levels: {}.",
+            b.column,
+            b.level,
+            b.reason,
+            b.column,
+            b.levels.join(", ")
+        ));
+    }
+    for a in &m.aliased {
+        notes.push(format!(
+            "{a} is an exact combination of earlier columns (aliased) and was left out of the fit."
+        ));
+    }
+    if m.dropped_rows.is_empty() {
+        notes.push("No rows were left out.".to_string());
+    } else {
+        notes.push(format!(
+            "{} rows left out for a blank cell in a column this model uses; sheet rows {}.",
+            m.dropped_rows.len(),
+            row_ranges(&m.dropped_rows)
+        ));
+    }
+    notes
+}
+
+fn coefficients(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
+    let headers = [
+        "Model",
+        "Term",
+        "Estimate",
+        "Standard error",
+        "t",
+        "p-value",
+        "Lower limit",
+        "Upper limit",
+        "Confidence",
+        "Note",
+    ];
+    let mut rows = Vec::new();
+    for m in &results.models {
+        for c in &m.coefficients {
+            rows.push(vec![
+                text(&m.name),
+                text(&c.term),
+                num(c.estimate, Style::Value),
+                num(c.std_error, Style::Value),
+                opt(c.t_stat, Style::Value),
+                opt(c.p_value, Style::PValue),
+                num(c.ci_lower, Style::Value),
+                num(c.ci_upper, Style::Value),
+                num(m.confidence, Style::Ratio),
+                Cell::Empty,
+            ]);
+        }
+        for a in &m.aliased {
+            let mut row = vec![text(&m.name), text(a)];
+            row.extend((0..7).map(|_| Cell::Empty));
+            row.push(text("aliased: left out of the fit"));
+            rows.push(row);
+        }
+    }
+    write_table(sheet, f, "Coefficients", 0, &headers, &rows)
+}
+
+fn anova(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
+    let headers = [
+        "Model",
+        "Test",
+        "Term",
+        "df",
+        "Sum of squares",
+        "Mean square",
+        "F",
+        "p-value",
+    ];
+    let mut rows = Vec::new();
+    for m in &results.models {
+        for (label, table) in [
+            ("sequential (terms added in order)", &m.anova),
+            ("each term given all others", &m.term_tests),
+        ] {
+            for a in table {
+                rows.push(vec![
+                    text(&m.name),
+                    text(label),
+                    text(&a.term),
+                    num(a.df as f64, Style::Count),
+                    num(a.sum_sq, Style::Value),
+                    num(a.mean_sq, Style::Value),
+                    opt(a.f_stat, Style::Value),
+                    opt(a.p_value, Style::PValue),
+                ]);
+            }
+        }
+    }
+    write_table(sheet, f, "ANOVA", 0, &headers, &rows)
+}
+
+fn fit_quality(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
+    let headers = [
+        "Model",
+        "n",
+        "Model df",
+        "Residual df",
+        "R²",
+        "Adjusted R²",
+        "Residual standard error",
+        "F",
+        "F p-value",
+        "Log-likelihood",
+        "AIC",
+        "BIC",
+        "Residual sum of squares",
+        "Regression sum of squares",
+        "Total sum of squares",
+    ];
+    let rows: Vec<Vec<Cell>> = results
+        .models
+        .iter()
+        .map(|m| {
+            let q = &m.fit;
+            vec![
+                text(&m.name),
+                num(m.n as f64, Style::Count),
+                num(m.df_model as f64, Style::Count),
+                num(m.df_resid as f64, Style::Count),
+                opt(q.r_squared, Style::Ratio),
+                opt(q.adj_r_squared, Style::Ratio),
+                num(q.sigma, Style::Value),
+                opt(q.f_stat, Style::Value),
+                opt(q.f_p_value, Style::PValue),
+                num(q.log_likelihood, Style::Value),
+                num(q.aic, Style::Value),
+                num(q.bic, Style::Value),
+                num(q.sse, Style::Value),
+                num(q.ssr, Style::Value),
+                num(q.sst, Style::Value),
+            ]
+        })
+        .collect();
+    write_table(sheet, f, "FitQuality", 0, &headers, &rows)
+}
+
+/// Column of the fitted, residual and actual values in the residual table.
+const FITTED_COL: u16 = 3;
+const ACTUAL_COL: u16 = 2;
+const RESIDUAL_COL: u16 = 4;
+
+fn residuals(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<Vec<Span>, XlsxError> {
+    let headers = [
+        "Model",
+        "Sheet row",
+        "Actual",
+        "Fitted",
+        "Residual",
+        "Standardized residual",
+        "Leverage",
+        "Cook's distance",
+    ];
+    let mut rows = Vec::new();
+    let mut spans = Vec::new();
+    for m in &results.models {
+        let first = 1 + rows.len() as u32;
+        for d in &m.residuals {
+            rows.push(vec![
+                text(&m.name),
+                num(f64::from(d.row), Style::Count),
+                num(d.actual, Style::Value),
+                num(d.fitted, Style::Value),
+                num(d.residual, Style::Value),
+                opt(d.standardized_residual, Style::Value),
+                num(d.leverage, Style::Ratio),
+                opt(d.cooks_distance, Style::Value),
+            ]);
+        }
+        spans.push(Span {
+            first,
+            last: rows.len() as u32,
+        });
+    }
+    write_table(sheet, f, "Residuals", 0, &headers, &rows)?;
+    Ok(spans)
+}
+
+fn charts(sheet: &mut Worksheet, results: &Results, spans: &[Span]) -> Result<(), XlsxError> {
+    let residual_sheet = SHEETS[4];
+    for (k, (m, span)) in results.models.iter().zip(spans).enumerate() {
+        let top = k as u32 * 22;
+        let fitted = (
+            residual_sheet,
+            span.first,
+            FITTED_COL,
+            span.last,
+            FITTED_COL,
+        );
+        let scatter = |title: String, x_name: String, y_name: String, values: u16| {
+            let mut chart = Chart::new(ChartType::Scatter);
+            chart
+                .add_series()
+                .set_categories(fitted)
+                .set_values((residual_sheet, span.first, values, span.last, values))
+                .set_marker(
+                    ChartMarker::new()
+                        .set_type(ChartMarkerType::Circle)
+                        .set_size(5),
+                );
+            chart.title().set_name(title.as_str());
+            chart.x_axis().set_name(x_name.as_str());
+            chart.y_axis().set_name(y_name.as_str());
+            chart.legend().set_hidden();
+            chart.set_width(560).set_height(400);
+            chart
+        };
+        let actual = scatter(
+            format!("{}: actual against fitted {}", m.name, m.response),
+            format!("Fitted {}", m.response),
+            format!("Actual {}", m.response),
+            ACTUAL_COL,
+        );
+        let resid = scatter(
+            format!("{}: residuals against fitted values", m.name),
+            format!("Fitted {}", m.response),
+            format!("Residual ({} units)", m.response),
+            RESIDUAL_COL,
+        );
+        sheet.insert_chart(top, 0, &actual)?;
+        sheet.insert_chart(top, 9, &resid)?;
+    }
+    Ok(())
+}

@@ -1,0 +1,265 @@
+//! The results of one job: every number the report shows, computed once.
+//!
+//! [`Results`] is what the report stage lays out in the workbook and what is
+//! serialized, field for field, as the results JSON (see DESIGN.md for the
+//! contract). It is built by [`analyse`] from the job, the table and the
+//! fitted models, and is not changed afterwards.
+
+use serde::Serialize;
+
+use crate::checks::{
+    each_term_last_anova, row_diagnostics, sequential_anova, AnovaRow, RowDiagnostics,
+};
+use crate::design::{Design, TermKind};
+use crate::fit::{Coefficient, Fit, FitQuality};
+use crate::job::{Baseline, Job, ModelSpec};
+
+/// The cautions printed on the overview sheet and carried in the JSON.
+pub const CAUTIONS: [&str; 3] = [
+    "A regression shows association between the response and the predictors in this data, not that one causes the other.",
+    "Estimates and any projection from them assume the pattern in the data used here holds; a change in conditions can break it.",
+    "This report supports, but does not replace, the judgement of qualified finance professionals and the organisation's own review and controls; decisions rest with the reader.",
+];
+
+/// Where the numbers came from, so a reader can trace and repeat the run.
+#[derive(Debug, Clone, Serialize)]
+pub struct RunStamp {
+    /// `sheetfit` and its version.
+    pub tool: String,
+    /// Time of the run, UTC, RFC 3339.
+    pub run_time: String,
+    /// The job file as given.
+    pub job_file: String,
+    /// SHA-256 of the job file's text, hex.
+    pub job_sha256: String,
+    /// The input file as resolved from the job.
+    pub input_file: String,
+    /// SHA-256 of the input file's bytes, hex.
+    pub input_sha256: String,
+    /// The sheet read.
+    pub sheet: String,
+    /// Data rows read below the header.
+    pub rows_read: usize,
+}
+
+/// How a categorical predictor's baseline was chosen, for the report.
+#[derive(Debug, Clone, Serialize)]
+pub struct BaselineNote {
+    /// The categorical column.
+    pub column: String,
+    /// The baseline level: each indicator compares its level with this one.
+    pub level: String,
+    /// Why this level: `given in the job` or `first level in sorted order`.
+    pub reason: String,
+    /// All levels in the rows used, sorted.
+    pub levels: Vec<String>,
+}
+
+/// One model's results.
+#[derive(Debug, Clone, Serialize)]
+pub struct ModelResults {
+    /// Model name from the job.
+    pub name: String,
+    /// Response column.
+    pub response: String,
+    /// Whether an intercept was fitted.
+    pub intercept: bool,
+    /// Confidence level of every interval.
+    pub confidence: f64,
+    /// Rows used.
+    pub n: usize,
+    /// Model degrees of freedom.
+    pub df_model: usize,
+    /// Residual degrees of freedom.
+    pub df_resid: usize,
+    /// Sheet rows left out for a blank in a used column.
+    pub dropped_rows: Vec<u32>,
+    /// Baseline of each categorical predictor.
+    pub baselines: Vec<BaselineNote>,
+    /// Coefficients left out as perfect combinations of earlier ones.
+    pub aliased: Vec<String>,
+    /// The fitted equation written out with its numbers.
+    pub equation: String,
+    /// Estimated coefficients.
+    pub coefficients: Vec<Coefficient>,
+    /// Overall fit statistics.
+    pub fit: FitQuality,
+    /// Sequential ANOVA, terms in model order, then the residual row.
+    pub anova: Vec<AnovaRow>,
+    /// Each term tested given all the others (joint F test per factor).
+    pub term_tests: Vec<AnovaRow>,
+    /// Per-row residuals and influence.
+    pub residuals: Vec<RowDiagnostics>,
+}
+
+/// All results of one job.
+#[derive(Debug, Clone, Serialize)]
+pub struct Results {
+    /// The job's title.
+    pub title: String,
+    /// Run stamp and input fingerprint.
+    pub run: RunStamp,
+    /// The cautions shown with the report.
+    pub cautions: Vec<String>,
+    /// One entry per model, in job order.
+    pub models: Vec<ModelResults>,
+}
+
+/// Computes every reported number for one fitted model.
+pub fn analyse(spec: &ModelSpec, design: &Design, fit: &Fit) -> ModelResults {
+    let baselines = design
+        .terms
+        .iter()
+        .filter_map(|t| match &t.kind {
+            TermKind::Categorical {
+                baseline,
+                chosen,
+                levels,
+            } => Some(BaselineNote {
+                column: t.name.clone(),
+                level: baseline.clone(),
+                reason: match chosen {
+                    Baseline::Given(_) => "given in the job".into(),
+                    Baseline::FirstSorted => "first level in sorted order".into(),
+                },
+                levels: levels.clone(),
+            }),
+            _ => None,
+        })
+        .collect();
+    ModelResults {
+        name: spec.name.clone(),
+        response: spec.response.clone(),
+        intercept: spec.intercept,
+        confidence: fit.confidence,
+        n: fit.n,
+        df_model: fit.df_model,
+        df_resid: fit.df_resid,
+        dropped_rows: design.dropped.clone(),
+        baselines,
+        aliased: fit.aliased.clone(),
+        equation: equation(&spec.response, &fit.coefficients),
+        coefficients: fit.coefficients.clone(),
+        fit: fit.quality.clone(),
+        anova: sequential_anova(design, fit),
+        term_tests: each_term_last_anova(design, fit),
+        residuals: row_diagnostics(design, fit),
+    }
+}
+
+/// Builds the job's results from its analysed models.
+pub fn collect(job: &Job, run: RunStamp, models: Vec<ModelResults>) -> Results {
+    Results {
+        title: job.title.clone(),
+        run,
+        cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
+        models,
+    }
+}
+
+/// "revenue = 12.3 + 0.0451 × floor_area − 4.2 × region[East]", numbers to
+/// four significant digits.
+pub fn equation(response: &str, coefficients: &[Coefficient]) -> String {
+    let mut out = format!("{response} =");
+    for (i, c) in coefficients.iter().enumerate() {
+        let value = significant(c.estimate.abs(), 4);
+        let sign = if c.estimate < 0.0 { "−" } else { "+" };
+        let body = if c.term == "Intercept" {
+            value
+        } else {
+            format!("{value} × {}", c.term)
+        };
+        if i == 0 {
+            let lead = if c.estimate < 0.0 { "−" } else { "" };
+            out.push_str(&format!(" {lead}{body}"));
+        } else {
+            out.push_str(&format!(" {sign} {body}"));
+        }
+    }
+    if coefficients.is_empty() {
+        out.push_str(" 0");
+    }
+    out
+}
+
+/// `x` rounded to `digits` significant digits, in plain or scientific
+/// notation, whichever reads better.
+pub fn significant(x: f64, digits: usize) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
+    }
+    let exponent = x.abs().log10().floor() as i32;
+    if !(-4..=9).contains(&exponent) {
+        return format!("{:.*e}", digits.saturating_sub(1), x);
+    }
+    let decimals = (digits as i32 - 1 - exponent).max(0) as usize;
+    format!("{x:.decimals$}")
+}
+
+/// Sheet rows as compact ranges: `[4, 9, 10, 11, 20]` → "4, 9–11, 20".
+pub fn row_ranges(rows: &[u32]) -> String {
+    let mut parts = Vec::new();
+    let mut i = 0;
+    while i < rows.len() {
+        let start = rows[i];
+        let mut end = start;
+        while i + 1 < rows.len() && rows[i + 1] == end + 1 {
+            i += 1;
+            end = rows[i];
+        }
+        parts.push(if start == end {
+            start.to_string()
+        } else {
+            format!("{start}–{end}")
+        });
+        i += 1;
+    }
+    parts.join(", ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn coef(term: &str, estimate: f64) -> Coefficient {
+        Coefficient {
+            term: term.into(),
+            estimate,
+            std_error: 1.0,
+            t_stat: None,
+            p_value: None,
+            ci_lower: 0.0,
+            ci_upper: 0.0,
+        }
+    }
+
+    #[test]
+    fn equation_writes_signs_and_terms() {
+        let eq = equation(
+            "revenue",
+            &[
+                coef("Intercept", 12.345),
+                coef("floor_area", 0.045123),
+                coef("region[East]", -4.2),
+            ],
+        );
+        assert_eq!(
+            eq,
+            "revenue = 12.35 + 0.04512 × floor_area − 4.200 × region[East]"
+        );
+        assert_eq!(equation("y", &[coef("x", -2.0)]), "y = −2.000 × x");
+    }
+
+    #[test]
+    fn significant_switches_to_scientific_for_extremes() {
+        assert_eq!(significant(3.16081871345e-15, 4), "3.161e-15");
+        assert_eq!(significant(1829.15146, 4), "1829");
+        assert_eq!(significant(0.00073206, 4), "0.0007321");
+    }
+
+    #[test]
+    fn rows_are_listed_as_ranges() {
+        assert_eq!(row_ranges(&[4, 9, 10, 11, 20]), "4, 9–11, 20");
+        assert_eq!(row_ranges(&[]), "");
+    }
+}
