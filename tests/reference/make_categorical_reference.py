@@ -41,6 +41,7 @@ import numpy as np
 import pandas as pd
 import patsy
 import scipy
+import scipy.stats
 import statsmodels
 import statsmodels.formula.api as smf
 from statsmodels.stats.anova import anova_lm
@@ -172,6 +173,54 @@ def anova_rows(table, order):
     return out
 
 
+def sequential_rows(df, order, full):
+    """Sequential ANOVA with the terms added in `order` (the job's order).
+
+    anova_lm(fit, typ=1) follows the formula engine's own term order, which
+    puts categorical terms before numeric ones; comparing the chain of nested
+    fits 1, +floor_area, +staff_hours, +region, +format instead tests each
+    term given the ones before it in the order the tool uses. F is taken
+    against the largest model's residual mean square, as anova_lm does for a
+    chain of models.
+    """
+    rhs = {
+        "floor_area": "floor_area",
+        "staff_hours": "staff_hours",
+        "region": 'C(region, Treatment("North"))',
+        "format": 'C(format, Treatment("Garden shop"))',
+    }
+    formulas = ["revenue ~ 1"]
+    for name in order:
+        formulas.append(formulas[-1] + " + " + rhs[name])
+    fits = [smf.ols(fml, data=df).fit() for fml in formulas]
+    assert abs(fits[-1].ssr - full.ssr) <= 1e-9 * full.ssr
+    table = anova_lm(*fits)
+    out = []
+    for name, (_, row) in zip(order, list(table.iterrows())[1:]):
+        out.append(
+            {
+                "term": name,
+                "df": whole(row["df_diff"]),
+                "sum_sq": f(row["ss_diff"]),
+                "mean_sq": f(row["ss_diff"] / row["df_diff"]),
+                "f_stat": f(row["F"]),
+                # anova_lm's Pr(>F) for a chain of models uses each
+                # smaller pair's residual df; the sequential test uses the
+                # full model's, so the tail is taken here with scipy.
+                "p_value": f(scipy.stats.f.sf(row["F"], row["df_diff"], full.df_resid)),
+            }
+        )
+    out.append(
+        {
+            "term": "Residual",
+            "df": whole(full.df_resid),
+            "sum_sq": f(full.ssr),
+            "mean_sq": f(full.ssr / full.df_resid),
+        }
+    )
+    return out
+
+
 def main():
     rng = np.random.default_rng(SEED)
     df = make_data(rng)
@@ -243,7 +292,7 @@ def main():
     }
 
     terms = ["floor_area", "staff_hours", "region", "format"]
-    anova1 = anova_rows(anova_lm(fit, typ=1), terms)
+    anova1 = sequential_rows(df, terms, fit)
     anova2 = anova_rows(anova_lm(fit, typ=2), terms)
 
     infl = OLSInfluence(fit)

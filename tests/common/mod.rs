@@ -1,0 +1,140 @@
+//! Helpers shared by the integration tests: a scratch folder per test, the
+//! binary, small fixture workbooks written on the fly, and JSON reading.
+#![allow(dead_code)]
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use rust_xlsxwriter::Workbook;
+
+/// A cell to put in a fixture sheet.
+#[derive(Clone, Debug)]
+pub enum Cell {
+    /// A number.
+    N(f64),
+    /// Text.
+    T(&'static str),
+    /// Nothing.
+    Blank,
+}
+
+/// A scratch folder removed when the test ends.
+pub struct Scratch {
+    dir: tempfile::TempDir,
+}
+
+impl Scratch {
+    /// A new empty folder.
+    pub fn new() -> Self {
+        Scratch {
+            dir: tempfile::tempdir().expect("create a scratch folder"),
+        }
+    }
+
+    /// A path inside the folder.
+    pub fn path(&self, name: &str) -> PathBuf {
+        self.dir.path().join(name)
+    }
+
+    /// Writes a text file and returns its path.
+    pub fn write(&self, name: &str, text: &str) -> PathBuf {
+        let path = self.path(name);
+        if let Some(parent) = path.parent() {
+            std::fs::create_dir_all(parent).expect("create folder");
+        }
+        std::fs::write(&path, text).expect("write file");
+        path
+    }
+
+    /// Writes a workbook with one sheet per `(name, rows)`; the first row
+    /// of each is its header.
+    pub fn workbook(&self, name: &str, sheets: &[(&str, Vec<Vec<Cell>>)]) -> PathBuf {
+        let path = self.path(name);
+        let mut wb = Workbook::new();
+        for (sheet_name, rows) in sheets {
+            let ws = wb.add_worksheet();
+            ws.set_name(*sheet_name).expect("sheet name");
+            for (r, row) in rows.iter().enumerate() {
+                for (c, cell) in row.iter().enumerate() {
+                    let (r, c) = (r as u32, c as u16);
+                    match cell {
+                        Cell::N(x) => {
+                            ws.write_number(r, c, *x).expect("write number");
+                        }
+                        Cell::T(s) => {
+                            ws.write_string(r, c, *s).expect("write text");
+                        }
+                        Cell::Blank => {}
+                    }
+                }
+            }
+        }
+        wb.save(&path).expect("save fixture workbook");
+        path
+    }
+
+    /// Every file under the folder, relative, sorted.
+    pub fn files(&self) -> Vec<String> {
+        let mut out = Vec::new();
+        walk(self.dir.path(), self.dir.path(), &mut out);
+        out.sort();
+        out
+    }
+}
+
+fn walk(root: &Path, dir: &Path, out: &mut Vec<String>) {
+    for entry in std::fs::read_dir(dir).expect("read folder").flatten() {
+        let p = entry.path();
+        if p.is_dir() {
+            walk(root, &p, out);
+        } else {
+            out.push(p.strip_prefix(root).unwrap().display().to_string());
+        }
+    }
+}
+
+/// Runs the sheetfit binary with `args` in `cwd`.
+pub fn sheetfit(cwd: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sheetfit"))
+        .args(args)
+        .current_dir(cwd)
+        .output()
+        .expect("run sheetfit")
+}
+
+/// The process's standard error as text.
+pub fn stderr(out: &Output) -> String {
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+/// Reads a JSON file.
+pub fn read_json(path: &Path) -> serde_json::Value {
+    let text = std::fs::read_to_string(path).expect("read JSON");
+    serde_json::from_str(&text).expect("parse JSON")
+}
+
+/// Log relative error: −log10(|estimate − certified| / |certified|), capped
+/// at 15; −log10(|estimate|) when the certified value is 0 (the convention
+/// of McCullough 1998, "Assessing the reliability of statistical software").
+pub fn lre(estimate: f64, certified: f64) -> f64 {
+    let err = if certified == 0.0 {
+        estimate.abs()
+    } else {
+        (estimate - certified).abs() / certified.abs()
+    };
+    if !err.is_finite() {
+        0.0
+    } else if err == 0.0 {
+        15.0
+    } else {
+        (-err.log10()).min(15.0)
+    }
+}
+
+/// Asserts `|a − b| ≤ tol·max(1, |b|)`, naming `what` on failure.
+pub fn assert_close(what: &str, a: f64, b: f64, tol: f64) {
+    assert!(
+        (a - b).abs() <= tol * b.abs().max(1.0),
+        "{what}: got {a}, expected {b} (tolerance {tol})"
+    );
+}
