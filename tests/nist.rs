@@ -26,8 +26,13 @@ struct Dataset {
     rows: Vec<Vec<f64>>,
 }
 
+/// The StRD files: `SHEETFIT_NIST_DIR` when set, else the project's shared
+/// reference folder beside the checkout.
 fn nist_dir() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/reference/nist-strd")
+    std::env::var_os("SHEETFIT_NIST_DIR").map_or_else(
+        || PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/reference/nist-strd"),
+        PathBuf::from,
+    )
 }
 
 /// The line range `a to b` (1-based) in a header line such as
@@ -47,8 +52,14 @@ fn number(s: &str) -> f64 {
 }
 
 fn load(name: &str) -> Dataset {
-    let text = std::fs::read_to_string(nist_dir().join(format!("{name}.dat")))
-        .expect("the NIST StRD files in ../shared/reference/nist-strd");
+    let text =
+        std::fs::read_to_string(nist_dir().join(format!("{name}.dat"))).unwrap_or_else(|e| {
+            panic!(
+                "cannot read {name}.dat in {} ({e}); set SHEETFIT_NIST_DIR to the folder \
+                 holding the NIST StRD linear-regression files",
+                nist_dir().display()
+            )
+        });
     let lines: Vec<&str> = text.lines().map(|l| l.trim_end_matches('\r')).collect();
     let certified = line_range(lines[4]);
     let data = line_range(lines[5]);

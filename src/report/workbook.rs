@@ -6,8 +6,8 @@
 //! residual table is written, never from hand-typed coordinates.
 
 use rust_xlsxwriter::{
-    Chart, ChartMarker, ChartMarkerType, ChartType, DocProperties, Format, FormatAlign, Table,
-    TableColumn, TableStyle, Workbook, Worksheet, XlsxError,
+    Chart, ChartAxisLabelPosition, ChartMarker, ChartMarkerType, ChartType, DocProperties, Format,
+    FormatAlign, Table, TableColumn, TableStyle, Workbook, Worksheet, XlsxError,
 };
 
 use crate::results::{row_ranges, ModelResults, Results};
@@ -522,7 +522,11 @@ fn charts(sheet: &mut Worksheet, results: &Results, spans: &[Span]) -> Result<()
                         .set_size(5),
                 );
             chart.title().set_name(title.as_str());
-            chart.x_axis().set_name(x_name.as_str());
+            // Labels at the foot of the plot, not on a zero line mid-chart.
+            chart
+                .x_axis()
+                .set_name(x_name.as_str())
+                .set_label_position(ChartAxisLabelPosition::Low);
             chart.y_axis().set_name(y_name.as_str());
             chart.legend().set_hidden();
             chart.set_width(560).set_height(400);
