@@ -88,6 +88,16 @@ pub enum DesignError {
         /// The levels found, quoted.
         levels: String,
     },
+    /// Every row has a blank in at least one used column.
+    #[error("model '{model}': no usable rows in {place}: every row has a blank cell in at least one of the columns {columns}")]
+    NoUsableRows {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The columns the model uses, quoted.
+        columns: String,
+    },
     /// A categorical column has a single level in the rows used.
     #[error("model '{model}': categorical column '{column}' has only one level ('{level}') in the rows used; a categorical predictor needs two or more levels")]
     OneLevel {
@@ -177,6 +187,13 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
                 && labels.iter().all(|c| c[i].is_some())
         })
         .collect();
+    if keep.is_empty() {
+        return Err(DesignError::NoUsableRows {
+            model: model.name.clone(),
+            place: table.place(),
+            columns: quoted(&model.columns().map(str::to_string).collect::<Vec<_>>()),
+        });
+    }
     let dropped = (0..table.rows.len())
         .filter(|i| keep.binary_search(i).is_err())
         .map(|i| table.rows[i])
@@ -467,6 +484,18 @@ mod tests {
             err.to_string(),
             "model 'm': baseline 'E' is not a level of column 'region' in the rows used; \
              its levels are: 'N', 'S', 'W'"
+        );
+    }
+
+    #[test]
+    fn no_usable_rows_names_the_columns() {
+        let mut t = table();
+        t.columns[1].values = vec![Value::Blank; 5];
+        let err = build(&t, &spec(&["x"], &[])).unwrap_err();
+        assert_eq!(
+            err.to_string(),
+            "model 'm': no usable rows in sheet 'records' of d.xlsx: every row has a blank \
+             cell in at least one of the columns 'y', 'x'"
         );
     }
 

@@ -95,16 +95,16 @@ impl Formats {
     }
 }
 
-/// The rows a table occupies, zero-based and inclusive; `first` is the first
-/// data row (below the header).
+/// The sheet rows (zero-based, inclusive) holding one model's block of a
+/// table, recorded while the table is written so charts can point at them.
 #[derive(Clone, Copy)]
 struct Span {
     first: u32,
     last: u32,
 }
 
-/// Writes a worksheet table with a header row at `top` and returns, per data
-/// row group, nothing: callers that need ranges compute them from `top`.
+/// Writes `rows` as a worksheet table named `name` with its header row at
+/// `top` (zero-based), sets column widths to fit and freezes the header.
 fn write_table(
     sheet: &mut Worksheet,
     formats: &Formats,
@@ -372,7 +372,7 @@ fn coefficients(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result
             rows.push(row);
         }
     }
-    write_table(sheet, f, "Coefficients", 0, &headers, &rows)
+    write_table(sheet, f, "Coefficient_table", 0, &headers, &rows)
 }
 
 fn anova(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
@@ -406,7 +406,7 @@ fn anova(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), Xl
             }
         }
     }
-    write_table(sheet, f, "ANOVA", 0, &headers, &rows)
+    write_table(sheet, f, "ANOVA_table", 0, &headers, &rows)
 }
 
 fn fit_quality(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
@@ -451,7 +451,7 @@ fn fit_quality(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<
             ]
         })
         .collect();
-    write_table(sheet, f, "FitQuality", 0, &headers, &rows)
+    write_table(sheet, f, "Fit_quality_table", 0, &headers, &rows)
 }
 
 /// Column of the fitted, residual and actual values in the residual table.
@@ -495,7 +495,7 @@ fn residuals(
             last: rows.len() as u32,
         });
     }
-    write_table(sheet, f, "Residuals", 0, &headers, &rows)?;
+    write_table(sheet, f, "Residual_table", 0, &headers, &rows)?;
     Ok(spans)
 }
 
