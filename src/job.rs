@@ -108,7 +108,10 @@ pub struct ModelFile {
 
 /// The two spellings of `categorical`.
 #[derive(Debug, Deserialize)]
-#[serde(untagged)]
+#[serde(
+    untagged,
+    expecting = "a list of column names, such as [\"region\"], or a table of baselines, such as { region = \"North\" }"
+)]
 pub enum CategoricalFile {
     /// `categorical = ["region", "format"]`
     Names(Vec<String>),
@@ -422,6 +425,17 @@ mod tests {
             "{msg}"
         );
         assert!(msg.contains("numerci"), "{msg}");
+    }
+
+    #[test]
+    fn categorical_of_the_wrong_shape_says_what_is_expected() {
+        let err = parse_str(&MINIMAL.replace(r#"numeric = ["x"]"#, r#"categorical = "region""#))
+            .unwrap_err();
+        assert!(
+            err.to_string()
+                .contains("a list of column names, such as [\"region\"]"),
+            "{err}"
+        );
     }
 
     #[test]

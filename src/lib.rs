@@ -114,6 +114,7 @@ pub fn run_job(path: &Path) -> Result<report::Written, Error> {
 /// The first [`Error`] a run would meet before writing.
 pub fn check_job(path: &Path) -> Result<String, Error> {
     let job = job::load(path)?;
+    report::check_targets(&job.output, &job.input)?;
     let table = source::read_table(&job.input, job.sheet.as_deref(), job.header_row)?;
     let mut out = String::new();
     let _ = writeln!(out, "job {}: {} model(s)", path.display(), job.models.len());

@@ -100,12 +100,15 @@ fn load(name: &str) -> Dataset {
     }
 }
 
+/// A column computed from a data row (y first), with its name.
+type Derived = (&'static str, fn(&[f64]) -> f64);
+
 /// Writes the data (plus `extra` derived columns) to a workbook, a job for
 /// `predictors`, runs it and returns the model's JSON.
 fn run(
     name: &str,
     data: &Dataset,
-    extra: &[(&'static str, fn(&[f64]) -> f64)],
+    extra: &[Derived],
     predictors: &[&str],
     intercept: bool,
 ) -> serde_json::Value {

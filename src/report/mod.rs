@@ -15,14 +15,14 @@ use crate::results::Results;
 #[derive(Debug, thiserror::Error)]
 pub enum ReportError {
     /// The report would replace the input it was computed from.
-    #[error("the report path {path} is the input file itself; choose another `output.workbook` in the job file")]
+    #[error("the output path {path} is the input file itself; choose another `output.workbook` in the job file")]
     OutputIsInput {
         /// The path given for the report.
         path: PathBuf,
     },
     /// The output path names a folder.
     #[error(
-        "the report path {path} is a folder; give a file name ending in .xlsx in `output.workbook`"
+        "the output path {path} is a folder; give a file name ending in .xlsx in `output.workbook` (the results JSON takes the same name with .json)"
     )]
     OutputIsFolder {
         /// The path given for the report.
@@ -75,16 +75,7 @@ pub fn json_path(workbook: &Path) -> PathBuf {
 /// [`ReportError`] when the path is unusable or a write fails; in that case
 /// neither file has been replaced.
 pub fn write(results: &Results, path: &Path, input: &Path) -> Result<Written, ReportError> {
-    if path.is_dir() {
-        return Err(ReportError::OutputIsFolder {
-            path: path.to_path_buf(),
-        });
-    }
-    if same_file(path, input) {
-        return Err(ReportError::OutputIsInput {
-            path: path.to_path_buf(),
-        });
-    }
+    check_targets(path, input)?;
     let json = json_path(path);
     let workbook_bytes =
         workbook::workbook_bytes(results).map_err(|source| ReportError::Workbook {
@@ -120,6 +111,23 @@ pub fn write(results: &Results, path: &Path, input: &Path) -> Result<Written, Re
         workbook: path.to_path_buf(),
         json,
     })
+}
+
+/// Checks that the report and its JSON can be written without touching
+/// `input`: neither path may be a folder or the input itself.
+///
+/// # Errors
+/// [`ReportError::OutputIsFolder`] or [`ReportError::OutputIsInput`].
+pub fn check_targets(path: &Path, input: &Path) -> Result<(), ReportError> {
+    for target in [path.to_path_buf(), json_path(path)] {
+        if target.is_dir() {
+            return Err(ReportError::OutputIsFolder { path: target });
+        }
+        if same_file(&target, input) {
+            return Err(ReportError::OutputIsInput { path: target });
+        }
+    }
+    Ok(())
 }
 
 fn stage(folder: &Path, bytes: &[u8]) -> Result<tempfile::NamedTempFile, ReportError> {

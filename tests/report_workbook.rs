@@ -1,0 +1,432 @@
+//! The report workbook read back cell by cell: its sheets, and that the
+//! numbers it holds are the numbers of the results JSON written beside it.
+
+mod common;
+
+use std::path::PathBuf;
+
+use calamine::{open_workbook_auto, Data, Range, Reader};
+use serde_json::Value;
+
+use common::{read_json, sheetfit, stderr, Cell, Scratch};
+use Cell::{Blank, N, T};
+
+/// Relative tolerance for numbers that should be stored exactly.
+const TOL: f64 = 1e-12;
+
+/// A finished run: the scratch folder (kept alive), the report and its JSON.
+struct Report {
+    _scratch: Scratch,
+    workbook: PathBuf,
+    json: Value,
+}
+
+impl Report {
+    fn sheet(&self, name: &str) -> Range<Data> {
+        let mut wb = open_workbook_auto(&self.workbook).expect("open the report workbook");
+        wb.worksheet_range(name)
+            .unwrap_or_else(|e| panic!("sheet {name}: {e}"))
+    }
+
+    fn models(&self) -> &Vec<Value> {
+        self.json["models"].as_array().expect("models array")
+    }
+}
+
+/// Twelve data rows: `sales` from `visits` and a two-level `channel`, with
+/// a blank `visits` cell in sheet row 6 so that one row is left out.
+fn fixture_rows() -> Vec<Vec<Cell>> {
+    let noise = [
+        0.3, -0.2, 0.5, -0.4, 0.1, 0.0, -0.3, 0.2, -0.1, 0.4, -0.5, 0.2,
+    ];
+    let channel = [
+        "online", "shop", "shop", "online", "shop", "online", "online", "shop", "online", "shop",
+        "shop", "online",
+    ];
+    let mut rows = vec![vec![T("sales"), T("visits"), T("channel")]];
+    for i in 0..12 {
+        let visits = 10.0 + 3.0 * i as f64 + (i % 4) as f64;
+        let shop = if channel[i] == "shop" { 4.5 } else { 0.0 };
+        let sales = 3.0 + 0.8 * visits + shop + noise[i];
+        let visits_cell = if i == 4 { Blank } else { N(visits) };
+        rows.push(vec![N(sales), visits_cell, T(channel[i])]);
+    }
+    rows
+}
+
+fn run_report() -> Report {
+    let s = Scratch::new();
+    s.workbook("sales.xlsx", &[("weeks", fixture_rows())]);
+    s.write(
+        "job.toml",
+        "title = \"Weekly sales\"\n\
+         [input]\nworkbook = \"sales.xlsx\"\nsheet = \"weeks\"\n\
+         [output]\nworkbook = \"out/report.xlsx\"\n\n\
+         [[model]]\nname = \"visits and channel\"\nresponse = \"sales\"\n\
+         numeric = [\"visits\"]\ncategorical = { channel = \"online\" }\n\n\
+         [[model]]\nname = \"channel only\"\nresponse = \"sales\"\n\
+         categorical = [\"channel\"]\nconfidence = 0.9\n",
+    );
+    let out = sheetfit(&s.path(""), &["run", "job.toml"]);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert_eq!(
+        s.files(),
+        [
+            "job.toml",
+            "out/report.json",
+            "out/report.xlsx",
+            "sales.xlsx"
+        ],
+        "files after the run"
+    );
+    let json = read_json(&s.path("out/report.json"));
+    Report {
+        workbook: s.path("out/report.xlsx"),
+        json,
+        _scratch: s,
+    }
+}
+
+/// The cell at zero-based sheet position (row, col).
+fn cell(range: &Range<Data>, row: u32, col: u32) -> &Data {
+    range.get_value((row, col)).unwrap_or(&Data::Empty)
+}
+
+fn text_at(range: &Range<Data>, row: u32, col: u32) -> String {
+    match cell(range, row, col) {
+        Data::String(s) => s.clone(),
+        other => panic!("cell ({row}, {col}) should be text, found {other:?}"),
+    }
+}
+
+/// Asserts that the cell holds a number equal to `expected` (a JSON number)
+/// to `TOL` relative; a JSON null must be an empty cell.
+fn assert_number(range: &Range<Data>, row: u32, col: u32, expected: &Value, what: &str) {
+    let found = cell(range, row, col);
+    match expected.as_f64() {
+        None => {
+            assert!(
+                expected.is_null(),
+                "{what}: JSON value {expected} is not a number"
+            );
+            assert_eq!(
+                found,
+                &Data::Empty,
+                "{what}: JSON null should be an empty cell"
+            );
+        }
+        Some(want) => match found {
+            Data::Float(got) => {
+                let err = (got - want).abs() / want.abs().max(f64::MIN_POSITIVE);
+                assert!(
+                    err <= TOL || got == &want,
+                    "{what}: cell ({row}, {col}) holds {got}, JSON has {want}"
+                );
+            }
+            other => panic!("{what}: cell ({row}, {col}) should be a number, found {other:?}"),
+        },
+    }
+}
+
+fn header(range: &Range<Data>) -> Vec<String> {
+    let width = range.end().expect("sheet not empty").1 + 1;
+    (0..width).map(|c| text_at(range, 0, c)).collect()
+}
+
+#[test]
+fn report_sheets_are_named_in_order() {
+    let report = run_report();
+    let wb = open_workbook_auto(&report.workbook).expect("open the report workbook");
+    assert_eq!(
+        wb.sheet_names(),
+        [
+            "Overview",
+            "Coefficients",
+            "ANOVA",
+            "Fit quality",
+            "Residuals",
+            "Charts"
+        ]
+    );
+}
+
+#[test]
+fn coefficients_sheet_holds_the_json_numbers() {
+    let report = run_report();
+    let sheet = report.sheet("Coefficients");
+    assert_eq!(
+        header(&sheet),
+        [
+            "Model",
+            "Term",
+            "Estimate",
+            "Standard error",
+            "t",
+            "p-value",
+            "Lower limit",
+            "Upper limit",
+            "Confidence",
+            "Note"
+        ]
+    );
+    let mut row = 1;
+    let mut terms = Vec::new();
+    for model in report.models() {
+        let name = model["name"].as_str().unwrap();
+        for c in model["coefficients"].as_array().unwrap() {
+            let term = c["term"].as_str().unwrap();
+            terms.push(format!("{name}: {term}"));
+            assert_eq!(text_at(&sheet, row, 0), name);
+            assert_eq!(text_at(&sheet, row, 1), term);
+            for (col, key) in [
+                (2, "estimate"),
+                (3, "std_error"),
+                (4, "t_stat"),
+                (5, "p_value"),
+                (6, "ci_lower"),
+                (7, "ci_upper"),
+            ] {
+                assert_number(&sheet, row, col, &c[key], &format!("{name} {term} {key}"));
+            }
+            assert_number(&sheet, row, 8, &model["confidence"], "confidence");
+            row += 1;
+        }
+    }
+    assert_eq!(
+        terms,
+        [
+            "visits and channel: Intercept",
+            "visits and channel: visits",
+            "visits and channel: channel[shop]",
+            "channel only: Intercept",
+            "channel only: channel[shop]",
+        ]
+    );
+    // Nothing below the last coefficient.
+    assert_eq!(sheet.end().unwrap().0, row - 1);
+    // The invented data has a slope of 0.8 and a shop effect of 4.5.
+    let first = &report.models()[0]["coefficients"];
+    assert!((first[1]["estimate"].as_f64().unwrap() - 0.8).abs() < 0.1);
+    assert!((first[2]["estimate"].as_f64().unwrap() - 4.5).abs() < 1.0);
+    assert_eq!(report.models()[1]["confidence"], 0.9);
+}
+
+#[test]
+fn residuals_sheet_has_one_row_per_used_row() {
+    let report = run_report();
+    let sheet = report.sheet("Residuals");
+    assert_eq!(
+        header(&sheet),
+        [
+            "Model",
+            "Sheet row",
+            "Actual",
+            "Fitted",
+            "Residual",
+            "Standardized residual",
+            "Leverage",
+            "Cook's distance"
+        ]
+    );
+    let mut row = 1;
+    for model in report.models() {
+        let name = model["name"].as_str().unwrap();
+        let residuals = model["residuals"].as_array().unwrap();
+        assert_eq!(residuals.len() as u64, model["n"].as_u64().unwrap());
+        for r in residuals {
+            assert_eq!(text_at(&sheet, row, 0), name);
+            for (col, key) in [
+                (1, "row"),
+                (2, "actual"),
+                (3, "fitted"),
+                (4, "residual"),
+                (5, "standardized_residual"),
+                (6, "leverage"),
+                (7, "cooks_distance"),
+            ] {
+                assert_number(
+                    &sheet,
+                    row,
+                    col,
+                    &r[key],
+                    &format!("{name} row {row} {key}"),
+                );
+            }
+            row += 1;
+        }
+    }
+    assert_eq!(
+        sheet.end().unwrap().0,
+        row - 1,
+        "rows below the last residual"
+    );
+
+    // Sheet row 6 has a blank `visits`: left out of the first model only.
+    let rows = |m: &Value| -> Vec<u64> {
+        m["residuals"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|r| r["row"].as_u64().unwrap())
+            .collect()
+    };
+    let all: Vec<u64> = (2..=13).collect();
+    let without_6: Vec<u64> = all.iter().copied().filter(|&r| r != 6).collect();
+    assert_eq!(rows(&report.models()[0]), without_6);
+    assert_eq!(report.models()[0]["dropped_rows"], serde_json::json!([6]));
+    assert_eq!(rows(&report.models()[1]), all);
+}
+
+#[test]
+fn overview_shows_cautions_and_fitted_equations() {
+    let report = run_report();
+    let sheet = report.sheet("Overview");
+    let texts: Vec<&str> = sheet
+        .used_cells()
+        .filter_map(|(_, _, v)| match v {
+            Data::String(s) => Some(s.as_str()),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(texts.first(), Some(&"Weekly sales"));
+
+    let cautions = report.json["cautions"].as_array().unwrap();
+    assert!(cautions.len() >= 3, "{cautions:?}");
+    for c in cautions {
+        let c = c.as_str().unwrap();
+        assert!(
+            c.contains("association") || c.contains("assume") || c.contains("judgement"),
+            "unexpected caution {c}"
+        );
+        assert!(texts.contains(&c), "caution missing from the overview: {c}");
+    }
+
+    for model in report.models() {
+        let equation = model["equation"].as_str().unwrap();
+        assert!(equation.starts_with("sales = "), "{equation}");
+        assert!(equation.contains("channel[shop]"), "{equation}");
+        let at = sheet
+            .used_cells()
+            .find(|(_, _, v)| matches!(v, Data::String(s) if s == equation))
+            .unwrap_or_else(|| panic!("equation missing from the overview: {equation}"));
+        // The model's name is beside its equation.
+        let (r, c) = (at.0 as u32, at.1 as u32);
+        let (r0, c0) = sheet.start().unwrap();
+        assert_eq!(
+            text_at(&sheet, r0 + r, c0 + c - 1),
+            model["name"].as_str().unwrap()
+        );
+    }
+    assert!(report.models()[0]["equation"]
+        .as_str()
+        .unwrap()
+        .contains("× visits"));
+}
+
+#[test]
+fn fit_quality_sheet_matches_the_json() {
+    let report = run_report();
+    let sheet = report.sheet("Fit quality");
+    assert_eq!(
+        header(&sheet)[..4],
+        ["Model", "n", "Model df", "Residual df"]
+    );
+    for (i, model) in report.models().iter().enumerate() {
+        let row = 1 + i as u32;
+        let q = &model["fit"];
+        assert_eq!(text_at(&sheet, row, 0), model["name"].as_str().unwrap());
+        assert_number(&sheet, row, 1, &model["n"], "n");
+        assert_number(&sheet, row, 2, &model["df_model"], "df_model");
+        assert_number(&sheet, row, 3, &model["df_resid"], "df_resid");
+        for (col, key) in [
+            (4, "r_squared"),
+            (5, "adj_r_squared"),
+            (6, "sigma"),
+            (7, "f_stat"),
+            (8, "f_p_value"),
+            (9, "log_likelihood"),
+            (10, "aic"),
+            (11, "bic"),
+            (12, "sse"),
+            (13, "ssr"),
+            (14, "sst"),
+        ] {
+            assert_number(&sheet, row, col, &q[key], key);
+        }
+    }
+    assert_eq!(report.models()[0]["n"], 11);
+    assert_eq!(report.models()[1]["n"], 12);
+}
+
+#[test]
+fn anova_sheet_lists_both_tables_of_every_model() {
+    let report = run_report();
+    let sheet = report.sheet("ANOVA");
+    assert_eq!(header(&sheet)[..3], ["Model", "Test", "Term"]);
+    let mut row = 1;
+    for model in report.models() {
+        for key in ["anova", "term_tests"] {
+            let table = model[key].as_array().unwrap();
+            assert!(!table.is_empty(), "{key} is empty");
+            for a in table {
+                assert_eq!(text_at(&sheet, row, 0), model["name"].as_str().unwrap());
+                assert_eq!(text_at(&sheet, row, 2), a["term"].as_str().unwrap());
+                assert_number(&sheet, row, 3, &a["df"], "df");
+                assert_number(&sheet, row, 4, &a["sum_sq"], "sum_sq");
+                assert_number(&sheet, row, 7, &a["p_value"], "p_value");
+                row += 1;
+            }
+        }
+    }
+    assert_eq!(sheet.end().unwrap().0, row - 1);
+}
+
+/// Entry names from the zip central directory of `bytes`, which stores
+/// them uncompressed.
+fn zip_entry_names(bytes: &[u8]) -> Vec<String> {
+    let u16_at = |i: usize| u16::from_le_bytes([bytes[i], bytes[i + 1]]) as usize;
+    let u32_at = |i: usize| u32::from_le_bytes(bytes[i..i + 4].try_into().unwrap()) as usize;
+    let end = bytes
+        .windows(4)
+        .rposition(|w| w == b"PK\x05\x06")
+        .expect("end of central directory record");
+    let count = u16_at(end + 10);
+    let mut at = u32_at(end + 16);
+    let mut names = Vec::with_capacity(count);
+    for _ in 0..count {
+        assert_eq!(&bytes[at..at + 4], b"PK\x01\x02", "central directory entry");
+        let name_len = u16_at(at + 28);
+        let extra_len = u16_at(at + 30);
+        let comment_len = u16_at(at + 32);
+        names.push(String::from_utf8_lossy(&bytes[at + 46..at + 46 + name_len]).into_owned());
+        at += 46 + name_len + extra_len + comment_len;
+    }
+    names
+}
+
+#[test]
+fn workbook_holds_two_chart_parts_per_model() {
+    let report = run_report();
+    let bytes = std::fs::read(&report.workbook).unwrap();
+    let names = zip_entry_names(&bytes);
+    assert!(
+        names.iter().any(|n| n == "xl/workbook.xml"),
+        "not a workbook zip: {names:?}"
+    );
+    let charts = names
+        .iter()
+        .filter(|n| n.starts_with("xl/charts/chart") && n.ends_with(".xml"))
+        .count();
+    assert!(
+        charts >= 2 * report.models().len(),
+        "{charts} chart parts for {} models: {names:?}",
+        report.models().len()
+    );
+    // The raw byte count agrees: each part is named once in its local header
+    // and once in the central directory.
+    let raw = bytes
+        .windows(b"xl/charts/chart".len())
+        .filter(|w| *w == b"xl/charts/chart")
+        .count();
+    assert_eq!(raw, 2 * charts);
+}
