@@ -58,7 +58,7 @@ fn main() {
             std::hint::black_box(beta);
         });
         let ours = best(|| {
-            std::hint::black_box(sheetfit::fit::least_squares(&x, &y));
+            std::hint::black_box(sheetfit::fit::least_squares(&x, None, &y));
         });
         println!(
             "{n:>10} {p:>4} {:>14.3} {:>14.3} {:>8.2}",

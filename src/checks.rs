@@ -62,7 +62,8 @@ pub fn each_term_last_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
             let others: Vec<usize> = (0..design.x.ncols())
                 .filter(|j| !term.columns.contains(j))
                 .collect();
-            let reduced = least_squares(&design.x.select_columns(&others), &design.y);
+            let lo = design.x_lo.as_ref().map(|l| l.select_columns(&others));
+            let reduced = least_squares(&design.x.select_columns(&others), lo.as_ref(), &design.y);
             let df = rank - reduced.kept.len();
             let sum_sq = (reduced.residuals.norm_squared() - fit.quality.sse).max(0.0);
             term_row(term, df, sum_sq, fit)
@@ -185,6 +186,7 @@ mod tests {
             name: "m".into(),
             response: "y".into(),
             numeric: vec![],
+            poly: vec![],
             categorical: vec![CategoricalSpec {
                 column: "g".into(),
                 baseline: Baseline::FirstSorted,

@@ -12,6 +12,7 @@ use std::collections::BTreeSet;
 
 use nalgebra::{DMatrix, DVector};
 
+use crate::fit::ddouble::DoubleDouble;
 use crate::job::{Baseline, CategoricalSpec, ModelSpec};
 use crate::source::{CellRef, Column, Table, Value};
 
@@ -117,6 +118,11 @@ pub enum TermKind {
     Intercept,
     /// A numeric predictor entered as it is.
     Numeric,
+    /// A numeric predictor and its powers up to `degree`.
+    Polynomial {
+        /// Highest power.
+        degree: u32,
+    },
     /// A categorical predictor: one indicator per non-baseline level.
     Categorical {
         /// The baseline level.
@@ -148,6 +154,9 @@ pub struct Design {
     pub y: DVector<f64>,
     /// Design matrix: one row per used row, one column per coefficient.
     pub x: DMatrix<f64>,
+    /// Low parts of columns formed in double-double (polynomial powers):
+    /// the design is `x + x_lo`. `None` when every column is exact.
+    pub x_lo: Option<DMatrix<f64>>,
     /// Coefficient names, one per column of `x`: `Intercept`, the numeric
     /// column's name, or `column[level]` for an indicator.
     pub names: Vec<String>,
@@ -174,6 +183,11 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .iter()
         .map(|name| ctx.numbers(ctx.column(name)?))
         .collect::<Result<Vec<_>, _>>()?;
+    let poly = model
+        .poly
+        .iter()
+        .map(|p| ctx.numbers(ctx.column(&p.column)?))
+        .collect::<Result<Vec<_>, _>>()?;
     let labels = model
         .categorical
         .iter()
@@ -183,7 +197,7 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
     let keep: Vec<usize> = (0..table.rows.len())
         .filter(|&i| {
             response[i].is_some()
-                && numeric.iter().all(|c| c[i].is_some())
+                && numeric.iter().chain(&poly).all(|c| c[i].is_some())
                 && labels.iter().all(|c| c[i].is_some())
         })
         .collect();
@@ -199,59 +213,121 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .map(|i| table.rows[i])
         .collect();
 
-    let mut names = Vec::new();
-    let mut terms = Vec::new();
-    let mut columns: Vec<Vec<f64>> = Vec::new();
-    let mut push_term = |name: &str, kind: TermKind, cols: Vec<(String, Vec<f64>)>| {
-        let start = columns.len();
-        for (n, c) in cols {
-            names.push(n);
-            columns.push(c);
-        }
-        terms.push(Term {
-            name: name.to_string(),
-            kind,
-            columns: start..columns.len(),
-        });
-    };
+    let mut parts = Assembly::default();
     if model.intercept {
-        push_term(
+        parts.push(
             "Intercept",
             TermKind::Intercept,
-            vec![("Intercept".into(), vec![1.0; keep.len()])],
+            vec![DesignColumn::exact("Intercept", vec![1.0; keep.len()])],
         );
     }
-    for (name, values) in model.numeric.iter().zip(&numeric) {
-        let col = keep
-            .iter()
+    let used = |values: &[Option<f64>]| -> Vec<f64> {
+        keep.iter()
             .map(|&i| values[i].unwrap_or(f64::NAN))
-            .collect();
-        push_term(name, TermKind::Numeric, vec![(name.clone(), col)]);
+            .collect()
+    };
+    for (name, values) in model.numeric.iter().zip(&numeric) {
+        parts.push(
+            name,
+            TermKind::Numeric,
+            vec![DesignColumn::exact(name, used(values))],
+        );
+    }
+    for (spec, values) in model.poly.iter().zip(&poly) {
+        parts.push(
+            &format!("{} (degree {})", spec.column, spec.degree),
+            TermKind::Polynomial {
+                degree: spec.degree,
+            },
+            powers(&spec.column, &used(values), spec.degree),
+        );
     }
     for (spec, values) in model.categorical.iter().zip(&labels) {
         let used: Vec<&str> = keep.iter().filter_map(|&i| values[i].as_deref()).collect();
         let (kind, indicators) = indicators(&ctx, spec, &used)?;
-        push_term(&spec.column, kind, indicators);
+        parts.push(&spec.column, kind, indicators);
     }
 
-    let y = DVector::from_iterator(
-        keep.len(),
-        keep.iter().map(|&i| response[i].unwrap_or(f64::NAN)),
-    );
-    let x = DMatrix::from_fn(keep.len(), columns.len(), |r, c| columns[c][r]);
+    let rows = keep.len();
+    let y = DVector::from_iterator(rows, keep.iter().map(|&i| response[i].unwrap_or(f64::NAN)));
+    let x = DMatrix::from_fn(rows, parts.columns.len(), |r, c| parts.columns[c].hi[r]);
+    let x_lo = parts.columns.iter().any(|c| c.lo.is_some()).then(|| {
+        DMatrix::from_fn(rows, parts.columns.len(), |r, c| {
+            parts.columns[c].lo.as_ref().map_or(0.0, |lo| lo[r])
+        })
+    });
     Ok(Design {
         response: model.response.clone(),
         y,
         x,
-        names,
-        terms,
+        x_lo,
+        names: parts.columns.into_iter().map(|c| c.name).collect(),
+        terms: parts.terms,
         intercept: model.intercept,
         rows: keep.iter().map(|&i| table.rows[i]).collect(),
         dropped,
     })
 }
 
-type Indicators = Vec<(String, Vec<f64>)>;
+/// One design-matrix column while the design is assembled.
+struct DesignColumn {
+    name: String,
+    /// The values, rounded to double precision.
+    hi: Vec<f64>,
+    /// What rounding left over, for columns formed in double-double.
+    lo: Option<Vec<f64>>,
+}
+
+impl DesignColumn {
+    fn exact(name: &str, hi: Vec<f64>) -> Self {
+        DesignColumn {
+            name: name.to_string(),
+            hi,
+            lo: None,
+        }
+    }
+}
+
+/// Terms and their columns, in model order.
+#[derive(Default)]
+struct Assembly {
+    terms: Vec<Term>,
+    columns: Vec<DesignColumn>,
+}
+
+impl Assembly {
+    fn push(&mut self, name: &str, kind: TermKind, columns: Vec<DesignColumn>) {
+        let start = self.columns.len();
+        self.columns.extend(columns);
+        self.terms.push(Term {
+            name: name.to_string(),
+            kind,
+            columns: start..self.columns.len(),
+        });
+    }
+}
+
+/// The columns x, x^2, …, x^degree, each power formed from the one before
+/// in double-double arithmetic and kept as a rounded value plus its
+/// remainder (an ill-conditioned polynomial fit such as NIST StRD Filip
+/// needs those digits).
+fn powers(column: &str, x: &[f64], degree: u32) -> Vec<DesignColumn> {
+    let mut current: Vec<DoubleDouble> = x.iter().map(|&v| DoubleDouble::from_f64(v)).collect();
+    let mut out = vec![DesignColumn::exact(column, x.to_vec())];
+    for k in 2..=degree {
+        for (c, &v) in current.iter_mut().zip(x) {
+            *c = *c * v;
+        }
+        out.push(DesignColumn {
+            name: format!("{column}^{k}"),
+            hi: current.iter().map(|d| d.hi()).collect(),
+            lo: Some(current.iter().map(|d| d.lo()).collect()),
+        });
+    }
+    out
+}
+
+type Indicators = Vec<DesignColumn>;
 
 /// Treatment coding of one factor: levels sorted, one 0/1 column per level
 /// other than the baseline.
@@ -294,7 +370,7 @@ fn indicators(
                 .iter()
                 .map(|v| f64::from(u8::from(*v == level)))
                 .collect();
-            (format!("{}[{}]", spec.column, level), col)
+            DesignColumn::exact(&format!("{}[{}]", spec.column, level), col)
         })
         .collect();
     Ok((
@@ -433,6 +509,7 @@ mod tests {
             name: "m".into(),
             response: "y".into(),
             numeric: numeric.iter().map(|s| s.to_string()).collect(),
+            poly: vec![],
             categorical: categorical
                 .iter()
                 .map(|(c, b)| CategoricalSpec {

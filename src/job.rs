@@ -96,6 +96,11 @@ pub struct ModelFile {
     /// Numeric predictor columns, each entering as one term.
     #[serde(default)]
     pub numeric: Vec<String>,
+    /// Polynomial predictors, as a table `column = degree`: the column and
+    /// its powers up to the degree, each with a coefficient, tested as one
+    /// term. Powers are formed in double-double precision.
+    #[serde(default)]
+    pub poly: IndexMap<String, u32>,
     /// Categorical predictor columns: a list of names (baseline = first
     /// level in sorted order) or a table `column = "baseline level"`.
     #[serde(default)]
@@ -158,6 +163,19 @@ pub struct CategoricalSpec {
     pub baseline: Baseline,
 }
 
+/// The highest polynomial degree accepted: beyond it the powers of any
+/// real data are collinear to working precision.
+pub const MAX_DEGREE: u32 = 12;
+
+/// A polynomial predictor: a column and its powers 1..=degree.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PolySpec {
+    /// Column name.
+    pub column: String,
+    /// Highest power, 1 to [`MAX_DEGREE`].
+    pub degree: u32,
+}
+
 /// One checked model.
 #[derive(Debug, Clone)]
 pub struct ModelSpec {
@@ -167,6 +185,8 @@ pub struct ModelSpec {
     pub response: String,
     /// Numeric predictors in job order.
     pub numeric: Vec<String>,
+    /// Polynomial predictors in job order.
+    pub poly: Vec<PolySpec>,
     /// Categorical predictors in job order.
     pub categorical: Vec<CategoricalSpec>,
     /// Whether an intercept is fitted.
@@ -181,6 +201,7 @@ impl ModelSpec {
     pub fn columns(&self) -> impl Iterator<Item = &str> {
         std::iter::once(self.response.as_str())
             .chain(self.numeric.iter().map(String::as_str))
+            .chain(self.poly.iter().map(|p| p.column.as_str()))
             .chain(self.categorical.iter().map(|c| c.column.as_str()))
     }
 }
@@ -306,10 +327,21 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                 })
                 .collect(),
         };
+        let mut poly = Vec::with_capacity(m.poly.len());
+        for (column, degree) in m.poly {
+            if !(1..=MAX_DEGREE).contains(&degree) {
+                return Err(invalid(
+                    &key(&format!("poly.{column}")),
+                    format!("degree {degree} is not between 1 and {MAX_DEGREE}"),
+                ));
+            }
+            poly.push(PolySpec { column, degree });
+        }
         let spec = ModelSpec {
             name,
             response: m.response,
             numeric: m.numeric,
+            poly,
             categorical,
             intercept: m.intercept.unwrap_or(true),
             confidence,
@@ -347,6 +379,7 @@ fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)> {
         .numeric
         .iter()
         .map(|c| ("numeric", c))
+        .chain(spec.poly.iter().map(|p| ("poly", &p.column)))
         .chain(spec.categorical.iter().map(|c| ("categorical", &c.column)))
     {
         if *col == spec.response {
@@ -362,7 +395,11 @@ fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)> {
             ));
         }
     }
-    if spec.numeric.is_empty() && spec.categorical.is_empty() && !spec.intercept {
+    if spec.numeric.is_empty()
+        && spec.poly.is_empty()
+        && spec.categorical.is_empty()
+        && !spec.intercept
+    {
         return Err((
             "intercept",
             "the model has no predictors and no intercept; add a predictor".into(),
@@ -436,6 +473,26 @@ mod tests {
                 .contains("a list of column names, such as [\"region\"]"),
             "{err}"
         );
+    }
+
+    #[test]
+    fn poly_takes_a_degree_per_column() {
+        let job = parse_str(&MINIMAL.replace(r#"numeric = ["x"]"#, "poly = { x = 10 }")).unwrap();
+        assert_eq!(
+            job.models[0].poly,
+            vec![PolySpec {
+                column: "x".into(),
+                degree: 10
+            }]
+        );
+        let err =
+            parse_str(&MINIMAL.replace(r#"numeric = ["x"]"#, "poly = { x = 0 }")).unwrap_err();
+        assert!(
+            err.to_string().contains("model[1].poly.x`: degree 0"),
+            "{err}"
+        );
+        let err = parse_str(&MINIMAL.replace(r#"["x"]"#, "[\"x\"]\npoly = { x = 2 }")).unwrap_err();
+        assert!(err.to_string().contains("'x' is listed twice"), "{err}");
     }
 
     #[test]

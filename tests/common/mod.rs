@@ -14,6 +14,8 @@ pub enum Cell {
     N(f64),
     /// Text.
     T(&'static str),
+    /// Owned text.
+    S(String),
     /// Nothing.
     Blank,
 }
@@ -63,6 +65,9 @@ impl Scratch {
                         }
                         Cell::T(s) => {
                             ws.write_string(r, c, *s).expect("write text");
+                        }
+                        Cell::S(s) => {
+                            ws.write_string(r, c, s).expect("write text");
                         }
                         Cell::Blank => {}
                     }
