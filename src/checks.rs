@@ -1,11 +1,11 @@
-//! Tests and diagnostics computed from a fitted model: the ANOVA tables and
-//! per-row influence measures.
+//! Tests and diagnostics computed from a fitted model: the ANOVA tables,
+//! per-row influence measures and the model checks.
 //!
 //! Every function here reads a [`Fit`] (and its [`Design`]) and returns new
 //! values; nothing is stored back into the fit.
 
 use crate::design::{Design, Term, TermKind};
-use crate::fit::{f_sf, least_squares, Fit};
+use crate::fit::{f_sf, least_squares, Fit, Precision, EXTENDED_ABOVE};
 
 /// One row of an ANOVA table: a term's sum of squares and its F test
 /// against the full model's residual mean square.
@@ -100,6 +100,60 @@ fn with_residual(mut rows: Vec<AnovaRow>, fit: &Fit) -> Vec<AnovaRow> {
         p_value: None,
     });
     rows
+}
+
+/// The outcome of one model check, in numbers and in words.
+#[derive(Debug, Clone, serde::Serialize)]
+pub struct Check {
+    /// What is checked, e.g. `condition number`.
+    pub name: String,
+    /// The statistic the check rests on.
+    pub statistic: Option<f64>,
+    /// Its p-value, for checks that are tests.
+    pub p_value: Option<f64>,
+    /// The rule applied, with its source.
+    pub rule: String,
+    /// Whether the rule flags a problem.
+    pub flagged: bool,
+    /// What the result means, in plain words.
+    pub verdict: String,
+}
+
+/// Condition number above which collinearity is worth a look, and above
+/// which it is strong (Belsley, Kuh & Welsch 1980, *Regression
+/// Diagnostics*, ch. 3; rules of thumb for unit-length-scaled columns).
+pub const CONDITION_MODERATE: f64 = 30.0;
+/// See [`CONDITION_MODERATE`].
+pub const CONDITION_STRONG: f64 = 1000.0;
+
+/// Judges the condition number of the scaled design (see
+/// [`crate::fit::FitQuality::condition_number`]).
+pub fn condition_check(fit: &Fit) -> Check {
+    let kappa = fit.quality.condition_number;
+    let (flagged, mut verdict) = if kappa > CONDITION_STRONG {
+        (true, "strong collinearity: some predictors are nearly combinations of others, so their separate coefficients are unstable and their standard errors large; consider dropping or combining predictors".to_string())
+    } else if kappa > CONDITION_MODERATE {
+        (true, "moderate collinearity: predictors overlap; read the separate coefficients of related predictors with care".to_string())
+    } else {
+        (false, "no sign of collinearity".to_string())
+    };
+    if fit.quality.precision == Precision::DoubleDouble {
+        verdict.push_str(&format!(
+            "; solved in double-double arithmetic (condition number above {}) so the reported digits hold",
+            EXTENDED_ABOVE
+        ));
+    }
+    Check {
+        name: "condition number".into(),
+        statistic: Some(kappa),
+        p_value: None,
+        rule: format!(
+            "above {CONDITION_MODERATE}: moderate, above {CONDITION_STRONG}: strong collinearity \
+             (Belsley, Kuh & Welsch 1980; rule of thumb, columns scaled to unit length)"
+        ),
+        flagged,
+        verdict,
+    }
 }
 
 /// Per-row values for the residual sheet.
@@ -211,6 +265,21 @@ mod tests {
             assert!((table[0].f_stat.unwrap() - 21.0).abs() < 1e-12);
             assert_eq!(table[1].df, 3);
             assert!((table[1].sum_sq - 6.0).abs() < 1e-12);
+        }
+    }
+
+    #[test]
+    fn condition_check_applies_the_thresholds() {
+        let (_, mut fit) = one_way();
+        for (kappa, flagged, words) in [
+            (5.0, false, "no sign"),
+            (50.0, true, "moderate"),
+            (5e3, true, "strong"),
+        ] {
+            fit.quality.condition_number = kappa;
+            let check = condition_check(&fit);
+            assert_eq!(check.flagged, flagged, "{kappa}");
+            assert!(check.verdict.starts_with(words), "{}", check.verdict);
         }
     }
 

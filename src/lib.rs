@@ -158,9 +158,12 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
         }
         let _ = writeln!(
             out,
-            "  would estimate {} coefficients with {} residual degrees of freedom",
+            "  would estimate {} coefficients with {} residual degrees of freedom; \
+             condition number {}, {} arithmetic",
             fit.coefficients.len(),
-            fit.df_resid
+            fit.df_resid,
+            results::significant(fit.quality.condition_number, 4),
+            fit.quality.precision.label()
         );
     }
     Ok(out)

@@ -8,7 +8,8 @@
 use serde::Serialize;
 
 use crate::checks::{
-    each_term_last_anova, row_diagnostics, sequential_anova, AnovaRow, RowDiagnostics,
+    condition_check, each_term_last_anova, row_diagnostics, sequential_anova, AnovaRow, Check,
+    RowDiagnostics,
 };
 use crate::design::{Design, TermKind};
 use crate::fit::{Coefficient, Fit, FitQuality};
@@ -88,6 +89,8 @@ pub struct ModelResults {
     pub anova: Vec<AnovaRow>,
     /// Each term tested given all the others (joint F test per factor).
     pub term_tests: Vec<AnovaRow>,
+    /// Model checks, each with its rule and verdict.
+    pub checks: Vec<Check>,
     /// Per-row residuals and influence.
     pub residuals: Vec<RowDiagnostics>,
 }
@@ -143,6 +146,7 @@ pub fn analyse(spec: &ModelSpec, design: &Design, fit: &Fit) -> ModelResults {
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),
+        checks: vec![condition_check(fit)],
         residuals: row_diagnostics(design, fit),
     }
 }

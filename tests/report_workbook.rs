@@ -144,6 +144,7 @@ fn report_sheets_are_named_in_order() {
             "Coefficients",
             "ANOVA",
             "Fit quality",
+            "Checks",
             "Residuals",
             "Charts"
         ]

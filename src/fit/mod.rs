@@ -13,7 +13,7 @@ pub mod ddouble;
 pub mod qr;
 
 use nalgebra::{DMatrix, DVector};
-use statrs::distribution::{ContinuousCDF, FisherSnedecor, StudentsT};
+use statrs::distribution::{Continuous, ContinuousCDF, FisherSnedecor, Normal, StudentsT};
 
 use self::ddouble::DoubleDouble;
 use crate::design::Design;
@@ -312,15 +312,36 @@ pub fn f_sf(f: f64, d1: f64, d2: f64) -> Option<f64> {
     Some(dist.sf(f.max(0.0)))
 }
 
+/// Degrees of freedom from which the t quantile comes from its asymptotic
+/// expansion about the normal quantile rather than from statrs.
+pub const T_EXPANSION_FROM: f64 = 1e4;
+
 /// Quantile of Student's t with `df` degrees of freedom at probability
-/// `prob` (0.5 < prob < 1). statrs's inverse loses digits for very large
-/// df, so the result is polished by Newton steps on the survival function.
+/// `prob` (0.5 < prob < 1).
+///
+/// Up to [`T_EXPANSION_FROM`] degrees of freedom: statrs's inverse,
+/// polished by Newton steps on the survival function. Beyond it, where
+/// statrs loses digits (its t survival function itself degrades near 10⁷
+/// degrees of freedom), the Cornish-Fisher expansion of t in powers of 1/ν
+/// about the normal quantile z (Abramowitz & Stegun 1964, formula 26.7.5),
+/// whose terms past 1/ν⁴ are below double precision there.
 pub fn t_quantile(prob: f64, df: f64) -> f64 {
+    if df >= T_EXPANSION_FROM {
+        let Ok(normal) = Normal::new(0.0, 1.0) else {
+            return f64::NAN;
+        };
+        let z = normal.inverse_cdf(prob);
+        let z2 = z * z;
+        let g1 = (z2 + 1.0) * z / 4.0;
+        let g2 = ((5.0 * z2 + 16.0) * z2 + 3.0) * z / 96.0;
+        let g3 = (((3.0 * z2 + 19.0) * z2 + 17.0) * z2 - 15.0) * z / 384.0;
+        let g4 = ((((79.0 * z2 + 776.0) * z2 + 1482.0) * z2 - 1920.0) * z2 - 945.0) * z / 92160.0;
+        return z + (g1 + (g2 + (g3 + g4 / df) / df) / df) / df;
+    }
     let Ok(dist) = StudentsT::new(0.0, 1.0, df) else {
         return f64::NAN;
     };
     let mut t = dist.inverse_cdf(prob);
-    use statrs::distribution::Continuous;
     for _ in 0..3 {
         let step = (dist.sf(t) - (1.0 - prob)) / dist.pdf(t);
         if !step.is_finite() {

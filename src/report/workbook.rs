@@ -13,11 +13,12 @@ use rust_xlsxwriter::{
 use crate::results::{row_ranges, ModelResults, Results};
 
 /// Sheet names, in the order they appear.
-pub const SHEETS: [&str; 6] = [
+pub const SHEETS: [&str; 7] = [
     "Overview",
     "Coefficients",
     "ANOVA",
     "Fit quality",
+    "Checks",
     "Residuals",
     "Charts",
 ];
@@ -183,13 +184,18 @@ pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
         &formats,
         results,
     )?;
-    let spans = residuals(
+    checks(
         workbook.add_worksheet().set_name(SHEETS[4])?,
         &formats,
         results,
     )?;
-    charts(
+    let spans = residuals(
         workbook.add_worksheet().set_name(SHEETS[5])?,
+        &formats,
+        results,
+    )?;
+    charts(
+        workbook.add_worksheet().set_name(SHEETS[6])?,
         results,
         &spans,
     )?;
@@ -210,7 +216,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
         sheet.write_string_with_format(r, 1 + j as u16, &m.name, &f.bold)?;
     }
     type Row = (&'static str, fn(&ModelResults) -> Cell);
-    let rows: [Row; 14] = [
+    let rows: [Row; 16] = [
         ("Response", |m| text(&m.response)),
         ("Rows used (n)", |m| num(m.n as f64, Style::Count)),
         ("Rows left out (blank cells)", |m| {
@@ -235,6 +241,15 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
         ("AIC (lower is better)", |m| num(m.fit.aic, Style::Value)),
         ("BIC (lower is better)", |m| num(m.fit.bic, Style::Value)),
         ("Confidence level", |m| num(m.confidence, Style::Ratio)),
+        ("Condition number", |m| {
+            num(m.fit.condition_number, Style::Value)
+        }),
+        ("Checks flagged (see Checks)", |m| {
+            num(
+                m.checks.iter().filter(|c| c.flagged).count() as f64,
+                Style::Count,
+            )
+        }),
     ];
     for (label, value) in rows {
         r += 1;
@@ -426,6 +441,8 @@ fn fit_quality(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<
         "Residual sum of squares",
         "Regression sum of squares",
         "Total sum of squares",
+        "Condition number",
+        "Arithmetic",
     ];
     let rows: Vec<Vec<Cell>> = results
         .models
@@ -448,10 +465,42 @@ fn fit_quality(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<
                 num(q.sse, Style::Value),
                 num(q.ssr, Style::Value),
                 num(q.sst, Style::Value),
+                num(q.condition_number, Style::Value),
+                text(q.precision.label()),
             ]
         })
         .collect();
     write_table(sheet, f, "Fit_quality_table", 0, &headers, &rows)
+}
+
+fn checks(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
+    let headers = [
+        "Model",
+        "Check",
+        "Statistic",
+        "p-value",
+        "Flagged",
+        "Verdict",
+        "Rule",
+    ];
+    let rows: Vec<Vec<Cell>> = results
+        .models
+        .iter()
+        .flat_map(|m| {
+            m.checks.iter().map(move |c| {
+                vec![
+                    text(&m.name),
+                    text(&c.name),
+                    opt(c.statistic, Style::Value),
+                    opt(c.p_value, Style::PValue),
+                    text(if c.flagged { "yes" } else { "no" }),
+                    text(&c.verdict),
+                    text(&c.rule),
+                ]
+            })
+        })
+        .collect();
+    write_table(sheet, f, "Check_table", 0, &headers, &rows)
 }
 
 /// Column of the fitted, residual and actual values in the residual table.
@@ -500,7 +549,7 @@ fn residuals(
 }
 
 fn charts(sheet: &mut Worksheet, results: &Results, spans: &[Span]) -> Result<(), XlsxError> {
-    let residual_sheet = SHEETS[4];
+    let residual_sheet = SHEETS[5];
     for (k, (m, span)) in results.models.iter().zip(spans).enumerate() {
         let top = k as u32 * 22;
         let fitted = (
