@@ -11,10 +11,17 @@
 //! standard deviation and R², for all eleven datasets. Polynomial models
 //! are stated with the job file's `poly` key, so their powers are formed by
 //! the tool itself.
+//!
+//! The condition number of each design is checked too, against
+//! tests/fixtures/nist-condition.json: singular values computed with mpmath
+//! at 50 digits from the decimal text of the data by
+//! tests/reference/make_condition_reference.py (mpmath version recorded in
+//! the fixture's `source` field).
 
 mod common;
 
 use std::path::PathBuf;
+use std::sync::OnceLock;
 
 use common::{lre, read_json, sheetfit, Cell, Scratch};
 
@@ -104,6 +111,26 @@ fn load(name: &str) -> Dataset {
     }
 }
 
+/// The reference condition number of dataset `name`, from the fixture
+/// tests/fixtures/nist-condition.json (read once per test run).
+fn reference_condition_number(name: &str) -> f64 {
+    static FIXTURE: OnceLock<serde_json::Value> = OnceLock::new();
+    let fixture = FIXTURE.get_or_init(|| {
+        read_json(
+            &PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/nist-condition.json"),
+        )
+    });
+    fixture["condition_numbers"][name]
+        .as_f64()
+        .unwrap_or_else(|| panic!("no condition number for {name} in nist-condition.json"))
+}
+
+/// Relative tolerance on the condition number. The tool computes it from
+/// its R factor in double precision, which determines the smallest singular
+/// value only to about eps·κ relative; Filip's κ ≈ 5e9 leaves about 6
+/// correct digits.
+const CONDITION_TOL: f64 = 1e-6;
+
 /// Writes the data to a workbook and a job whose model is `terms` (TOML
 /// lines), runs it and returns the model's JSON.
 fn run(name: &str, data: &Dataset, terms: &str) -> serde_json::Value {
@@ -179,6 +206,22 @@ fn assert_certified(name: &str, data: &Dataset, model: &serde_json::Value) -> f6
         "R-squared".into(),
         model["fit"]["r_squared"].as_f64().unwrap(),
         data.r_squared,
+    );
+    // Source: mpmath at 50 digits (tests/fixtures/nist-condition.json, made
+    // by tests/reference/make_condition_reference.py).
+    let kappa = model["fit"]["condition_number"]
+        .as_f64()
+        .unwrap_or_else(|| panic!("{name}: no condition number in {}", model["fit"]));
+    let reference = reference_condition_number(name);
+    let error = ((kappa - reference) / reference).abs();
+    println!(
+        "{name:<10} condition number       got {kappa:>24.15e} reference {reference:>24.15e} \
+         relative error {error:.1e}"
+    );
+    assert!(
+        error <= CONDITION_TOL,
+        "{name} condition number: got {kappa}, reference {reference}, relative error \
+         {error:.2e} > {CONDITION_TOL:e}"
     );
     println!(
         "{name:<10} minimum LRE {worst:.1} (condition number {:.2e}, {} precision)",
