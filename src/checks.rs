@@ -161,6 +161,10 @@ pub fn condition_check(fit: &Fit) -> Check {
 pub struct RowDiagnostics {
     /// Sheet row of the observation, counted from 1.
     pub row: u32,
+    /// Period label, when the model has a date column.
+    pub period: Option<String>,
+    /// Trend index of the period.
+    pub index: Option<i64>,
     /// Observed response.
     pub actual: f64,
     /// Fitted value.
@@ -192,8 +196,11 @@ pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
             let h = fit.solution.leverage[i];
             let standardized =
                 (s > 0.0 && h < 1.0 - 1e-12).then(|| residual / (s * (1.0 - h).sqrt()));
+            let period = design.timing.as_ref().map(|t| t.periods[i]);
             RowDiagnostics {
                 row,
+                period: period.map(|p| p.to_string()),
+                index: period.zip(design.timing.as_ref()).map(|(p, t)| t.index(p)),
                 actual: design.y[i],
                 fitted: fit.fitted[i],
                 residual,
@@ -247,6 +254,13 @@ mod tests {
             }],
             intercept: true,
             confidence: 0.95,
+            trend: None,
+            season: None,
+            frequency: None,
+            log_response: false,
+            backtest: None,
+            backtest_rolling: false,
+            forecast: None,
         };
         let design = build(&table, &spec).unwrap();
         let fit = crate::fit::fit("m", &design, 0.95).unwrap();

@@ -14,6 +14,8 @@ use std::path::{Path, PathBuf};
 use indexmap::IndexMap;
 use serde::Deserialize;
 
+use crate::period::{Frequency, SeasonBy};
+
 /// The confidence level used for intervals when a model does not set one.
 pub const DEFAULT_CONFIDENCE: f64 = 0.95;
 
@@ -109,6 +111,50 @@ pub struct ModelFile {
     pub intercept: Option<bool>,
     /// Confidence level for intervals, strictly between 0 and 1; default 0.95.
     pub confidence: Option<f64>,
+    /// A date column: the model gains a `trend` term, the period index
+    /// 1, 2, … counted in periods from the first one; rows are sorted by it.
+    pub trend: Option<String>,
+    /// Seasonal indicators from a date column.
+    pub season: Option<SeasonFile>,
+    /// The period of the date column: day, week, month, quarter or year;
+    /// told from the data when absent.
+    pub frequency: Option<String>,
+    /// `"log"` to fit the natural log of the response.
+    pub transform: Option<String>,
+    /// Refit without the last K periods and forecast them.
+    pub backtest: Option<u32>,
+    /// With `backtest`: also refit at each of the last K periods in turn and
+    /// forecast one period ahead (rolling origin).
+    pub backtest_rolling: Option<bool>,
+    /// Forecast rows for the periods after the data.
+    pub forecast: Option<ForecastFile>,
+}
+
+/// The `season` table of a model.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SeasonFile {
+    /// The date column seasons are read from.
+    pub column: String,
+    /// `month`, `quarter` or `weekday`.
+    pub by: String,
+    /// The baseline season, by label (`"Jan"`, `"Q1"`, `"Mon"`) or number
+    /// (1 = the first); default the first.
+    pub baseline: Option<toml::Value>,
+}
+
+/// The `[model.forecast]` table.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ForecastFile {
+    /// Forecast this many periods after the last one in the data.
+    pub horizon: Option<u32>,
+    /// Read the forecast rows (date column and predictors) from this sheet
+    /// of the input workbook instead.
+    pub plan_sheet: Option<String>,
+    /// With `horizon`: the value of each predictor in the forecast rows.
+    #[serde(default)]
+    pub hold: IndexMap<String, toml::Value>,
 }
 
 /// The two spellings of `categorical`.
@@ -163,6 +209,45 @@ pub struct CategoricalSpec {
     pub baseline: Baseline,
 }
 
+/// Seasonal indicators of a model.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SeasonSpec {
+    /// The date column.
+    pub column: String,
+    /// What seasons are counted by.
+    pub by: SeasonBy,
+    /// The baseline season, counted from 1.
+    pub baseline: u32,
+    /// Whether the job named the baseline.
+    pub baseline_given: bool,
+}
+
+/// A value held fixed in the forecast rows.
+#[derive(Debug, Clone, PartialEq)]
+pub enum HoldValue {
+    /// A number, for a numeric or polynomial predictor.
+    Number(f64),
+    /// A level, for a categorical predictor.
+    Level(String),
+}
+
+/// Where forecast rows come from.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ForecastSpec {
+    /// The next `horizon` periods, other predictors held at `hold`.
+    Horizon {
+        /// Number of periods.
+        horizon: u32,
+        /// Predictor values, by column.
+        hold: IndexMap<String, HoldValue>,
+    },
+    /// Rows of a sheet of the input workbook.
+    Plan {
+        /// The sheet name.
+        sheet: String,
+    },
+}
+
 /// The highest polynomial degree accepted: beyond it the powers of any
 /// real data are collinear to working precision.
 pub const MAX_DEGREE: u32 = 12;
@@ -193,9 +278,31 @@ pub struct ModelSpec {
     pub intercept: bool,
     /// Confidence level for intervals.
     pub confidence: f64,
+    /// Date column of the trend term.
+    pub trend: Option<String>,
+    /// Seasonal indicators.
+    pub season: Option<SeasonSpec>,
+    /// The period of the date column, when the job sets it.
+    pub frequency: Option<Frequency>,
+    /// Whether the response is fitted on the natural-log scale.
+    pub log_response: bool,
+    /// Back-test: number of final periods held out.
+    pub backtest: Option<u32>,
+    /// Back-test also from a rolling origin.
+    pub backtest_rolling: bool,
+    /// Forecast rows.
+    pub forecast: Option<ForecastSpec>,
 }
 
 impl ModelSpec {
+    /// The date column that orders the rows and counts periods: the trend
+    /// column, else the season column.
+    pub fn date_column(&self) -> Option<&str> {
+        self.trend
+            .as_deref()
+            .or(self.season.as_ref().map(|s| s.column.as_str()))
+    }
+
     /// Every column the model reads: the response first, then predictors in
     /// job order.
     pub fn columns(&self) -> impl Iterator<Item = &str> {
@@ -337,6 +444,37 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             }
             poly.push(PolySpec { column, degree });
         }
+        let season = m
+            .season
+            .map(|s| season_spec(s).map_err(|(k, msg)| invalid(&key(&format!("season.{k}")), msg)))
+            .transpose()?;
+        let frequency = m
+            .frequency
+            .map(|f| {
+                Frequency::parse(&f).ok_or_else(|| {
+                    invalid(
+                        &key("frequency"),
+                        format!("'{f}' is not a frequency; use day, week, month, quarter or year"),
+                    )
+                })
+            })
+            .transpose()?;
+        let log_response = match m.transform.as_deref() {
+            None => false,
+            Some("log") => true,
+            Some(other) => {
+                return Err(invalid(
+                    &key("transform"),
+                    format!("'{other}' is not a transform; the one available is \"log\""),
+                ))
+            }
+        };
+        let forecast = m
+            .forecast
+            .map(|f| {
+                forecast_spec(f).map_err(|(k, msg)| invalid(&key(&format!("forecast.{k}")), msg))
+            })
+            .transpose()?;
         let spec = ModelSpec {
             name,
             response: m.response,
@@ -345,6 +483,13 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             categorical,
             intercept: m.intercept.unwrap_or(true),
             confidence,
+            trend: m.trend,
+            season,
+            frequency,
+            log_response,
+            backtest: m.backtest,
+            backtest_rolling: m.backtest_rolling.unwrap_or(false),
+            forecast,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);
@@ -365,6 +510,85 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         output,
         models,
     })
+}
+
+fn season_spec(s: SeasonFile) -> Result<SeasonSpec, (&'static str, String)> {
+    let by = SeasonBy::parse(&s.by).ok_or_else(|| {
+        (
+            "by",
+            format!("'{}' is not a season; use month, quarter or weekday", s.by),
+        )
+    })?;
+    let labels = by.labels().join(", ");
+    let baseline = match &s.baseline {
+        None => 1,
+        Some(v) => {
+            let text = match v {
+                toml::Value::String(t) => t.clone(),
+                toml::Value::Integer(i) => i.to_string(),
+                other => other.to_string(),
+            };
+            by.season_of(&text).ok_or_else(|| {
+                (
+                    "baseline",
+                    format!(
+                        "'{text}' is not a {} season; use one of {labels} or its number",
+                        by.name()
+                    ),
+                )
+            })?
+        }
+    };
+    Ok(SeasonSpec {
+        column: s.column,
+        by,
+        baseline,
+        baseline_given: s.baseline.is_some(),
+    })
+}
+
+fn forecast_spec(f: ForecastFile) -> Result<ForecastSpec, (&'static str, String)> {
+    match (f.horizon, f.plan_sheet) {
+        (Some(_), Some(_)) => Err((
+            "plan_sheet",
+            "give either `horizon` (with `hold`) or `plan_sheet`, not both".into(),
+        )),
+        (None, None) => Err((
+            "horizon",
+            "is missing; give `horizon` (periods after the data, with `hold` values) or `plan_sheet`"
+                .into(),
+        )),
+        (None, Some(sheet)) => {
+            if !f.hold.is_empty() {
+                return Err((
+                    "hold",
+                    "is used with `horizon`; with `plan_sheet` the sheet gives the predictor values"
+                        .into(),
+                ));
+            }
+            Ok(ForecastSpec::Plan { sheet })
+        }
+        (Some(0), None) => Err(("horizon", "must be at least 1".into())),
+        (Some(horizon), None) => {
+            let mut hold = IndexMap::new();
+            for (column, value) in f.hold {
+                let v = match value {
+                    toml::Value::Integer(i) => HoldValue::Number(i as f64),
+                    toml::Value::Float(x) => HoldValue::Number(x),
+                    toml::Value::String(t) => HoldValue::Level(t),
+                    toml::Value::Boolean(b) => HoldValue::Number(f64::from(u8::from(b))),
+                    other => {
+                        return Err((
+                            "hold",
+                            format!("the value for '{column}' ({other}) must be a number or a level in quotes"),
+                        ))
+                    }
+                };
+                hold.insert(column, v);
+            }
+            Ok(ForecastSpec::Horizon { horizon, hold })
+        }
+    }
 }
 
 /// Each column plays one role in a model; a model needs a predictor or an
@@ -395,9 +619,67 @@ fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)> {
             ));
         }
     }
+    let time: Vec<&str> = spec
+        .trend
+        .iter()
+        .map(String::as_str)
+        .chain(spec.season.iter().map(|s| s.column.as_str()))
+        .collect();
+    if let [trend, season] = time[..] {
+        if trend != season {
+            return Err((
+                "season",
+                format!("the season column '{season}' differs from the trend column '{trend}'; read both from one date column"),
+            ));
+        }
+    }
+    if let Some(&date) = time.first() {
+        if seen.contains(date) {
+            return Err((
+                if spec.trend.is_some() { "trend" } else { "season" },
+                format!("'{date}' is already the response or a predictor; the date column plays no other role"),
+            ));
+        }
+    }
+    if time.is_empty() {
+        if spec.backtest.is_some() {
+            return Err((
+                "backtest",
+                "needs periods: add `trend` or `season` with the date column".into(),
+            ));
+        }
+        if matches!(spec.forecast, Some(ForecastSpec::Horizon { .. })) {
+            return Err((
+                "forecast.horizon",
+                "needs periods to advance: add `trend` or `season` with the date column, or use `plan_sheet`".into(),
+            ));
+        }
+    }
+    if spec.backtest == Some(0) {
+        return Err(("backtest", "must be at least 1 period".into()));
+    }
+    if let Some(ForecastSpec::Horizon { hold, .. }) = &spec.forecast {
+        let predictors: Vec<&str> = spec.columns().skip(1).collect();
+        if let Some(missing) = predictors.iter().find(|c| !hold.contains_key(**c)) {
+            return Err((
+                "forecast.hold",
+                format!("has no value for the predictor '{missing}'; give every predictor a value, e.g. hold = {{ {missing} = ... }}"),
+            ));
+        }
+        if let Some(extra) = hold.keys().find(|k| !predictors.contains(&k.as_str())) {
+            return Err((
+                "forecast.hold",
+                format!(
+                    "'{extra}' is not a predictor of this model; the predictors are: {}",
+                    predictors.join(", ")
+                ),
+            ));
+        }
+    }
     if spec.numeric.is_empty()
         && spec.poly.is_empty()
         && spec.categorical.is_empty()
+        && time.is_empty()
         && !spec.intercept
     {
         return Err((

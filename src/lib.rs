@@ -11,7 +11,9 @@
 pub mod checks;
 pub mod design;
 pub mod fit;
+pub mod forecast;
 pub mod job;
+pub mod period;
 pub mod report;
 pub mod results;
 pub mod source;
@@ -40,6 +42,9 @@ pub enum Error {
     /// A model could not be fitted.
     #[error(transparent)]
     Fit(#[from] fit::FitError),
+    /// A forecast or back-test failed.
+    #[error(transparent)]
+    Forecast(#[from] forecast::ForecastError),
     /// The report could not be written.
     #[error(transparent)]
     Report(#[from] report::ReportError),
@@ -81,7 +86,15 @@ pub fn analyse_job(job: &Job) -> Result<Results, Error> {
     for spec in &job.models {
         let design = design::build(&table, spec)?;
         let fit = fit::fit(&spec.name, &design, spec.confidence)?;
-        models.push(analyse(spec, &design, &fit));
+        let plan = match &spec.forecast {
+            Some(job::ForecastSpec::Plan { sheet }) => {
+                Some(source::read_table(&job.input, Some(sheet), job.header_row)?)
+            }
+            _ => None,
+        };
+        let rows = forecast::forecast(spec, &design, &fit, plan.as_ref())?;
+        let backtest = forecast::backtest(spec, &design, &fit)?;
+        models.push(analyse(spec, &design, &fit, rows, backtest));
     }
     let run = RunStamp {
         tool: format!("sheetfit {}", env!("CARGO_PKG_VERSION")),

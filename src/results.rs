@@ -13,7 +13,9 @@ use crate::checks::{
 };
 use crate::design::{Design, TermKind};
 use crate::fit::{Coefficient, Fit, FitQuality};
+use crate::forecast::{Backtest, ForecastRow};
 use crate::job::{Baseline, Job, ModelSpec};
+use crate::period::Frequency;
 
 /// The cautions printed on the overview sheet and carried in the JSON.
 pub const CAUTIONS: [&str; 3] = [
@@ -56,6 +58,25 @@ pub struct BaselineNote {
     pub levels: Vec<String>,
 }
 
+/// The periods of a model with a date column.
+#[derive(Debug, Clone, Serialize)]
+pub struct TimingNote {
+    /// The date column.
+    pub column: String,
+    /// The frequency.
+    pub frequency: Frequency,
+    /// Whether the frequency was told from the data (else the job set it).
+    pub detected: bool,
+    /// First period in the data (trend index 1).
+    pub first: String,
+    /// Last period in the data.
+    pub last: String,
+    /// Number of distinct periods.
+    pub periods: usize,
+    /// Whether several rows share a period (panel data).
+    pub panel: bool,
+}
+
 /// One model's results.
 #[derive(Debug, Clone, Serialize)]
 pub struct ModelResults {
@@ -65,6 +86,10 @@ pub struct ModelResults {
     pub response: String,
     /// Whether an intercept was fitted.
     pub intercept: bool,
+    /// `log` when the model was fitted to the natural log of the response.
+    pub transform: Option<String>,
+    /// The periods, when the model has a date column.
+    pub timing: Option<TimingNote>,
     /// Confidence level of every interval.
     pub confidence: f64,
     /// Rows used.
@@ -93,6 +118,10 @@ pub struct ModelResults {
     pub checks: Vec<Check>,
     /// Per-row residuals and influence.
     pub residuals: Vec<RowDiagnostics>,
+    /// Forecast rows, empty when the job asks for none.
+    pub forecast: Vec<ForecastRow>,
+    /// The back-test, when the job asks for one.
+    pub backtest: Option<Backtest>,
 }
 
 /// All results of one job.
@@ -108,8 +137,15 @@ pub struct Results {
     pub models: Vec<ModelResults>,
 }
 
-/// Computes every reported number for one fitted model.
-pub fn analyse(spec: &ModelSpec, design: &Design, fit: &Fit) -> ModelResults {
+/// Computes every reported number for one fitted model, with its forecast
+/// rows and back-test computed by the caller.
+pub fn analyse(
+    spec: &ModelSpec,
+    design: &Design,
+    fit: &Fit,
+    forecast: Vec<ForecastRow>,
+    backtest: Option<Backtest>,
+) -> ModelResults {
     let baselines = design
         .terms
         .iter()
@@ -134,6 +170,20 @@ pub fn analyse(spec: &ModelSpec, design: &Design, fit: &Fit) -> ModelResults {
         name: spec.name.clone(),
         response: spec.response.clone(),
         intercept: spec.intercept,
+        transform: design.log_response.then(|| "log".to_string()),
+        timing: design.timing.as_ref().map(|t| TimingNote {
+            column: t.column.clone(),
+            frequency: t.frequency,
+            detected: t.detected,
+            first: t.first.to_string(),
+            last: t.last().to_string(),
+            periods: t
+                .periods
+                .iter()
+                .collect::<std::collections::BTreeSet<_>>()
+                .len(),
+            panel: t.panel,
+        }),
         confidence: fit.confidence,
         n: fit.n,
         df_model: fit.df_model,
@@ -141,13 +191,22 @@ pub fn analyse(spec: &ModelSpec, design: &Design, fit: &Fit) -> ModelResults {
         dropped_rows: design.dropped.clone(),
         baselines,
         aliased: fit.aliased.clone(),
-        equation: equation(&spec.response, &fit.coefficients),
+        equation: equation(
+            &if design.log_response {
+                format!("ln({})", spec.response)
+            } else {
+                spec.response.clone()
+            },
+            &fit.coefficients,
+        ),
         coefficients: fit.coefficients.clone(),
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),
         checks: vec![condition_check(fit)],
         residuals: row_diagnostics(design, fit),
+        forecast,
+        backtest,
     }
 }
 

@@ -8,13 +8,18 @@
 //! baseline (treatment coding). Each column remembers the [`Term`] it belongs
 //! to, so that a factor can be tested as one term.
 
-use std::collections::BTreeSet;
+mod time;
+
+use std::collections::{BTreeSet, HashMap};
 
 use nalgebra::{DMatrix, DVector};
 
 use crate::fit::ddouble::DoubleDouble;
 use crate::job::{Baseline, CategoricalSpec, ModelSpec};
+use crate::period::{Period, SeasonBy};
 use crate::source::{CellRef, Column, Table, Value};
+
+pub use time::Timing;
 
 /// An error that stops one model: its columns do not fit its roles.
 #[derive(Debug, thiserror::Error)]
@@ -89,6 +94,86 @@ pub enum DesignError {
         /// The levels found, quoted.
         levels: String,
     },
+    /// A cell of the date column is not a date or period.
+    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds {kind} '{value}', not a date; use a date cell, an ISO date such as 2024-07-01, or a period such as 2024-07 or 2024-Q3")]
+    NotADate {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The kind of value found.
+        kind: &'static str,
+        /// The value as text.
+        value: String,
+    },
+    /// The dates fit no frequency.
+    #[error("model '{model}': cannot tell the period of date column '{column}': the smallest gap between dates is {gap} days; set `frequency` (day, week, month, quarter or year) in the model")]
+    UnknownFrequency {
+        /// The model.
+        model: String,
+        /// The column.
+        column: String,
+        /// Smallest gap in days.
+        gap: i64,
+    },
+    /// A period label of another frequency than the series.
+    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds '{value}', which is not a {frequency}; the series is by {frequency}, so write every period in the same way")]
+    MixedFrequency {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The value as text.
+        value: String,
+        /// The series' frequency.
+        frequency: &'static str,
+    },
+    /// A single series with two rows in one period.
+    #[error("model '{model}': {place}: cells {first} and {second} are both in period {period}; a single series has one row per period (remove the duplicate, or set `frequency` if the dates are finer than it)")]
+    DuplicatePeriod {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The period label.
+        period: String,
+        /// The first cell.
+        first: CellRef,
+        /// The second cell.
+        second: CellRef,
+    },
+    /// A season finer than the data.
+    #[error("model '{model}': seasons by {by} need dates finer than a {frequency}; use a coarser season or daily dates")]
+    SeasonTooFine {
+        /// The model.
+        model: String,
+        /// The season.
+        by: &'static str,
+        /// The series' frequency.
+        frequency: &'static str,
+    },
+    /// A response that cannot be logged.
+    #[error("model '{model}': {place}, cell {cell} in response '{column}' holds {value}; `transform = \"log\"` needs every response value above zero")]
+    NotPositive {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The value.
+        value: f64,
+    },
     /// Every row has a blank in at least one used column.
     #[error("model '{model}': no usable rows in {place}: every row has a blank cell in at least one of the columns {columns}")]
     NoUsableRows {
@@ -118,6 +203,17 @@ pub enum TermKind {
     Intercept,
     /// A numeric predictor entered as it is.
     Numeric,
+    /// The period index 1, 2, … of the date column.
+    Trend,
+    /// Season indicators against a baseline season.
+    Season {
+        /// What seasons are counted by.
+        by: SeasonBy,
+        /// The baseline season, from 1.
+        baseline: u32,
+        /// Whether the job named the baseline.
+        given: bool,
+    },
     /// A numeric predictor and its powers up to `degree`.
     Polynomial {
         /// Highest power.
@@ -137,8 +233,12 @@ pub enum TermKind {
 /// A model term: a group of design-matrix columns tested together.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Term {
-    /// "Intercept", or the column name.
+    /// "Intercept", "trend", "season", the column name, or for a
+    /// polynomial "x (degree 3)".
     pub name: String,
+    /// The source column the term reads (empty for the intercept; the date
+    /// column for trend and season).
+    pub column: String,
     /// What kind of term.
     pub kind: TermKind,
     /// Indices of this term's columns in the design matrix.
@@ -168,6 +268,11 @@ pub struct Design {
     pub rows: Vec<u32>,
     /// Sheet rows left out because a used column was blank there.
     pub dropped: Vec<u32>,
+    /// Periods of the rows, when the model has a date column; rows are then
+    /// in period order.
+    pub timing: Option<Timing>,
+    /// Whether `y` holds the natural log of the response.
+    pub log_response: bool,
 }
 
 /// Builds the design for `model` from `table`.
@@ -193,12 +298,20 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .iter()
         .map(|c| ctx.labels(ctx.column(&c.column)?))
         .collect::<Result<Vec<_>, _>>()?;
+    let dates = model
+        .date_column()
+        .map(|name| {
+            let column = ctx.column(name)?;
+            Ok::<_, DesignError>((column, ctx.stamps(column)?))
+        })
+        .transpose()?;
 
     let keep: Vec<usize> = (0..table.rows.len())
         .filter(|&i| {
             response[i].is_some()
                 && numeric.iter().chain(&poly).all(|c| c[i].is_some())
                 && labels.iter().all(|c| c[i].is_some())
+                && dates.as_ref().is_none_or(|(_, d)| d[i].is_some())
         })
         .collect();
     if keep.is_empty() {
@@ -212,10 +325,40 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .filter(|i| keep.binary_search(i).is_err())
         .map(|i| table.rows[i])
         .collect();
+    let mut keep = keep;
+    let timing = match &dates {
+        Some((column, stamps)) => {
+            let t = time::timing(&ctx, column, stamps, &keep, model.frequency)?;
+            let mut order: Vec<usize> = (0..keep.len()).collect();
+            order.sort_by_key(|&k| t.periods[k]);
+            keep = order.iter().map(|&k| keep[k]).collect();
+            Some(Timing {
+                periods: order.iter().map(|&k| t.periods[k]).collect(),
+                ..t
+            })
+        }
+        None => None,
+    };
+    if model.log_response {
+        let column = ctx.column(&model.response)?;
+        if let Some(&i) = keep
+            .iter()
+            .find(|&&i| response[i].is_some_and(|v| v <= 0.0))
+        {
+            return Err(DesignError::NotPositive {
+                model: model.name.clone(),
+                place: table.place(),
+                column: column.name.clone(),
+                cell: table.cell(column, i),
+                value: response[i].unwrap_or(f64::NAN),
+            });
+        }
+    }
 
     let mut parts = Assembly::default();
     if model.intercept {
         parts.push(
+            "",
             "Intercept",
             TermKind::Intercept,
             vec![DesignColumn::exact("Intercept", vec![1.0; keep.len()])],
@@ -229,12 +372,14 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
     for (name, values) in model.numeric.iter().zip(&numeric) {
         parts.push(
             name,
+            name,
             TermKind::Numeric,
             vec![DesignColumn::exact(name, used(values))],
         );
     }
     for (spec, values) in model.poly.iter().zip(&poly) {
         parts.push(
+            &spec.column,
             &format!("{} (degree {})", spec.column, spec.degree),
             TermKind::Polynomial {
                 degree: spec.degree,
@@ -242,14 +387,48 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             powers(&spec.column, &used(values), spec.degree),
         );
     }
+    if let Some(t) = &timing {
+        if model.trend.is_some() {
+            let index = t.periods.iter().map(|&p| t.index(p) as f64).collect();
+            parts.push(
+                &t.column,
+                "trend",
+                TermKind::Trend,
+                vec![DesignColumn::exact("trend", index)],
+            );
+        }
+        if let Some(season) = &model.season {
+            let seasons = time::seasons(&ctx, season, t)?;
+            parts.push(
+                &t.column,
+                "season",
+                TermKind::Season {
+                    by: season.by,
+                    baseline: season.baseline,
+                    given: season.baseline_given,
+                },
+                time::season_columns(season.by, season.baseline, &seasons),
+            );
+        }
+    }
     for (spec, values) in model.categorical.iter().zip(&labels) {
         let used: Vec<&str> = keep.iter().filter_map(|&i| values[i].as_deref()).collect();
         let (kind, indicators) = indicators(&ctx, spec, &used)?;
-        parts.push(&spec.column, kind, indicators);
+        parts.push(&spec.column, &spec.column, kind, indicators);
     }
 
     let rows = keep.len();
-    let y = DVector::from_iterator(rows, keep.iter().map(|&i| response[i].unwrap_or(f64::NAN)));
+    let y = DVector::from_iterator(
+        rows,
+        keep.iter().map(|&i| {
+            let v = response[i].unwrap_or(f64::NAN);
+            if model.log_response {
+                v.ln()
+            } else {
+                v
+            }
+        }),
+    );
     let x = DMatrix::from_fn(rows, parts.columns.len(), |r, c| parts.columns[c].hi[r]);
     let x_lo = parts.columns.iter().any(|c| c.lo.is_some()).then(|| {
         DMatrix::from_fn(rows, parts.columns.len(), |r, c| {
@@ -266,7 +445,160 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         intercept: model.intercept,
         rows: keep.iter().map(|&i| table.rows[i]).collect(),
         dropped,
+        timing,
+        log_response: model.log_response,
     })
+}
+
+/// A row to predict: its period (for trend and season) and its predictor
+/// values by column.
+#[derive(Debug, Clone, Default)]
+pub struct FutureRow {
+    /// The period, when the model has a date column.
+    pub period: Option<Period>,
+    /// Predictor values by column name.
+    pub values: HashMap<String, Value>,
+}
+
+/// Why a future row cannot be put in the design's terms.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum EncodeError {
+    /// A predictor has no value.
+    #[error("has no value for '{column}'")]
+    Missing {
+        /// The predictor.
+        column: String,
+    },
+    /// A numeric predictor's value is not a number.
+    #[error("gives '{column}' the {kind} '{value}', not a number")]
+    NotANumber {
+        /// The predictor.
+        column: String,
+        /// The kind of value.
+        kind: &'static str,
+        /// The value as text.
+        value: String,
+    },
+    /// A categorical predictor's level is not in the data.
+    #[error("gives '{column}' the level '{level}', which is not in the rows the model was fitted on; its levels are: {levels}")]
+    UnseenLevel {
+        /// The predictor.
+        column: String,
+        /// The level given.
+        level: String,
+        /// The known levels, quoted.
+        levels: String,
+    },
+    /// The model needs a period and the row has none.
+    #[error("has no period for the trend or season")]
+    NoPeriod,
+}
+
+impl Design {
+    /// Row `i` of the design matrix, low parts included.
+    pub fn row(&self, i: usize) -> Vec<f64> {
+        (0..self.x.ncols())
+            .map(|j| self.x[(i, j)] + self.x_lo.as_ref().map_or(0.0, |lo| lo[(i, j)]))
+            .collect()
+    }
+
+    /// The design restricted to the rows `keep` (indices into this design),
+    /// with the same terms and coding: a back-test refits on it.
+    pub fn subset(&self, keep: &[usize]) -> Design {
+        Design {
+            response: self.response.clone(),
+            y: self.y.select_rows(keep),
+            x: self.x.select_rows(keep),
+            x_lo: self.x_lo.as_ref().map(|lo| lo.select_rows(keep)),
+            names: self.names.clone(),
+            terms: self.terms.clone(),
+            intercept: self.intercept,
+            rows: keep.iter().map(|&i| self.rows[i]).collect(),
+            dropped: Vec::new(),
+            timing: self.timing.as_ref().map(|t| Timing {
+                periods: keep.iter().map(|&i| t.periods[i]).collect(),
+                ..t.clone()
+            }),
+            log_response: self.log_response,
+        }
+    }
+
+    /// The design-matrix row of `row`, in the columns of `x`: the same
+    /// coding as the data (powers, indicators against the baselines, the
+    /// trend index counted from the first period, season indicators).
+    ///
+    /// # Errors
+    /// [`EncodeError`] for a missing or unsuitable value, or an unseen level.
+    pub fn encode(&self, row: &FutureRow) -> Result<Vec<f64>, EncodeError> {
+        let mut out = Vec::with_capacity(self.x.ncols());
+        let number = |column: &str| -> Result<f64, EncodeError> {
+            match row.values.get(column) {
+                None | Some(Value::Blank) => Err(EncodeError::Missing {
+                    column: column.to_string(),
+                }),
+                Some(Value::Number(x)) if x.is_finite() => Ok(*x),
+                Some(other) => Err(EncodeError::NotANumber {
+                    column: column.to_string(),
+                    kind: other.kind(),
+                    value: other.to_string(),
+                }),
+            }
+        };
+        let period = || row.period.ok_or(EncodeError::NoPeriod);
+        for term in &self.terms {
+            match &term.kind {
+                TermKind::Intercept => out.push(1.0),
+                TermKind::Numeric => out.push(number(&term.column)?),
+                TermKind::Polynomial { degree } => {
+                    let x = number(&term.column)?;
+                    out.extend(
+                        powers(&term.column, &[x], *degree)
+                            .iter()
+                            .map(|c| c.hi[0] + c.lo.as_ref().map_or(0.0, |lo| lo[0])),
+                    );
+                }
+                TermKind::Trend => {
+                    let p = period()?;
+                    let index = self.timing.as_ref().map_or(0, |t| t.index(p));
+                    out.push(index as f64);
+                }
+                TermKind::Season { by, baseline, .. } => {
+                    let season = period()?.season(*by).ok_or(EncodeError::NoPeriod)?;
+                    out.extend(
+                        (1..=by.labels().len() as u32)
+                            .filter(|s| s != baseline)
+                            .map(|s| f64::from(u8::from(s == season))),
+                    );
+                }
+                TermKind::Categorical {
+                    baseline, levels, ..
+                } => {
+                    let level = match row.values.get(&term.column) {
+                        None | Some(Value::Blank) => {
+                            return Err(EncodeError::Missing {
+                                column: term.column.clone(),
+                            })
+                        }
+                        Some(v) => v.to_string(),
+                    };
+                    if !levels.contains(&level) {
+                        return Err(EncodeError::UnseenLevel {
+                            column: term.column.clone(),
+                            level,
+                            levels: quoted(levels),
+                        });
+                    }
+                    out.extend(
+                        levels
+                            .iter()
+                            .filter(|l| *l != baseline)
+                            .map(|l| f64::from(u8::from(*l == level))),
+                    );
+                }
+            }
+        }
+        Ok(out)
+    }
 }
 
 /// One design-matrix column while the design is assembled.
@@ -296,11 +628,12 @@ struct Assembly {
 }
 
 impl Assembly {
-    fn push(&mut self, name: &str, kind: TermKind, columns: Vec<DesignColumn>) {
+    fn push(&mut self, column: &str, name: &str, kind: TermKind, columns: Vec<DesignColumn>) {
         let start = self.columns.len();
         self.columns.extend(columns);
         self.terms.push(Term {
             name: name.to_string(),
+            column: column.to_string(),
             kind,
             columns: start..self.columns.len(),
         });
@@ -519,6 +852,13 @@ mod tests {
                 .collect(),
             intercept: true,
             confidence: 0.95,
+            trend: None,
+            season: None,
+            frequency: None,
+            log_response: false,
+            backtest: None,
+            backtest_rolling: false,
+            forecast: None,
         }
     }
 

@@ -1,0 +1,177 @@
+//! The time side of a design: reading a date column into periods, telling
+//! its frequency, ordering rows by period, and the trend and season columns.
+
+use crate::job::SeasonSpec;
+use crate::period::{detect_frequency, parse_stamp, Frequency, Period, SeasonBy, Stamp};
+use crate::source::{Column, Value};
+
+use super::{Context, DesignColumn, DesignError};
+
+/// The periods of a model's used rows.
+#[derive(Debug, Clone)]
+pub struct Timing {
+    /// The date column.
+    pub column: String,
+    /// The frequency, from the job or told from the data.
+    pub frequency: Frequency,
+    /// Whether the frequency was told from the data.
+    pub detected: bool,
+    /// The period of each used row, in row order (rows are sorted by it).
+    pub periods: Vec<Period>,
+    /// The first period: trend index 1.
+    pub first: Period,
+    /// Whether several rows share a period (panel data).
+    pub panel: bool,
+}
+
+impl Timing {
+    /// Trend index of a period: periods since the first, plus one.
+    pub fn index(&self, period: Period) -> i64 {
+        period.ordinal - self.first.ordinal + 1
+    }
+
+    /// The last period in the data.
+    pub fn last(&self) -> Period {
+        self.periods.iter().copied().max().unwrap_or(self.first)
+    }
+}
+
+impl Context<'_> {
+    /// The column as date stamps; `None` where the cell is blank.
+    pub(super) fn stamps(&self, column: &Column) -> Result<Vec<Option<Stamp>>, DesignError> {
+        column
+            .values
+            .iter()
+            .enumerate()
+            .map(|(i, v)| match v {
+                Value::Blank => Ok(None),
+                Value::Date(text) | Value::Text(text) => parse_stamp(text)
+                    .map(Some)
+                    .ok_or_else(|| self.bad_date(column, i, v)),
+                Value::Error(e) => Err(self.error_cell(column, i, e)),
+                other => Err(self.bad_date(column, i, other)),
+            })
+            .collect()
+    }
+
+    fn bad_date(&self, column: &Column, i: usize, value: &Value) -> DesignError {
+        DesignError::NotADate {
+            model: self.model.name.clone(),
+            place: self.table.place(),
+            column: column.name.clone(),
+            cell: self.table.cell(column, i),
+            kind: value.kind(),
+            value: value.to_string(),
+        }
+    }
+}
+
+/// Periods of the used rows `keep` (indices into the table), with the
+/// frequency from the job or the data. Refuses a single series with two
+/// rows in one period, and a period label of another frequency.
+pub(super) fn timing(
+    ctx: &Context<'_>,
+    column: &Column,
+    stamps: &[Option<Stamp>],
+    keep: &[usize],
+    frequency: Option<Frequency>,
+) -> Result<Timing, DesignError> {
+    let used: Vec<Stamp> = keep.iter().filter_map(|&i| stamps[i]).collect();
+    let (frequency, detected) = match frequency {
+        Some(f) => (f, false),
+        None => match detect_frequency(&used) {
+            Ok(Some(f)) => (f, true),
+            Ok(None) => (Frequency::Month, true),
+            Err(gap) => {
+                return Err(DesignError::UnknownFrequency {
+                    model: ctx.model.name.clone(),
+                    column: column.name.clone(),
+                    gap,
+                })
+            }
+        },
+    };
+    let mut periods = Vec::with_capacity(keep.len());
+    for &i in keep {
+        let stamp = stamps[i].ok_or_else(|| ctx.bad_date(column, i, &Value::Blank))?;
+        let period = stamp
+            .period(frequency)
+            .ok_or_else(|| DesignError::MixedFrequency {
+                model: ctx.model.name.clone(),
+                place: ctx.table.place(),
+                column: column.name.clone(),
+                cell: ctx.table.cell(column, i),
+                value: column.values[i].to_string(),
+                frequency: frequency.name(),
+            })?;
+        periods.push(period);
+    }
+    let mut counts = std::collections::BTreeMap::<Period, Vec<usize>>::new();
+    for (k, p) in periods.iter().enumerate() {
+        counts.entry(*p).or_default().push(keep[k]);
+    }
+    let mut sizes: Vec<usize> = counts.values().map(Vec::len).collect();
+    sizes.sort_unstable();
+    let median = sizes.get(sizes.len() / 2).copied().unwrap_or(1);
+    if median == 1 {
+        if let Some((period, rows)) = counts.iter().find(|(_, rows)| rows.len() > 1) {
+            return Err(DesignError::DuplicatePeriod {
+                model: ctx.model.name.clone(),
+                place: ctx.table.place(),
+                period: period.to_string(),
+                first: ctx.table.cell(column, rows[0]),
+                second: ctx.table.cell(column, rows[1]),
+            });
+        }
+    }
+    let first = counts.keys().next().copied().unwrap_or(Period {
+        frequency,
+        ordinal: 0,
+    });
+    Ok(Timing {
+        column: column.name.clone(),
+        frequency,
+        detected,
+        periods,
+        first,
+        panel: median > 1,
+    })
+}
+
+/// The season (from 1) of each period, or an error when the frequency is
+/// too coarse for the season (weekdays of monthly data).
+pub(super) fn seasons(
+    ctx: &Context<'_>,
+    spec: &SeasonSpec,
+    timing: &Timing,
+) -> Result<Vec<u32>, DesignError> {
+    timing
+        .periods
+        .iter()
+        .map(|p| {
+            p.season(spec.by).ok_or_else(|| DesignError::SeasonTooFine {
+                model: ctx.model.name.clone(),
+                by: spec.by.name(),
+                frequency: timing.frequency.name(),
+            })
+        })
+        .collect()
+}
+
+/// One 0/1 column per season other than the baseline, named
+/// `season[Feb]`, `season[Q2]`, `season[Tue]`. A season with no rows gives
+/// a column of zeros, which the fit reports as aliased.
+pub(super) fn season_columns(by: SeasonBy, baseline: u32, seasons: &[u32]) -> Vec<DesignColumn> {
+    by.labels()
+        .iter()
+        .zip(1..)
+        .filter(|(_, s)| *s != baseline)
+        .map(|(label, s)| {
+            let col = seasons
+                .iter()
+                .map(|&v| f64::from(u8::from(v == s)))
+                .collect();
+            DesignColumn::exact(&format!("season[{label}]"), col)
+        })
+        .collect()
+}

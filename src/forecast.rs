@@ -1,0 +1,472 @@
+//! Forecasts and back-tests: predictions for new rows with the confidence
+//! interval of the mean and the prediction interval of a new value.
+//!
+//! For a row x₀ of the design (coded as the data were), the estimate is
+//! x₀ᵀb, the standard error of the mean s·√(x₀ᵀ(X'X)⁻¹x₀) and that of a new
+//! value s·√(1 + x₀ᵀ(X'X)⁻¹x₀), with t on the residual degrees of freedom
+//! (e.g. Draper & Smith, *Applied Regression Analysis*, 3rd ed., §2.4 and
+//! §5.2). With a log response the limits are transformed back by exp: the
+//! point forecast is then a median, and the smearing estimate
+//! exp(x₀ᵀb)·mean(exp(eᵢ)) (Duan 1983, JASA 78) estimates the mean.
+
+use std::collections::BTreeSet;
+
+use serde::Serialize;
+
+use crate::design::{Design, EncodeError, FutureRow};
+use crate::fit::{fit, t_quantile, Fit, FitError};
+use crate::job::{ForecastSpec, HoldValue, ModelSpec};
+use crate::period::{parse_stamp, Period};
+use crate::source::{CellRef, Table, Value};
+
+/// An error that stops a model's forecast or back-test.
+#[derive(Debug, thiserror::Error)]
+pub enum ForecastError {
+    /// A forecast row cannot be coded.
+    #[error("model '{model}': forecast {place} {source}")]
+    Row {
+        /// The model.
+        model: String,
+        /// Which row, in words.
+        place: String,
+        /// What is wrong with it.
+        source: EncodeError,
+    },
+    /// A forecast row needs a coefficient that could not be estimated.
+    #[error("model '{model}': forecast {place} needs the coefficient {term}, which was left out of the fit (aliased: no row of the data has it)")]
+    Aliased {
+        /// The model.
+        model: String,
+        /// Which row, in words.
+        place: String,
+        /// The coefficient.
+        term: String,
+    },
+    /// The plan sheet lacks a predictor column.
+    #[error("model '{model}': the plan sheet '{sheet}' has no column '{column}'; it needs the date column and every predictor")]
+    PlanColumn {
+        /// The model.
+        model: String,
+        /// The plan sheet.
+        sheet: String,
+        /// The missing column.
+        column: String,
+    },
+    /// A plan-sheet date that cannot be read.
+    #[error("model '{model}': plan sheet '{sheet}', cell {cell} holds '{value}', which is not a {frequency} date or period")]
+    PlanDate {
+        /// The model.
+        model: String,
+        /// The plan sheet.
+        sheet: String,
+        /// The cell.
+        cell: CellRef,
+        /// The value as text.
+        value: String,
+        /// The series' frequency.
+        frequency: &'static str,
+    },
+    /// The back-test holds out every period.
+    #[error("model '{model}': `backtest = {holdout}` holds out {holdout} of only {periods} periods; keep enough periods to fit on")]
+    BacktestTooLong {
+        /// The model.
+        model: String,
+        /// Periods held out.
+        holdout: u32,
+        /// Periods in the data.
+        periods: usize,
+    },
+    /// A back-test refit failed.
+    #[error("model '{model}': back-test refit without the last periods failed: {source}")]
+    BacktestFit {
+        /// The model.
+        model: String,
+        /// The fit's error.
+        source: FitError,
+    },
+}
+
+/// A prediction on the fitted scale.
+#[derive(Debug, Clone, Copy)]
+struct Prediction {
+    estimate: f64,
+    se_mean: f64,
+    se_new: f64,
+}
+
+/// Predicts the design row `x0` (all columns of the design) from `fit`;
+/// `Err` holds the index of an aliased column the row needs.
+fn predict(fit: &Fit, x0: &[f64]) -> Result<Prediction, usize> {
+    let ls = &fit.solution;
+    if let Some(&j) = ls.aliased.iter().find(|&&j| x0[j] != 0.0) {
+        return Err(j);
+    }
+    let xk: Vec<f64> = ls.kept.iter().map(|&j| x0[j]).collect();
+    let estimate = xk.iter().zip(ls.beta.iter()).map(|(a, b)| a * b).sum();
+    let mut v = 0.0;
+    for (a, xa) in xk.iter().enumerate() {
+        for (b, xb) in xk.iter().enumerate() {
+            v += xa * ls.xtx_inv[(a, b)] * xb;
+        }
+    }
+    let s = fit.quality.sigma;
+    Ok(Prediction {
+        estimate,
+        se_mean: s * v.max(0.0).sqrt(),
+        se_new: s * (1.0 + v.max(0.0)).sqrt(),
+    })
+}
+
+/// One forecast row, on the response's own scale.
+#[derive(Debug, Clone, Serialize)]
+pub struct ForecastRow {
+    /// Period label ("2026-01", "2026-Q1"), when the model has periods.
+    pub period: Option<String>,
+    /// Trend index of the period.
+    pub index: Option<i64>,
+    /// First day of the period, ISO 8601.
+    pub date: Option<String>,
+    /// The predictor values used, as text, in model order.
+    pub inputs: indexmap::IndexMap<String, String>,
+    /// Point forecast x₀ᵀb (with a log response: exp(x₀ᵀb), a median).
+    pub estimate: f64,
+    /// Lower limit of the confidence interval of the mean.
+    pub mean_lower: f64,
+    /// Upper limit of the confidence interval of the mean.
+    pub mean_upper: f64,
+    /// Lower limit of the prediction interval of a new value.
+    pub pred_lower: f64,
+    /// Upper limit of the prediction interval of a new value.
+    pub pred_upper: f64,
+    /// With a log response: the smearing estimate of the mean (Duan 1983).
+    pub smeared_mean: Option<f64>,
+}
+
+/// The forecast rows of a model: the next periods (`horizon`, other
+/// predictors held) or the rows of a plan sheet (`plan`, read by the caller).
+///
+/// # Errors
+/// [`ForecastError`] for a row that cannot be coded or needs an aliased
+/// coefficient, or a plan sheet without a needed column or with a bad date.
+pub fn forecast(
+    spec: &ModelSpec,
+    design: &Design,
+    fit: &Fit,
+    plan: Option<&Table>,
+) -> Result<Vec<ForecastRow>, ForecastError> {
+    let Some(forecast) = &spec.forecast else {
+        return Ok(Vec::new());
+    };
+    let predictors: Vec<&str> = spec.columns().skip(1).collect();
+    let rows: Vec<(String, FutureRow)> = match (forecast, plan) {
+        (ForecastSpec::Horizon { horizon, hold }, _) => {
+            let last = design.timing.as_ref().map(|t| t.last());
+            let values: std::collections::HashMap<String, Value> = hold
+                .iter()
+                .map(|(column, v)| {
+                    let value = match v {
+                        HoldValue::Number(x) => Value::Number(*x),
+                        HoldValue::Level(l) => Value::Text(l.clone()),
+                    };
+                    (column.clone(), value)
+                })
+                .collect();
+            (1..=i64::from(*horizon))
+                .map(|h| {
+                    let period = last.map(|p| p.plus(h));
+                    let place = period.map_or(format!("row {h}"), |p| format!("period {p}"));
+                    (
+                        place,
+                        FutureRow {
+                            period,
+                            values: values.clone(),
+                        },
+                    )
+                })
+                .collect()
+        }
+        (ForecastSpec::Plan { sheet }, Some(table)) => {
+            plan_rows(spec, design, sheet, table, &predictors)?
+        }
+        (ForecastSpec::Plan { .. }, None) => Vec::new(),
+    };
+    let t = t_quantile((1.0 + fit.confidence) / 2.0, fit.df_resid as f64);
+    let smearing = design.log_response.then(|| {
+        let e = &fit.solution.residuals;
+        e.iter().map(|r| r.exp()).sum::<f64>() / e.len() as f64
+    });
+    rows.into_iter()
+        .map(|(place, row)| {
+            let x0 = design.encode(&row).map_err(|source| ForecastError::Row {
+                model: spec.name.clone(),
+                place: place.clone(),
+                source,
+            })?;
+            let p = predict(fit, &x0).map_err(|j| ForecastError::Aliased {
+                model: spec.name.clone(),
+                place: place.clone(),
+                term: design.names[j].clone(),
+            })?;
+            let back = |v: f64| if design.log_response { v.exp() } else { v };
+            Ok(ForecastRow {
+                period: row.period.map(|p| p.to_string()),
+                index: row
+                    .period
+                    .zip(design.timing.as_ref())
+                    .map(|(p, t)| t.index(p)),
+                date: row.period.map(|p| p.start().to_string()),
+                inputs: predictors
+                    .iter()
+                    .map(|c| {
+                        let v = row.values.get(*c).map(Value::to_string).unwrap_or_default();
+                        (c.to_string(), v)
+                    })
+                    .collect(),
+                estimate: back(p.estimate),
+                mean_lower: back(p.estimate - t * p.se_mean),
+                mean_upper: back(p.estimate + t * p.se_mean),
+                pred_lower: back(p.estimate - t * p.se_new),
+                pred_upper: back(p.estimate + t * p.se_new),
+                smeared_mean: smearing.map(|m| p.estimate.exp() * m),
+            })
+        })
+        .collect()
+}
+
+/// Forecast rows from a plan sheet: one per data row, with its period read
+/// from the date column and predictor values from their columns.
+fn plan_rows(
+    spec: &ModelSpec,
+    design: &Design,
+    sheet: &str,
+    table: &Table,
+    predictors: &[&str],
+) -> Result<Vec<(String, FutureRow)>, ForecastError> {
+    let missing = |column: &str| ForecastError::PlanColumn {
+        model: spec.name.clone(),
+        sheet: sheet.to_string(),
+        column: column.to_string(),
+    };
+    let date_column = match (&design.timing, spec.date_column()) {
+        (Some(t), Some(name)) => Some((t, table.column(name).ok_or_else(|| missing(name))?)),
+        _ => None,
+    };
+    let columns = predictors
+        .iter()
+        .map(|c| table.column(c).ok_or_else(|| missing(c)))
+        .collect::<Result<Vec<_>, _>>()?;
+    (0..table.rows.len())
+        .map(|i| {
+            let period = match date_column {
+                Some((timing, column)) => {
+                    let value = &column.values[i];
+                    let stamp = match value {
+                        Value::Date(t) | Value::Text(t) => parse_stamp(t),
+                        _ => None,
+                    };
+                    let period: Option<Period> = stamp.and_then(|s| s.period(timing.frequency));
+                    Some(period.ok_or_else(|| ForecastError::PlanDate {
+                        model: spec.name.clone(),
+                        sheet: sheet.to_string(),
+                        cell: table.cell(column, i),
+                        value: value.to_string(),
+                        frequency: timing.frequency.name(),
+                    })?)
+                }
+                None => None,
+            };
+            let values = columns
+                .iter()
+                .map(|c| (c.name.clone(), c.values[i].clone()))
+                .collect();
+            let place = format!("row {} of plan sheet '{sheet}'", table.rows[i]);
+            Ok((place, FutureRow { period, values }))
+        })
+        .collect()
+}
+
+/// One held-out row of a back-test.
+#[derive(Debug, Clone, Serialize)]
+pub struct BacktestPoint {
+    /// Period label.
+    pub period: String,
+    /// Sheet row of the observation.
+    pub row: u32,
+    /// Observed response.
+    pub actual: f64,
+    /// Forecast from the refit.
+    pub estimate: f64,
+    /// Lower prediction limit.
+    pub pred_lower: f64,
+    /// Upper prediction limit.
+    pub pred_upper: f64,
+    /// Whether the actual lies inside the prediction interval.
+    pub inside: bool,
+}
+
+/// Forecast accuracy over a set of held-out rows.
+#[derive(Debug, Clone, Serialize)]
+pub struct Accuracy {
+    /// Mean absolute error.
+    pub mae: f64,
+    /// Root mean squared error.
+    pub rmse: f64,
+    /// Mean absolute percentage error, in percent; absent when every
+    /// actual is zero.
+    pub mape: Option<f64>,
+    /// Share of actuals inside their prediction interval (0 to 1).
+    pub coverage: f64,
+    /// Rows that could not be forecast (they need a coefficient the refit
+    /// could not estimate, e.g. a season seen only in the held-out periods).
+    pub skipped: usize,
+    /// The held-out rows.
+    pub points: Vec<BacktestPoint>,
+}
+
+/// A back-test: refit without the last periods, forecast them.
+#[derive(Debug, Clone, Serialize)]
+pub struct Backtest {
+    /// Number of final periods held out.
+    pub holdout: u32,
+    /// Accuracy of the single refit on all earlier periods.
+    #[serde(flatten)]
+    pub accuracy: Accuracy,
+    /// Accuracy from a rolling origin: for each held-out period in turn,
+    /// refit on all earlier periods and forecast that period.
+    pub rolling: Option<Accuracy>,
+}
+
+/// The model's back-test, when the job asks for one.
+///
+/// # Errors
+/// [`ForecastError::BacktestTooLong`] when the holdout leaves no period to
+/// fit on, [`ForecastError::BacktestFit`] when a refit has too few rows.
+pub fn backtest(
+    spec: &ModelSpec,
+    design: &Design,
+    fit_full: &Fit,
+) -> Result<Option<Backtest>, ForecastError> {
+    let (Some(k), Some(timing)) = (spec.backtest, &design.timing) else {
+        return Ok(None);
+    };
+    let periods: Vec<Period> = timing
+        .periods
+        .iter()
+        .copied()
+        .collect::<BTreeSet<_>>()
+        .into_iter()
+        .collect();
+    if k as usize >= periods.len() {
+        return Err(ForecastError::BacktestTooLong {
+            model: spec.name.clone(),
+            holdout: k,
+            periods: periods.len(),
+        });
+    }
+    let held = &periods[periods.len() - k as usize..];
+    let run = |origins: &[(Period, Vec<Period>)]| -> Result<Accuracy, ForecastError> {
+        let mut points = Vec::new();
+        let mut skipped = 0;
+        for (cutoff, targets) in origins {
+            let train: Vec<usize> = (0..design.rows.len())
+                .filter(|&i| timing.periods[i] < *cutoff)
+                .collect();
+            let sub = design.subset(&train);
+            let refit = fit(&spec.name, &sub, fit_full.confidence).map_err(|source| {
+                ForecastError::BacktestFit {
+                    model: spec.name.clone(),
+                    source,
+                }
+            })?;
+            let t = t_quantile((1.0 + refit.confidence) / 2.0, refit.df_resid as f64);
+            for i in (0..design.rows.len()).filter(|&i| targets.contains(&timing.periods[i])) {
+                let x0 = design.row(i);
+                let Ok(p) = predict(&refit, &x0) else {
+                    skipped += 1;
+                    continue;
+                };
+                let back = |v: f64| if design.log_response { v.exp() } else { v };
+                let actual = back(design.y[i]);
+                let (lower, upper) = (
+                    back(p.estimate - t * p.se_new),
+                    back(p.estimate + t * p.se_new),
+                );
+                points.push(BacktestPoint {
+                    period: timing.periods[i].to_string(),
+                    row: design.rows[i],
+                    actual,
+                    estimate: back(p.estimate),
+                    pred_lower: lower,
+                    pred_upper: upper,
+                    inside: (lower..=upper).contains(&actual),
+                });
+            }
+        }
+        Ok(accuracy(points, skipped))
+    };
+    let holdout = run(&[(held[0], held.to_vec())])?;
+    let rolling = spec
+        .backtest_rolling
+        .then(|| {
+            let origins: Vec<(Period, Vec<Period>)> = held.iter().map(|&p| (p, vec![p])).collect();
+            run(&origins)
+        })
+        .transpose()?;
+    Ok(Some(Backtest {
+        holdout: k,
+        accuracy: holdout,
+        rolling,
+    }))
+}
+
+/// MAE, RMSE, MAPE and coverage of `points`.
+fn accuracy(points: Vec<BacktestPoint>, skipped: usize) -> Accuracy {
+    let n = points.len().max(1) as f64;
+    let errors: Vec<f64> = points.iter().map(|p| p.actual - p.estimate).collect();
+    let mae = errors.iter().map(|e| e.abs()).sum::<f64>() / n;
+    let rmse = (errors.iter().map(|e| e * e).sum::<f64>() / n).sqrt();
+    let relative: Vec<f64> = points
+        .iter()
+        .filter(|p| p.actual != 0.0)
+        .map(|p| ((p.actual - p.estimate) / p.actual).abs())
+        .collect();
+    let mape = (!relative.is_empty())
+        .then(|| relative.iter().sum::<f64>() / relative.len() as f64 * 100.0);
+    let coverage = points.iter().filter(|p| p.inside).count() as f64 / n;
+    Accuracy {
+        mae,
+        rmse,
+        mape,
+        coverage,
+        skipped,
+        points,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn point(actual: f64, estimate: f64, inside: bool) -> BacktestPoint {
+        BacktestPoint {
+            period: "2024-01".into(),
+            row: 2,
+            actual,
+            estimate,
+            pred_lower: 0.0,
+            pred_upper: 0.0,
+            inside,
+        }
+    }
+
+    #[test]
+    fn accuracy_follows_the_definitions() {
+        // Errors 1 and −3 on actuals 10 and 20: MAE 2, RMSE √5,
+        // MAPE (10% + 15%)/2 = 12.5%, one of two inside.
+        let a = accuracy(vec![point(10.0, 9.0, true), point(20.0, 23.0, false)], 0);
+        assert_eq!(a.mae, 2.0);
+        assert!((a.rmse - 5f64.sqrt()).abs() < 1e-15);
+        assert!((a.mape.unwrap() - 12.5).abs() < 1e-12);
+        assert_eq!(a.coverage, 0.5);
+    }
+}

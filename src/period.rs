@@ -1,0 +1,369 @@
+//! Calendar periods: reading dates and period labels from cells, telling
+//! the frequency of a series, and counting periods for trends and seasons.
+//!
+//! A date column becomes a sequence of [`Period`]s of one [`Frequency`].
+//! The trend index of a row is the number of periods from the first period,
+//! plus one, so gaps keep their spacing and rows in the same period share an
+//! index. Seasons (month, quarter, weekday) come from the period too.
+
+use std::fmt;
+
+use chrono::{Datelike, NaiveDate, Weekday};
+
+/// How often a series is observed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Frequency {
+    /// One row (or one group of rows) per day.
+    Day,
+    /// Per ISO week (Monday to Sunday).
+    Week,
+    /// Per calendar month.
+    Month,
+    /// Per calendar quarter.
+    Quarter,
+    /// Per calendar year.
+    Year,
+}
+
+impl Frequency {
+    /// Parses `day`, `week`, `month`, `quarter` or `year`.
+    pub fn parse(text: &str) -> Option<Self> {
+        match text.trim().to_ascii_lowercase().as_str() {
+            "day" | "daily" => Some(Frequency::Day),
+            "week" | "weekly" => Some(Frequency::Week),
+            "month" | "monthly" => Some(Frequency::Month),
+            "quarter" | "quarterly" => Some(Frequency::Quarter),
+            "year" | "yearly" | "annual" => Some(Frequency::Year),
+            _ => None,
+        }
+    }
+
+    /// The frequency's name in words.
+    pub fn name(self) -> &'static str {
+        match self {
+            Frequency::Day => "day",
+            Frequency::Week => "week",
+            Frequency::Month => "month",
+            Frequency::Quarter => "quarter",
+            Frequency::Year => "year",
+        }
+    }
+}
+
+/// One period of a given frequency, as a count from a fixed origin: days
+/// since 0001-01-01 (day), ISO weeks since the week of 0001-01-01 (week),
+/// months since January of year 0 (month), quarters since year 0 (quarter),
+/// or the year itself.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub struct Period {
+    /// The frequency.
+    pub frequency: Frequency,
+    /// Periods since the frequency's origin.
+    pub ordinal: i64,
+}
+
+impl Period {
+    /// The period holding `date`.
+    pub fn of_date(date: NaiveDate, frequency: Frequency) -> Self {
+        let days = i64::from(date.num_days_from_ce());
+        let ordinal = match frequency {
+            Frequency::Day => days,
+            // Day 1 of the common era was a Monday.
+            Frequency::Week => (days - 1).div_euclid(7),
+            Frequency::Month => i64::from(date.year()) * 12 + i64::from(date.month0()),
+            Frequency::Quarter => i64::from(date.year()) * 4 + i64::from(date.month0() / 3),
+            Frequency::Year => i64::from(date.year()),
+        };
+        Period { frequency, ordinal }
+    }
+
+    /// The period `n` periods after this one.
+    pub fn plus(self, n: i64) -> Self {
+        Period {
+            frequency: self.frequency,
+            ordinal: self.ordinal + n,
+        }
+    }
+
+    /// The first day of the period.
+    pub fn start(self) -> NaiveDate {
+        let from_days = |d: i64| {
+            i32::try_from(d)
+                .ok()
+                .and_then(NaiveDate::from_num_days_from_ce_opt)
+                .unwrap_or(NaiveDate::MIN)
+        };
+        let ymd = |y: i64, m: i64| {
+            i32::try_from(y)
+                .ok()
+                .and_then(|y| NaiveDate::from_ymd_opt(y, m as u32 + 1, 1))
+                .unwrap_or(NaiveDate::MIN)
+        };
+        match self.frequency {
+            Frequency::Day => from_days(self.ordinal),
+            Frequency::Week => from_days(self.ordinal * 7 + 1),
+            Frequency::Month => ymd(self.ordinal.div_euclid(12), self.ordinal.rem_euclid(12)),
+            Frequency::Quarter => ymd(self.ordinal.div_euclid(4), self.ordinal.rem_euclid(4) * 3),
+            Frequency::Year => ymd(self.ordinal, 0),
+        }
+    }
+
+    /// The season of this period, counted from 1 (January, Q1, Monday), or
+    /// `None` when the period is too coarse for it (a month has no weekday).
+    pub fn season(self, by: SeasonBy) -> Option<u32> {
+        let start = self.start();
+        match (by, self.frequency) {
+            (SeasonBy::Month, Frequency::Day | Frequency::Week | Frequency::Month) => {
+                Some(start.month())
+            }
+            (SeasonBy::Quarter, Frequency::Year) | (SeasonBy::Month, _) => None,
+            (SeasonBy::Quarter, _) => Some(start.month0() / 3 + 1),
+            (SeasonBy::Weekday, Frequency::Day) => Some(start.weekday().number_from_monday()),
+            (SeasonBy::Weekday, _) => None,
+        }
+    }
+}
+
+impl fmt::Display for Period {
+    /// "2024-07-15" (day), "2024-W05" (ISO week), "2024-07" (month),
+    /// "2024-Q3" (quarter), "2024" (year).
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let start = self.start();
+        match self.frequency {
+            Frequency::Day => write!(f, "{start}"),
+            Frequency::Week => {
+                let w = start.iso_week();
+                write!(f, "{}-W{:02}", w.year(), w.week())
+            }
+            Frequency::Month => write!(f, "{}-{:02}", start.year(), start.month()),
+            Frequency::Quarter => write!(f, "{}-Q{}", start.year(), start.month0() / 3 + 1),
+            Frequency::Year => write!(f, "{}", start.year()),
+        }
+    }
+}
+
+/// What a date cell says: a calendar date, or a period written as text.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Stamp {
+    /// A calendar day.
+    Date(NaiveDate),
+    /// A period label such as "2024-Q3" or "2024-07".
+    Label(Period),
+}
+
+impl Stamp {
+    /// The period of the stamp at `frequency`; `None` when a period label
+    /// is coarser than `frequency` or of another kind (a quarter label in a
+    /// monthly series).
+    pub fn period(self, frequency: Frequency) -> Option<Period> {
+        match self {
+            Stamp::Date(d) => Some(Period::of_date(d, frequency)),
+            Stamp::Label(p) if p.frequency == frequency => Some(p),
+            Stamp::Label(_) => None,
+        }
+    }
+}
+
+/// Reads a date from cell text: ISO dates ("2024-07-15", optionally with a
+/// time), ISO weeks ("2024-W05"), months ("2024-07"), quarters ("2024-Q3",
+/// "2024Q3") and years ("2024").
+pub fn parse_stamp(text: &str) -> Option<Stamp> {
+    let t = text.trim();
+    let date_part = t.split(['T', ' ']).next().unwrap_or(t);
+    if let Ok(d) = NaiveDate::parse_from_str(date_part, "%Y-%m-%d") {
+        return Some(Stamp::Date(d));
+    }
+    let upper = t.to_ascii_uppercase();
+    let label = |frequency, ordinal| Some(Stamp::Label(Period { frequency, ordinal }));
+    if let Some((y, q)) = upper.split_once('Q') {
+        let y: i64 = y.trim_end_matches('-').parse().ok()?;
+        let q: i64 = q.parse().ok().filter(|q| (1..=4).contains(q))?;
+        return label(Frequency::Quarter, y * 4 + q - 1);
+    }
+    if let Some((y, w)) = upper.split_once("-W") {
+        let y: i32 = y.parse().ok()?;
+        let w: u32 = w.parse().ok()?;
+        let monday = NaiveDate::from_isoywd_opt(y, w, Weekday::Mon)?;
+        return Some(Stamp::Label(Period::of_date(monday, Frequency::Week)));
+    }
+    if let Some((y, m)) = t.split_once('-') {
+        let y: i64 = y.parse().ok()?;
+        let m: i64 = m.parse().ok().filter(|m| (1..=12).contains(m))?;
+        return label(Frequency::Month, y * 12 + m - 1);
+    }
+    if t.len() == 4 {
+        let y: i64 = t.parse().ok()?;
+        return label(Frequency::Year, y);
+    }
+    None
+}
+
+/// What seasons are counted by.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum SeasonBy {
+    /// Twelve months, labelled Jan..Dec.
+    Month,
+    /// Four quarters, Q1..Q4.
+    Quarter,
+    /// Seven days, Mon..Sun.
+    Weekday,
+}
+
+const MONTHS: [&str; 12] = [
+    "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
+];
+const QUARTERS: [&str; 4] = ["Q1", "Q2", "Q3", "Q4"];
+const WEEKDAYS: [&str; 7] = ["Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun"];
+
+impl SeasonBy {
+    /// Parses `month`, `quarter` or `weekday`.
+    pub fn parse(text: &str) -> Option<Self> {
+        match text.trim().to_ascii_lowercase().as_str() {
+            "month" => Some(SeasonBy::Month),
+            "quarter" => Some(SeasonBy::Quarter),
+            "weekday" | "day" => Some(SeasonBy::Weekday),
+            _ => None,
+        }
+    }
+
+    /// The season labels in cycle order.
+    pub fn labels(self) -> &'static [&'static str] {
+        match self {
+            SeasonBy::Month => &MONTHS,
+            SeasonBy::Quarter => &QUARTERS,
+            SeasonBy::Weekday => &WEEKDAYS,
+        }
+    }
+
+    /// The season (from 1) named by `text`: its label in any case
+    /// ("jan", "Q3", "Mon") or its number ("1", "3").
+    pub fn season_of(self, text: &str) -> Option<u32> {
+        let labels = self.labels();
+        let t = text.trim();
+        if let Ok(n) = t.parse::<u32>() {
+            return (1..=labels.len() as u32).contains(&n).then_some(n);
+        }
+        labels
+            .iter()
+            .position(|l| l.eq_ignore_ascii_case(t))
+            .map(|i| i as u32 + 1)
+    }
+
+    /// The season's name in words.
+    pub fn name(self) -> &'static str {
+        match self {
+            SeasonBy::Month => "month",
+            SeasonBy::Quarter => "quarter",
+            SeasonBy::Weekday => "weekday",
+        }
+    }
+}
+
+/// Tells the frequency of a series from its stamps: the frequency of its
+/// period labels, or from the smallest gap between distinct dates (1 day,
+/// 7 days, 28–31, 89–92, 365–366). `Err` holds the smallest gap in days
+/// when it fits no frequency.
+pub fn detect_frequency(stamps: &[Stamp]) -> Result<Option<Frequency>, i64> {
+    if let Some(f) = stamps.iter().find_map(|s| match s {
+        Stamp::Label(p) => Some(p.frequency),
+        Stamp::Date(_) => None,
+    }) {
+        return Ok(Some(f));
+    }
+    let mut days: Vec<i64> = stamps
+        .iter()
+        .filter_map(|s| match s {
+            Stamp::Date(d) => Some(i64::from(d.num_days_from_ce())),
+            Stamp::Label(_) => None,
+        })
+        .collect();
+    days.sort_unstable();
+    days.dedup();
+    let Some(gap) = days.windows(2).map(|w| w[1] - w[0]).min() else {
+        return Ok(None);
+    };
+    match gap {
+        1..=6 => Ok(Some(Frequency::Day)),
+        7 => Ok(Some(Frequency::Week)),
+        28..=31 => Ok(Some(Frequency::Month)),
+        89..=92 => Ok(Some(Frequency::Quarter)),
+        365..=366 => Ok(Some(Frequency::Year)),
+        other => Err(other),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn date(y: i32, m: u32, d: u32) -> NaiveDate {
+        NaiveDate::from_ymd_opt(y, m, d).unwrap()
+    }
+
+    #[test]
+    fn labels_round_trip_through_periods() {
+        for (text, label) in [
+            ("2024-07-15", "2024-07-15"),
+            ("2024-07", "2024-07"),
+            ("2024-Q3", "2024-Q3"),
+            ("2024q3", "2024-Q3"),
+            ("2024-W05", "2024-W05"),
+            ("2024", "2024"),
+        ] {
+            let stamp = parse_stamp(text).unwrap_or_else(|| panic!("{text}"));
+            let period = match stamp {
+                Stamp::Date(d) => Period::of_date(d, Frequency::Day),
+                Stamp::Label(p) => p,
+            };
+            assert_eq!(period.to_string(), label, "{text}");
+        }
+        assert_eq!(parse_stamp("2024-13"), None);
+        assert_eq!(parse_stamp("n/a"), None);
+        assert_eq!(parse_stamp("2024-Q5"), None);
+    }
+
+    #[test]
+    fn periods_advance_across_year_ends() {
+        let dec = Period::of_date(date(2025, 12, 1), Frequency::Month);
+        assert_eq!(dec.plus(1).to_string(), "2026-01");
+        assert_eq!(dec.plus(14).to_string(), "2027-02");
+        let q4 = Period::of_date(date(2025, 11, 30), Frequency::Quarter);
+        assert_eq!(q4.to_string(), "2025-Q4");
+        assert_eq!(q4.plus(1).to_string(), "2026-Q1");
+        let week = Period::of_date(date(2025, 12, 29), Frequency::Week);
+        assert_eq!(week.to_string(), "2026-W01");
+        assert_eq!(week.start(), date(2025, 12, 29));
+    }
+
+    #[test]
+    fn seasons_follow_the_calendar() {
+        let m = Period::of_date(date(2024, 8, 10), Frequency::Month);
+        assert_eq!(m.season(SeasonBy::Month), Some(8));
+        assert_eq!(m.season(SeasonBy::Quarter), Some(3));
+        assert_eq!(m.season(SeasonBy::Weekday), None);
+        // 2024-08-10 was a Saturday.
+        let d = Period::of_date(date(2024, 8, 10), Frequency::Day);
+        assert_eq!(d.season(SeasonBy::Weekday), Some(6));
+        assert_eq!(SeasonBy::Month.season_of("aug"), Some(8));
+        assert_eq!(SeasonBy::Quarter.season_of("2"), Some(2));
+        assert_eq!(SeasonBy::Quarter.season_of("5"), None);
+    }
+
+    #[test]
+    fn frequency_is_told_from_the_smallest_gap() {
+        let months: Vec<Stamp> = [(2024, 1), (2024, 2), (2024, 4)]
+            .iter()
+            .map(|&(y, m)| Stamp::Date(date(y, m, 1)))
+            .collect();
+        assert_eq!(detect_frequency(&months), Ok(Some(Frequency::Month)));
+        let quarters = [Stamp::Date(date(2024, 1, 1)), Stamp::Date(date(2024, 4, 1))];
+        assert_eq!(detect_frequency(&quarters), Ok(Some(Frequency::Quarter)));
+        let odd = [
+            Stamp::Date(date(2024, 1, 1)),
+            Stamp::Date(date(2024, 1, 15)),
+        ];
+        assert_eq!(detect_frequency(&odd), Err(14));
+    }
+}
