@@ -150,6 +150,25 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
             spec.response,
             design.rows.len()
         );
+        if let Some(t) = &design.timing {
+            let _ = writeln!(
+                out,
+                "  periods: by {} ({}), {} to {}{}",
+                t.frequency.name(),
+                if t.detected {
+                    "told from the dates"
+                } else {
+                    "set in the job"
+                },
+                t.first,
+                t.last(),
+                if t.panel {
+                    ", several rows per period"
+                } else {
+                    ""
+                }
+            );
+        }
         if !design.dropped.is_empty() {
             let _ = writeln!(
                 out,

@@ -77,6 +77,23 @@ pub struct TimingNote {
     pub panel: bool,
 }
 
+/// One period of a model's history, on the response's own scale, as the
+/// forecast chart draws it.
+#[derive(Debug, Clone, Serialize)]
+pub struct HistoryPoint {
+    /// Period label.
+    pub period: String,
+    /// First day of the period, ISO 8601.
+    pub date: String,
+    /// Rows in the period.
+    pub rows: usize,
+    /// Mean of the actual values of the period's rows.
+    pub actual: f64,
+    /// Mean of their fitted values (with a log response: of exp(fitted),
+    /// the fitted medians).
+    pub fitted: f64,
+}
+
 /// One model's results.
 #[derive(Debug, Clone, Serialize)]
 pub struct ModelResults {
@@ -118,6 +135,9 @@ pub struct ModelResults {
     pub checks: Vec<Check>,
     /// Per-row residuals and influence.
     pub residuals: Vec<RowDiagnostics>,
+    /// Per-period means of actual and fitted values, for models with a
+    /// date column.
+    pub history: Vec<HistoryPoint>,
     /// Forecast rows, empty when the job asks for none.
     pub forecast: Vec<ForecastRow>,
     /// The back-test, when the job asks for one.
@@ -163,6 +183,20 @@ pub fn analyse(
                 },
                 levels: levels.clone(),
             }),
+            TermKind::Season {
+                by,
+                baseline,
+                given,
+            } => Some(BaselineNote {
+                column: "season".into(),
+                level: by.labels()[*baseline as usize - 1].to_string(),
+                reason: if *given {
+                    "given in the job".into()
+                } else {
+                    "the first season".into()
+                },
+                levels: by.labels().iter().map(|l| l.to_string()).collect(),
+            }),
             _ => None,
         })
         .collect();
@@ -205,9 +239,38 @@ pub fn analyse(
         term_tests: each_term_last_anova(design, fit),
         checks: vec![condition_check(fit)],
         residuals: row_diagnostics(design, fit),
+        history: history(design, fit),
         forecast,
         backtest,
     }
+}
+
+/// Per-period means of the actual and fitted values, back on the
+/// response's scale (exp for a log response).
+fn history(design: &Design, fit: &Fit) -> Vec<HistoryPoint> {
+    let Some(timing) = &design.timing else {
+        return Vec::new();
+    };
+    let back = |v: f64| if design.log_response { v.exp() } else { v };
+    let mut out: Vec<HistoryPoint> = Vec::new();
+    // Rows are in period order, so each period's rows are contiguous.
+    let mut start = 0;
+    while start < timing.periods.len() {
+        let period = timing.periods[start];
+        let end = (start..timing.periods.len())
+            .find(|&i| timing.periods[i] != period)
+            .unwrap_or(timing.periods.len());
+        let n = (end - start) as f64;
+        out.push(HistoryPoint {
+            period: period.to_string(),
+            date: period.start().to_string(),
+            rows: end - start,
+            actual: (start..end).map(|i| back(design.y[i])).sum::<f64>() / n,
+            fitted: (start..end).map(|i| back(fit.fitted[i])).sum::<f64>() / n,
+        });
+        start = end;
+    }
+    out
 }
 
 /// Builds the job's results from its analysed models.

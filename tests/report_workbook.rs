@@ -146,6 +146,10 @@ fn report_sheets_are_named_in_order() {
             "Fit quality",
             "Checks",
             "Residuals",
+            "Forecast",
+            "Back-test",
+            "Back-test rows",
+            "Chart data",
             "Charts"
         ]
     );

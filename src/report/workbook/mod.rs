@@ -5,21 +5,29 @@
 //! one model. Charts are built from the cell ranges recorded while the
 //! residual table is written, never from hand-typed coordinates.
 
+use chrono::Datelike;
 use rust_xlsxwriter::{
-    Chart, ChartAxisLabelPosition, ChartMarker, ChartMarkerType, ChartType, DocProperties, Format,
-    FormatAlign, Table, TableColumn, TableStyle, Workbook, Worksheet, XlsxError,
+    Chart, ChartAxisLabelPosition, ChartMarker, ChartMarkerType, ChartType, DocProperties,
+    ExcelDateTime, Format, FormatAlign, Table, TableColumn, TableStyle, Workbook, Worksheet,
+    XlsxError,
 };
 
 use crate::results::{row_ranges, ModelResults, Results};
 
+mod forecast;
+
 /// Sheet names, in the order they appear.
-pub const SHEETS: [&str; 7] = [
+pub const SHEETS: [&str; 11] = [
     "Overview",
     "Coefficients",
     "ANOVA",
     "Fit quality",
     "Checks",
     "Residuals",
+    "Forecast",
+    "Back-test",
+    "Back-test rows",
+    "Chart data",
     "Charts",
 ];
 
@@ -27,6 +35,8 @@ pub const SHEETS: [&str; 7] = [
 enum Cell {
     Text(String),
     Number(f64, Style),
+    /// A calendar date, written as a date cell.
+    Date(chrono::NaiveDate),
     Empty,
 }
 
@@ -64,6 +74,7 @@ struct Formats {
     p_value: Format,
     ratio: Format,
     count: Format,
+    date: Format,
     title: Format,
     heading: Format,
     bold: Format,
@@ -78,6 +89,7 @@ impl Formats {
             p_value: Format::new().set_num_format("[<0.0001]\"<0.0001\";0.0000"),
             ratio: Format::new().set_num_format("0.0000"),
             count: Format::new().set_num_format("0"),
+            date: Format::new().set_num_format("yyyy-mm-dd"),
             title: Format::new().set_bold().set_font_size(16),
             heading: Format::new().set_bold().set_font_size(12),
             bold: Format::new().set_bold(),
@@ -127,6 +139,15 @@ fn write_table(
                 Cell::Number(x, style) => {
                     sheet.write_number_with_format(r, c, *x, formats.for_number(*x, *style))?;
                     12
+                }
+                Cell::Date(d) => {
+                    let date = ExcelDateTime::from_ymd(
+                        u16::try_from(d.year()).unwrap_or(1900),
+                        d.month() as u8,
+                        d.day() as u8,
+                    )?;
+                    sheet.write_datetime_with_format(r, c, &date, &formats.date)?;
+                    10
                 }
                 Cell::Empty => 0,
             };
@@ -194,10 +215,22 @@ pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
         &formats,
         results,
     )?;
-    charts(
+    forecast::forecast_sheet(
         workbook.add_worksheet().set_name(SHEETS[6])?,
+        &formats,
+        results,
+    )?;
+    forecast::backtest_sheets(&mut workbook, &formats, results)?;
+    let history = forecast::chart_data(
+        workbook.add_worksheet().set_name(SHEETS[9])?,
+        &formats,
+        results,
+    )?;
+    charts(
+        workbook.add_worksheet().set_name(SHEETS[10])?,
         results,
         &spans,
+        &history,
     )?;
     workbook.save_to_buffer()
 }
@@ -260,7 +293,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
                 Cell::Number(x, style) => {
                     sheet.write_number_with_format(r, 1 + j as u16, x, f.for_number(x, style))?
                 }
-                Cell::Empty => sheet.write_string(r, 1 + j as u16, "n/a")?,
+                Cell::Empty | Cell::Date(_) => sheet.write_string(r, 1 + j as u16, "n/a")?,
             };
         }
     }
@@ -337,6 +370,30 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
     for a in &m.aliased {
         notes.push(format!(
             "{a} is an exact combination of earlier columns (aliased) and was left out of the fit."
+        ));
+    }
+    if let Some(t) = &m.timing {
+        notes.push(format!(
+            "Periods: by {} ({}), from {} to {}, {} periods; the trend index counts periods from {} = 1, so gaps keep their spacing{}. Rows are in period order.",
+            t.frequency.name(),
+            if t.detected { "told from the dates" } else { "set in the job" },
+            t.first,
+            t.last,
+            t.periods,
+            t.first,
+            if t.panel { "; several rows per period (panel data) share one index" } else { "" },
+        ));
+    }
+    if m.transform.is_some() {
+        notes.push(format!(
+            "Fitted to ln({0}): coefficients are changes in ln({0}), roughly 100 × coefficient percent; residuals and charts of residuals are on the log scale. Forecasts are transformed back: the estimate is a median, and the smeared mean (Duan 1983) estimates the mean.",
+            m.response
+        ));
+    }
+    if !m.forecast.is_empty() {
+        notes.push(format!(
+            "{} forecast rows (sheet Forecast): they assume the pattern of the data continues and the predictors take the values shown.",
+            m.forecast.len()
         ));
     }
     if m.dropped_rows.is_empty() {
@@ -548,7 +605,14 @@ fn residuals(
     Ok(spans)
 }
 
-fn charts(sheet: &mut Worksheet, results: &Results, spans: &[Span]) -> Result<(), XlsxError> {
+fn charts(
+    sheet: &mut Worksheet,
+    results: &Results,
+    spans: &[Span],
+    history: &[forecast::ChartBlock],
+) -> Result<(), XlsxError> {
+    // Printed (or converted to PDF) one page wide, in landscape.
+    sheet.set_landscape().set_print_fit_to_pages(1, 0);
     let residual_sheet = SHEETS[5];
     for (k, (m, span)) in results.models.iter().zip(spans).enumerate() {
         let top = k as u32 * 22;
@@ -581,20 +645,27 @@ fn charts(sheet: &mut Worksheet, results: &Results, spans: &[Span]) -> Result<()
             chart.set_width(560).set_height(400);
             chart
         };
+        let scale = match &m.transform {
+            Some(t) => format!("{t}({})", m.response),
+            None => m.response.clone(),
+        };
         let actual = scatter(
-            format!("{}: actual against fitted {}", m.name, m.response),
-            format!("Fitted {}", m.response),
-            format!("Actual {}", m.response),
+            format!("{}: actual against fitted {scale}", m.name),
+            format!("Fitted {scale}"),
+            format!("Actual {scale}"),
             ACTUAL_COL,
         );
         let resid = scatter(
             format!("{}: residuals against fitted values", m.name),
-            format!("Fitted {}", m.response),
-            format!("Residual ({} units)", m.response),
+            format!("Fitted {scale}"),
+            format!("Residual ({scale} units)"),
             RESIDUAL_COL,
         );
         sheet.insert_chart(top, 0, &actual)?;
         sheet.insert_chart(top, 9, &resid)?;
+        if let Some(block) = history.iter().find(|b| b.model == k) {
+            sheet.insert_chart(top, 18, &forecast::forecast_chart(m, block))?;
+        }
     }
     Ok(())
 }

@@ -1,0 +1,311 @@
+//! The forecast, back-test and chart-data sheets, and the forecast chart
+//! (history, fitted values, forecast and its prediction interval as a band).
+
+use chrono::NaiveDate;
+use rust_xlsxwriter::{
+    Chart, ChartFormat, ChartSolidFill, ChartType, Workbook, Worksheet, XlsxError,
+};
+
+use super::{num, opt, text, write_table, Cell, Formats, Style, SHEETS};
+use crate::results::{ModelResults, Results};
+
+/// Where a model's forecast-chart data sit on the chart-data sheet.
+pub struct ChartBlock {
+    /// Index of the model in the results.
+    pub model: usize,
+    /// First and last data row (zero-based) of the block.
+    pub first: u32,
+    /// Last data row of the block.
+    pub last: u32,
+}
+
+fn date(iso: &str) -> Cell {
+    NaiveDate::parse_from_str(iso, "%Y-%m-%d").map_or(Cell::Empty, Cell::Date)
+}
+
+/// Writes a one-line note where a sheet has nothing to show.
+fn note(sheet: &mut Worksheet, f: &Formats, words: &str) -> Result<(), XlsxError> {
+    sheet.set_column_width(0, 90)?;
+    sheet.write_string_with_format(0, 0, words, &f.wrap)?;
+    Ok(())
+}
+
+/// The forecast rows of every model.
+pub(super) fn forecast_sheet(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<(), XlsxError> {
+    let headers = [
+        "Model",
+        "Period",
+        "Period start",
+        "Trend index",
+        "Estimate",
+        "Mean lower",
+        "Mean upper",
+        "Prediction lower",
+        "Prediction upper",
+        "Smeared mean",
+        "Confidence",
+        "Inputs",
+    ];
+    let rows: Vec<Vec<Cell>> = results
+        .models
+        .iter()
+        .flat_map(|m| {
+            m.forecast.iter().map(move |r| {
+                vec![
+                    text(m.name.as_str()),
+                    r.period.as_deref().map_or(Cell::Empty, text),
+                    r.date.as_deref().map_or(Cell::Empty, date),
+                    opt(r.index.map(|i| i as f64), Style::Count),
+                    num(r.estimate, Style::Value),
+                    num(r.mean_lower, Style::Value),
+                    num(r.mean_upper, Style::Value),
+                    num(r.pred_lower, Style::Value),
+                    num(r.pred_upper, Style::Value),
+                    opt(r.smeared_mean, Style::Value),
+                    num(m.confidence, Style::Ratio),
+                    text(
+                        r.inputs
+                            .iter()
+                            .map(|(k, v)| format!("{k} = {v}"))
+                            .collect::<Vec<_>>()
+                            .join("; "),
+                    ),
+                ]
+            })
+        })
+        .collect();
+    if rows.is_empty() {
+        return note(
+            sheet,
+            f,
+            "No model in this job asks for a forecast ([model.forecast] in the job file).",
+        );
+    }
+    write_table(sheet, f, "Forecast_table", 0, &headers, &rows)
+}
+
+/// The back-test summary (one row per model and method) and its rows.
+pub(super) fn backtest_sheets(
+    workbook: &mut Workbook,
+    f: &Formats,
+    results: &Results,
+) -> Result<(), XlsxError> {
+    let mut summary = Vec::new();
+    let mut points = Vec::new();
+    for m in &results.models {
+        let Some(b) = &m.backtest else { continue };
+        let methods = std::iter::once((
+            format!("last {} periods held out, one refit", b.holdout),
+            &b.accuracy,
+        ))
+        .chain(b.rolling.as_ref().map(|r| {
+            (
+                "rolling origin: refit before each held-out period".to_string(),
+                r,
+            )
+        }));
+        for (method, a) in methods {
+            summary.push(vec![
+                text(m.name.as_str()),
+                text(method.as_str()),
+                num(a.points.len() as f64, Style::Count),
+                num(a.skipped as f64, Style::Count),
+                num(a.mae, Style::Value),
+                num(a.rmse, Style::Value),
+                opt(a.mape, Style::Value),
+                num(a.coverage, Style::Ratio),
+                num(m.confidence, Style::Ratio),
+            ]);
+            for p in &a.points {
+                points.push(vec![
+                    text(m.name.as_str()),
+                    text(method.as_str()),
+                    text(p.period.as_str()),
+                    num(f64::from(p.row), Style::Count),
+                    num(p.actual, Style::Value),
+                    num(p.estimate, Style::Value),
+                    num(p.pred_lower, Style::Value),
+                    num(p.pred_upper, Style::Value),
+                    text(if p.inside { "yes" } else { "no" }),
+                ]);
+            }
+        }
+    }
+    let summary_sheet = workbook.add_worksheet().set_name(SHEETS[7])?;
+    if summary.is_empty() {
+        note(
+            summary_sheet,
+            f,
+            "No model in this job asks for a back-test (backtest = K in a model).",
+        )?;
+    } else {
+        let headers = [
+            "Model",
+            "Method",
+            "Rows forecast",
+            "Rows skipped",
+            "MAE",
+            "RMSE",
+            "MAPE (%)",
+            "Share inside prediction interval",
+            "Interval level",
+        ];
+        write_table(summary_sheet, f, "Backtest_table", 0, &headers, &summary)?;
+    }
+    let points_sheet = workbook.add_worksheet().set_name(SHEETS[8])?;
+    if points.is_empty() {
+        return note(points_sheet, f, "No back-test rows.");
+    }
+    let headers = [
+        "Model",
+        "Method",
+        "Period",
+        "Sheet row",
+        "Actual",
+        "Estimate",
+        "Prediction lower",
+        "Prediction upper",
+        "Inside interval",
+    ];
+    write_table(points_sheet, f, "Backtest_row_table", 0, &headers, &points)
+}
+
+/// The data behind the forecast charts: per forecasting model, its history
+/// (per-period means) then its forecast rows, with the prediction interval
+/// as a lower limit and a band height.
+pub(super) fn chart_data(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<Vec<ChartBlock>, XlsxError> {
+    let mut rows = Vec::new();
+    let mut blocks = Vec::new();
+    for (k, m) in results.models.iter().enumerate() {
+        if m.forecast.is_empty() || m.history.is_empty() {
+            continue;
+        }
+        let first = 1 + rows.len() as u32;
+        for h in &m.history {
+            rows.push(vec![
+                text(m.name.as_str()),
+                text(h.period.as_str()),
+                date(&h.date),
+                num(h.actual, Style::Value),
+                num(h.fitted, Style::Value),
+                Cell::Empty,
+                Cell::Empty,
+                Cell::Empty,
+            ]);
+        }
+        for r in &m.forecast {
+            rows.push(vec![
+                text(m.name.as_str()),
+                r.period.as_deref().map_or(Cell::Empty, text),
+                r.date.as_deref().map_or(Cell::Empty, date),
+                Cell::Empty,
+                Cell::Empty,
+                num(r.estimate, Style::Value),
+                num(r.pred_lower, Style::Value),
+                num(r.pred_upper - r.pred_lower, Style::Value),
+            ]);
+        }
+        blocks.push(ChartBlock {
+            model: k,
+            first,
+            last: rows.len() as u32,
+        });
+    }
+    if rows.is_empty() {
+        note(sheet, f, "No forecast charts in this report.")?;
+        return Ok(blocks);
+    }
+    let headers = [
+        "Model",
+        "Period",
+        "Period start",
+        "Actual (period mean)",
+        "Fitted (period mean)",
+        "Forecast",
+        "Prediction lower",
+        "Prediction band (upper − lower)",
+    ];
+    write_table(sheet, f, "Chart_data_table", 0, &headers, &rows)?;
+    Ok(blocks)
+}
+
+/// Columns of the chart-data table.
+const DATE_COL: u16 = 2;
+const ACTUAL_COL: u16 = 3;
+const FITTED_COL: u16 = 4;
+const FORECAST_COL: u16 = 5;
+const LOWER_COL: u16 = 6;
+const BAND_COL: u16 = 7;
+
+/// The forecast chart of one model: the prediction interval as a light
+/// stacked-area band, with the actual, fitted and forecast lines over it,
+/// on a date axis.
+pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
+    let data = SHEETS[9];
+    let range = |col: u16| (data, block.first, col, block.last, col);
+    let mut band = Chart::new(ChartType::AreaStacked);
+    band.add_series()
+        .set_categories(range(DATE_COL))
+        .set_values(range(LOWER_COL))
+        .set_name("Prediction lower")
+        .set_format(ChartFormat::new().set_no_fill().set_no_border());
+    band.add_series()
+        .set_categories(range(DATE_COL))
+        .set_values(range(BAND_COL))
+        .set_name(format!("{:.0}% prediction interval", m.confidence * 100.0).as_str())
+        .set_format(
+            ChartFormat::new()
+                .set_solid_fill(
+                    ChartSolidFill::new()
+                        .set_color("#9DC3E6")
+                        .set_transparency(40),
+                )
+                .set_no_border(),
+        );
+    let mut lines = Chart::new(ChartType::Line);
+    for (name, col, color) in [
+        ("Actual", ACTUAL_COL, "#404040"),
+        ("Fitted", FITTED_COL, "#ED7D31"),
+        ("Forecast", FORECAST_COL, "#1F4E79"),
+    ] {
+        lines
+            .add_series()
+            .set_categories(range(DATE_COL))
+            .set_values(range(col))
+            .set_name(name)
+            .set_format(
+                ChartFormat::new().set_line(
+                    rust_xlsxwriter::ChartLine::new()
+                        .set_color(color)
+                        .set_width(1.75),
+                ),
+            );
+    }
+    band.combine(&lines);
+    let panel = m.history.iter().any(|h| h.rows > 1);
+    band.title().set_name(
+        format!(
+            "{}: {} history{} and forecast",
+            m.name,
+            m.response,
+            if panel { " (mean per period)" } else { "" }
+        )
+        .as_str(),
+    );
+    band.x_axis()
+        .set_name("Period")
+        .set_date_axis(true)
+        .set_num_format("mmm yyyy");
+    band.y_axis().set_name(m.response.as_str());
+    band.legend().delete_entries(&[0]);
+    band.set_width(760).set_height(400);
+    band
+}
