@@ -179,7 +179,33 @@ pub struct RowDiagnostics {
     /// Cook's distance r²·h / (p·(1 − h)), r the standardized residual
     /// (Cook 1977); absent where the standardized residual is.
     pub cooks_distance: Option<f64>,
+    /// Externally studentized residual t = r·√((n − p − 1)/(n − p − r²)):
+    /// the residual scaled by s estimated without the row (Belsley, Kuh &
+    /// Welsch 1980, §2.1).
+    pub studentized_residual: Option<f64>,
+    /// DFFITS t·√(h/(1 − h)): the change in the row's own fitted value, in
+    /// standard errors, when the row is left out (Belsley, Kuh & Welsch 1980).
+    pub dffits: Option<f64>,
+    /// The rules of thumb this row breaks (see [`INFLUENCE_RULES`]).
+    pub flags: Vec<&'static str>,
 }
+
+/// The rules of thumb used to flag rows, each with its source; common
+/// practice rather than tests.
+pub const INFLUENCE_RULES: [(&str, &str); 3] = [
+    (
+        "cook",
+        "Cook's distance above 4/n (Bollen & Jackman 1990; a rule of thumb)",
+    ),
+    (
+        "studentized",
+        "externally studentized residual beyond ±3 (a common rule of thumb)",
+    ),
+    (
+        "leverage",
+        "leverage above 2p/n (Hoaglin & Welsch 1978; a rule of thumb)",
+    ),
+];
 
 /// Residuals, leverage and Cook's distance for every used row (Cook, R. D.
 /// 1977, "Detection of influential observation in linear regression",
@@ -187,6 +213,8 @@ pub struct RowDiagnostics {
 pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
     let s = fit.quality.sigma;
     let p = fit.solution.kept.len() as f64;
+    let n = design.rows.len() as f64;
+    let df = fit.df_resid as f64;
     design
         .rows
         .iter()
@@ -197,6 +225,20 @@ pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
             let standardized =
                 (s > 0.0 && h < 1.0 - 1e-12).then(|| residual / (s * (1.0 - h).sqrt()));
             let period = design.timing.as_ref().map(|t| t.periods[i]);
+            let cook = standardized.map(|r| r * r * h / (p * (1.0 - h)));
+            let studentized = standardized
+                .filter(|r| df - r * r > 0.0)
+                .map(|r| r * ((df - 1.0) / (df - r * r)).sqrt());
+            let mut flags = Vec::new();
+            if cook.is_some_and(|d| d > 4.0 / n) {
+                flags.push(INFLUENCE_RULES[0].0);
+            }
+            if studentized.is_some_and(|t| t.abs() > 3.0) {
+                flags.push(INFLUENCE_RULES[1].0);
+            }
+            if h > 2.0 * p / n {
+                flags.push(INFLUENCE_RULES[2].0);
+            }
             RowDiagnostics {
                 row,
                 period: period.map(|p| p.to_string()),
@@ -206,10 +248,42 @@ pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
                 residual,
                 standardized_residual: standardized,
                 leverage: h,
-                cooks_distance: standardized.map(|r| r * r * h / (p * (1.0 - h))),
+                cooks_distance: cook,
+                studentized_residual: studentized,
+                dffits: studentized.map(|t| t * (h / (1.0 - h)).sqrt()),
+                flags,
             }
         })
         .collect()
+}
+
+/// A check that counts the rows flagged by the influence rules.
+pub fn influence_check(rows: &[RowDiagnostics]) -> Check {
+    let flagged: Vec<u32> = rows
+        .iter()
+        .filter(|r| !r.flags.is_empty())
+        .map(|r| r.row)
+        .collect();
+    Check {
+        name: "influential rows".into(),
+        statistic: Some(flagged.len() as f64),
+        p_value: None,
+        rule: INFLUENCE_RULES
+            .iter()
+            .map(|(_, rule)| *rule)
+            .collect::<Vec<_>>()
+            .join("; "),
+        flagged: !flagged.is_empty(),
+        verdict: if flagged.is_empty() {
+            "no row stands out".into()
+        } else {
+            format!(
+                "{} rows stand out (sheet rows {}); check them in the source, and refit without them to see how much the estimates move",
+                flagged.len(),
+                crate::results::row_ranges(&flagged)
+            )
+        },
+    }
 }
 
 #[cfg(test)]

@@ -8,8 +8,8 @@
 use serde::Serialize;
 
 use crate::checks::{
-    condition_check, each_term_last_anova, row_diagnostics, sequential_anova, AnovaRow, Check,
-    RowDiagnostics,
+    condition_check, each_term_last_anova, influence_check, row_diagnostics, sequential_anova,
+    AnovaRow, Check, RowDiagnostics,
 };
 use crate::design::{Design, TermKind};
 use crate::fit::{Coefficient, Fit, FitQuality};
@@ -166,6 +166,7 @@ pub fn analyse(
     forecast: Vec<ForecastRow>,
     backtest: Option<Backtest>,
 ) -> ModelResults {
+    let residuals = row_diagnostics(design, fit);
     let baselines = design
         .terms
         .iter()
@@ -237,8 +238,8 @@ pub fn analyse(
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),
-        checks: vec![condition_check(fit)],
-        residuals: row_diagnostics(design, fit),
+        checks: vec![condition_check(fit), influence_check(&residuals)],
+        residuals,
         history: history(design, fit),
         forecast,
         backtest,

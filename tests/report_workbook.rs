@@ -230,7 +230,11 @@ fn residuals_sheet_has_one_row_per_used_row() {
             "Residual",
             "Standardized residual",
             "Leverage",
-            "Cook's distance"
+            "Cook's distance",
+            "Studentized residual",
+            "DFFITS",
+            "Flags",
+            "Period"
         ]
     );
     let mut row = 1;
@@ -248,6 +252,8 @@ fn residuals_sheet_has_one_row_per_used_row() {
                 (5, "standardized_residual"),
                 (6, "leverage"),
                 (7, "cooks_distance"),
+                (8, "studentized_residual"),
+                (9, "dffits"),
             ] {
                 assert_number(
                     &sheet,

@@ -579,6 +579,10 @@ fn residuals(
         "Standardized residual",
         "Leverage",
         "Cook's distance",
+        "Studentized residual",
+        "DFFITS",
+        "Flags",
+        "Period",
     ];
     let mut rows = Vec::new();
     let mut spans = Vec::new();
@@ -594,6 +598,10 @@ fn residuals(
                 opt(d.standardized_residual, Style::Value),
                 num(d.leverage, Style::Ratio),
                 opt(d.cooks_distance, Style::Value),
+                opt(d.studentized_residual, Style::Value),
+                opt(d.dffits, Style::Value),
+                text(d.flags.join(", ")),
+                d.period.as_deref().map_or(Cell::Empty, text),
             ]);
         }
         spans.push(Span {
