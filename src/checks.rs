@@ -47,25 +47,40 @@ pub fn sequential_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
     with_residual(rows, fit)
 }
 
-/// Each term given all the others: the rise in residual sum of squares when
-/// the term's columns are dropped from the full model, tested by the partial
-/// F test. For a categorical predictor this is the joint test of all its
-/// indicators together. Without interactions this equals what is often
-/// called the Type II (and Type III) test.
+/// Each term given all the others, respecting marginality (Type II; Fox
+/// 2016, *Applied Regression Analysis*, §8.2.5): a term's sum of squares is
+/// the rise in residual sum of squares when it is dropped from the model
+/// without the interactions that contain it; an interaction (contained in no
+/// other term) is dropped from the full model. F is taken against the full
+/// model's residual mean square. For a categorical predictor this is the
+/// joint test of all its indicators together.
 pub fn each_term_last_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
-    let rank = fit.solution.kept.len();
     let rows = design
         .terms
         .iter()
-        .filter(|t| t.kind != TermKind::Intercept)
-        .map(|term| {
-            let others: Vec<usize> = (0..design.x.ncols())
-                .filter(|j| !term.columns.contains(j))
+        .enumerate()
+        .filter(|(_, t)| t.kind != TermKind::Intercept)
+        .map(|(k, term)| {
+            let higher: Vec<usize> = design
+                .terms
+                .iter()
+                .filter(|t| matches!(t.kind, TermKind::Interaction { left, right } if left == k || right == k))
+                .flat_map(|t| t.columns.clone())
                 .collect();
-            let lo = design.x_lo.as_ref().map(|l| l.select_columns(&others));
-            let reduced = least_squares(&design.x.select_columns(&others), lo.as_ref(), &design.y);
-            let df = rank - reduced.kept.len();
-            let sum_sq = (reduced.residuals.norm_squared() - fit.quality.sse).max(0.0);
+            let without = |drop: &dyn Fn(usize) -> bool| {
+                let cols: Vec<usize> = (0..design.x.ncols()).filter(|&j| !drop(j)).collect();
+                let lo = design.x_lo.as_ref().map(|l| l.select_columns(&cols));
+                least_squares(&design.x.select_columns(&cols), lo.as_ref(), &design.y)
+            };
+            let reduced = without(&|j| term.columns.contains(&j) || higher.contains(&j));
+            let (base_rank, base_sse) = if higher.is_empty() {
+                (fit.solution.kept.len(), fit.quality.sse)
+            } else {
+                let base = without(&|j| higher.contains(&j));
+                (base.kept.len(), base.residuals.norm_squared())
+            };
+            let df = base_rank - reduced.kept.len();
+            let sum_sq = (reduced.residuals.norm_squared() - base_sse).max(0.0);
             term_row(term, df, sum_sq, fit)
         })
         .collect();
@@ -335,6 +350,7 @@ mod tests {
             backtest: None,
             backtest_rolling: false,
             forecast: None,
+            interactions: vec![],
         };
         let design = build(&table, &spec).unwrap();
         let fit = crate::fit::fit("m", &design, 0.95).unwrap();

@@ -128,6 +128,10 @@ pub struct ModelFile {
     pub backtest_rolling: Option<bool>,
     /// Forecast rows for the periods after the data.
     pub forecast: Option<ForecastFile>,
+    /// Pairs of predictors (numeric or categorical) whose product enters
+    /// the model, e.g. `[["region", "floor_area"]]`.
+    #[serde(default)]
+    pub interactions: Vec<[String; 2]>,
 }
 
 /// The `season` table of a model.
@@ -292,6 +296,8 @@ pub struct ModelSpec {
     pub backtest_rolling: bool,
     /// Forecast rows.
     pub forecast: Option<ForecastSpec>,
+    /// Interactions between two predictors, in job order.
+    pub interactions: Vec<(String, String)>,
 }
 
 impl ModelSpec {
@@ -490,6 +496,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             backtest: m.backtest,
             backtest_rolling: m.backtest_rolling.unwrap_or(false),
             forecast,
+            interactions: m.interactions.into_iter().map(|[a, b]| (a, b)).collect(),
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);
@@ -653,6 +660,29 @@ fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)> {
                 "forecast.horizon",
                 "needs periods to advance: add `trend` or `season` with the date column, or use `plan_sheet`".into(),
             ));
+        }
+    }
+    let mut pairs = HashSet::new();
+    for (a, b) in &spec.interactions {
+        for side in [a, b] {
+            let known =
+                spec.numeric.contains(side) || spec.categorical.iter().any(|c| c.column == *side);
+            if !known {
+                return Err((
+                    "interactions",
+                    format!("'{side}' is not a numeric or categorical predictor of this model; list it there first (an interaction needs its main effects)"),
+                ));
+            }
+        }
+        if a == b {
+            return Err((
+                "interactions",
+                format!("['{a}', '{b}'] pairs a predictor with itself; use `poly` for powers"),
+            ));
+        }
+        let key = if a < b { (a, b) } else { (b, a) };
+        if !pairs.insert(key) {
+            return Err(("interactions", format!("['{a}', '{b}'] is listed twice")));
         }
     }
     if spec.backtest == Some(0) {

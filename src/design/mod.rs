@@ -214,6 +214,13 @@ pub enum TermKind {
         /// Whether the job named the baseline.
         given: bool,
     },
+    /// The product of two earlier terms (numeric or categorical).
+    Interaction {
+        /// Index of the first term in `Design::terms`.
+        left: usize,
+        /// Index of the second term.
+        right: usize,
+    },
     /// A numeric predictor and its powers up to `degree`.
     Polynomial {
         /// Highest power.
@@ -416,6 +423,33 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         let (kind, indicators) = indicators(&ctx, spec, &used)?;
         parts.push(&spec.column, &spec.column, kind, indicators);
     }
+    for (a, b) in &model.interactions {
+        let find = |name: &str| {
+            parts.terms.iter().position(|t| {
+                t.column == name
+                    && matches!(t.kind, TermKind::Numeric | TermKind::Categorical { .. })
+            })
+        };
+        let (Some(left), Some(right)) = (find(a), find(b)) else {
+            continue;
+        };
+        let mut products = Vec::new();
+        for i in parts.terms[left].columns.clone() {
+            for j in parts.terms[right].columns.clone() {
+                let (ci, cj) = (&parts.columns[i], &parts.columns[j]);
+                products.push(DesignColumn::exact(
+                    &format!("{}:{}", ci.name, cj.name),
+                    ci.hi.iter().zip(&cj.hi).map(|(x, y)| x * y).collect(),
+                ));
+            }
+        }
+        parts.push(
+            "",
+            &format!("{a}:{b}"),
+            TermKind::Interaction { left, right },
+            products,
+        );
+    }
 
     let rows = keep.len();
     let y = DVector::from_iterator(
@@ -569,6 +603,17 @@ impl Design {
                             .filter(|s| s != baseline)
                             .map(|s| f64::from(u8::from(s == season))),
                     );
+                }
+                TermKind::Interaction { left, right } => {
+                    let (l, r) = (
+                        self.terms[*left].columns.clone(),
+                        self.terms[*right].columns.clone(),
+                    );
+                    for i in l {
+                        for j in r.clone() {
+                            out.push(out[i] * out[j]);
+                        }
+                    }
                 }
                 TermKind::Categorical {
                     baseline, levels, ..
@@ -859,6 +904,7 @@ mod tests {
             backtest: None,
             backtest_rolling: false,
             forecast: None,
+            interactions: vec![],
         }
     }
 
