@@ -61,6 +61,8 @@ pub struct JobFile {
     /// Where the report goes; optional.
     #[serde(default)]
     pub output: OutputFile,
+    /// p-value above which the suggested model drops a term; default 0.05.
+    pub suggest_threshold: Option<f64>,
     /// The models to fit, in the order they appear in the report.
     #[serde(default, rename = "model")]
     pub models: Vec<ModelFile>,
@@ -193,6 +195,8 @@ pub struct Job {
     pub output: PathBuf,
     /// The models, in job order.
     pub models: Vec<ModelSpec>,
+    /// p-value above which the suggested model drops a term.
+    pub suggest_threshold: f64,
 }
 
 /// How a categorical predictor's baseline level was chosen.
@@ -501,6 +505,31 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);
     }
+    let is_csv = input
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    if is_csv && file.input.sheet.is_some() {
+        return Err(invalid(
+            "input.sheet",
+            "the input is a CSV file, which has no sheets; remove `sheet`".into(),
+        ));
+    }
+    for (i, m) in models.iter().enumerate() {
+        if let (true, Some(ForecastSpec::Plan { sheet })) = (is_csv, &m.forecast) {
+            return Err(invalid(
+                &format!("model[{}].forecast.plan_sheet", i + 1),
+                format!("the input is a CSV file, which has no sheet '{sheet}'; use `horizon` with `hold`, or a workbook input with a plan sheet"),
+            ));
+        }
+    }
+    let suggest_threshold = file.suggest_threshold.unwrap_or(0.05);
+    if !(suggest_threshold > 0.0 && suggest_threshold < 1.0) {
+        return Err(invalid(
+            "suggest_threshold",
+            format!("{suggest_threshold} is not between 0 and 1; write e.g. 0.05"),
+        ));
+    }
     let title = file.title.unwrap_or_else(|| {
         path.file_stem()
             .and_then(|s| s.to_str())
@@ -516,6 +545,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         header_row,
         output,
         models,
+        suggest_threshold,
     })
 }
 

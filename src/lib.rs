@@ -9,6 +9,7 @@
 #![warn(missing_docs)]
 
 pub mod checks;
+pub mod compare;
 pub mod design;
 pub mod fit;
 pub mod forecast;
@@ -72,6 +73,81 @@ impl Error {
     }
 }
 
+/// A model of the job with its design and fit.
+struct Fitted<'j> {
+    spec: &'j job::ModelSpec,
+    design: design::Design,
+    fit: fit::Fit,
+}
+
+/// Builds and fits every model of `job` on `table`.
+fn fit_models<'j>(job: &'j Job, table: &Table) -> Result<Vec<Fitted<'j>>, Error> {
+    job.models
+        .iter()
+        .map(|spec| {
+            let design = design::build(table, spec)?;
+            let fit = fit::fit(&spec.name, &design, spec.confidence)?;
+            Ok(Fitted { spec, design, fit })
+        })
+        .collect()
+}
+
+/// Every reported number of the fitted models: forecasts, back-tests, the
+/// suggested smaller models and the comparisons.
+fn model_results(
+    job: &Job,
+    fitted: &[Fitted<'_>],
+) -> Result<(Vec<results::ModelResults>, Vec<compare::Comparison>), Error> {
+    let mut models = Vec::with_capacity(fitted.len());
+    for f in fitted {
+        let plan = match &f.spec.forecast {
+            Some(job::ForecastSpec::Plan { sheet }) => {
+                Some(source::read_table(&job.input, Some(sheet), job.header_row)?)
+            }
+            _ => None,
+        };
+        let rows = forecast::forecast(f.spec, &f.design, &f.fit, plan.as_ref())?;
+        let backtest = forecast::backtest(f.spec, &f.design, &f.fit)?;
+        models.push(analyse(f.spec, &f.design, &f.fit, rows, backtest));
+    }
+    let mut suggestions = Vec::new();
+    for f in fitted {
+        let name = format!("{} (suggested)", f.spec.name);
+        if let Some((design, fit, dropped)) =
+            compare::suggest(&name, &f.design, &f.fit, job.suggest_threshold)?
+        {
+            let spec = job::ModelSpec {
+                name,
+                ..f.spec.clone()
+            };
+            let mut m = analyse(&spec, &design, &fit, Vec::new(), None);
+            m.suggested_from = Some(f.spec.name.clone());
+            m.dropped_terms = dropped;
+            suggestions.push((m, design, fit));
+        }
+    }
+    let mut candidates: Vec<compare::Candidate<'_>> = fitted
+        .iter()
+        .map(|f| compare::Candidate {
+            name: &f.spec.name,
+            design: &f.design,
+            fit: &f.fit,
+        })
+        .collect();
+    candidates.extend(
+        suggestions
+            .iter()
+            .map(|(m, design, fit)| compare::Candidate {
+                name: &m.name,
+                design,
+                fit,
+            }),
+    );
+    let comparisons = compare::compare(&candidates);
+    models.extend(suggestions.into_iter().map(|(m, _, _)| m));
+    Ok((models, comparisons))
+}
+
 /// Reads the job's input and fits every model, returning all results.
 ///
 /// # Errors
@@ -82,20 +158,8 @@ pub fn analyse_job(job: &Job) -> Result<Results, Error> {
         path: job.input.clone(),
         source,
     })?;
-    let mut models = Vec::with_capacity(job.models.len());
-    for spec in &job.models {
-        let design = design::build(&table, spec)?;
-        let fit = fit::fit(&spec.name, &design, spec.confidence)?;
-        let plan = match &spec.forecast {
-            Some(job::ForecastSpec::Plan { sheet }) => {
-                Some(source::read_table(&job.input, Some(sheet), job.header_row)?)
-            }
-            _ => None,
-        };
-        let rows = forecast::forecast(spec, &design, &fit, plan.as_ref())?;
-        let backtest = forecast::backtest(spec, &design, &fit)?;
-        models.push(analyse(spec, &design, &fit, rows, backtest));
-    }
+    let fitted = fit_models(job, &table)?;
+    let (models, comparisons) = model_results(job, &fitted)?;
     let run = RunStamp {
         tool: format!("sheetfit {}", env!("CARGO_PKG_VERSION")),
         run_time: chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
@@ -106,7 +170,7 @@ pub fn analyse_job(job: &Job) -> Result<Results, Error> {
         sheet: table.sheet.clone(),
         rows_read: table.rows.len(),
     };
-    Ok(collect(job, run, models))
+    Ok(collect(job, run, models, comparisons))
 }
 
 /// Runs the job file at `path`: fits every model and writes the report
@@ -140,9 +204,10 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
         job.header_row
     );
     out.push_str(&describe_columns(&table));
-    for spec in &job.models {
-        let design = design::build(&table, spec)?;
-        let fit = fit::fit(&spec.name, &design, spec.confidence)?;
+    let fitted = fit_models(&job, &table)?;
+    // Everything a run computes, so check meets the errors run would.
+    model_results(&job, &fitted)?;
+    for Fitted { spec, design, fit } in &fitted {
         let _ = writeln!(
             out,
             "model '{}': response {}, {} usable rows",

@@ -153,9 +153,9 @@ pub enum Stamp {
 }
 
 impl Stamp {
-    /// The period of the stamp at `frequency`; `None` when a period label
-    /// is coarser than `frequency` or of another kind (a quarter label in a
-    /// monthly series).
+    /// The period of the stamp at `frequency`; `None` for a period label of
+    /// any other frequency (a quarter label in a monthly series, or a month
+    /// label in a quarterly one).
     pub fn period(self, frequency: Frequency) -> Option<Period> {
         match self {
             Stamp::Date(d) => Some(Period::of_date(d, frequency)),
@@ -261,16 +261,20 @@ impl SeasonBy {
     }
 }
 
-/// Tells the frequency of a series from its stamps: the frequency of its
-/// period labels, or from the smallest gap between distinct dates (1 day,
-/// 7 days, 28–31, 89–92, 365–366). `Err` holds the smallest gap in days
-/// when it fits no frequency.
+/// Tells the frequency of a series from its stamps: the most common
+/// frequency of its period labels (so one odd label is the one reported),
+/// or from the smallest gap between distinct dates (1 day, 7 days, 28–31,
+/// 89–92, 365–366). `Err` holds the smallest gap in days when it fits no
+/// frequency.
 pub fn detect_frequency(stamps: &[Stamp]) -> Result<Option<Frequency>, i64> {
-    if let Some(f) = stamps.iter().find_map(|s| match s {
-        Stamp::Label(p) => Some(p.frequency),
-        Stamp::Date(_) => None,
-    }) {
-        return Ok(Some(f));
+    let mut counts = std::collections::BTreeMap::<Frequency, usize>::new();
+    for s in stamps {
+        if let Stamp::Label(p) = s {
+            *counts.entry(p.frequency).or_default() += 1;
+        }
+    }
+    if let Some((f, _)) = counts.iter().max_by_key(|(_, n)| **n) {
+        return Ok(Some(*f));
     }
     let mut days: Vec<i64> = stamps
         .iter()

@@ -11,6 +11,7 @@ use crate::checks::{
     condition_check, each_term_last_anova, influence_check, row_diagnostics, sequential_anova,
     AnovaRow, Check, RowDiagnostics,
 };
+use crate::compare::{Comparison, DroppedTerm};
 use crate::design::{Design, TermKind};
 use crate::fit::{Coefficient, Fit, FitQuality};
 use crate::forecast::{Backtest, ForecastRow};
@@ -142,6 +143,10 @@ pub struct ModelResults {
     pub forecast: Vec<ForecastRow>,
     /// The back-test, when the job asks for one.
     pub backtest: Option<Backtest>,
+    /// For a suggested model: the model it was reduced from.
+    pub suggested_from: Option<String>,
+    /// For a suggested model: the terms dropped, in order.
+    pub dropped_terms: Vec<DroppedTerm>,
 }
 
 /// All results of one job.
@@ -153,8 +158,10 @@ pub struct Results {
     pub run: RunStamp,
     /// The cautions shown with the report.
     pub cautions: Vec<String>,
-    /// One entry per model, in job order.
+    /// One entry per model, in job order, then the suggested models.
     pub models: Vec<ModelResults>,
+    /// Every pair of models, nested pairs with their partial F test.
+    pub comparisons: Vec<Comparison>,
 }
 
 /// Computes every reported number for one fitted model, with its forecast
@@ -243,6 +250,8 @@ pub fn analyse(
         history: history(design, fit),
         forecast,
         backtest,
+        suggested_from: None,
+        dropped_terms: Vec::new(),
     }
 }
 
@@ -274,13 +283,19 @@ fn history(design: &Design, fit: &Fit) -> Vec<HistoryPoint> {
     out
 }
 
-/// Builds the job's results from its analysed models.
-pub fn collect(job: &Job, run: RunStamp, models: Vec<ModelResults>) -> Results {
+/// Builds the job's results from its analysed models and their comparisons.
+pub fn collect(
+    job: &Job,
+    run: RunStamp,
+    models: Vec<ModelResults>,
+    comparisons: Vec<Comparison>,
+) -> Results {
     Results {
         title: job.title.clone(),
         run,
         cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
         models,
+        comparisons,
     }
 }
 

@@ -557,6 +557,48 @@ impl Design {
         }
     }
 
+    /// The design without term `k`: its columns removed, the other terms'
+    /// column ranges and interaction references renumbered.
+    pub fn without_term(&self, k: usize) -> Design {
+        let removed = self.terms[k].columns.clone();
+        let keep: Vec<usize> = (0..self.x.ncols())
+            .filter(|j| !removed.contains(j))
+            .collect();
+        let shift = |j: usize| {
+            if j >= removed.end {
+                j - removed.len()
+            } else {
+                j
+            }
+        };
+        let renumber = |t: usize| if t > k { t - 1 } else { t };
+        let terms = self
+            .terms
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| *i != k)
+            .map(|(_, t)| Term {
+                columns: shift(t.columns.start)..shift(t.columns.end),
+                kind: match t.kind {
+                    TermKind::Interaction { left, right } => TermKind::Interaction {
+                        left: renumber(left),
+                        right: renumber(right),
+                    },
+                    ref other => other.clone(),
+                },
+                ..t.clone()
+            })
+            .collect();
+        Design {
+            x: self.x.select_columns(&keep),
+            x_lo: self.x_lo.as_ref().map(|lo| lo.select_columns(&keep)),
+            names: keep.iter().map(|&j| self.names[j].clone()).collect(),
+            terms,
+            intercept: self.intercept && self.terms[k].kind != TermKind::Intercept,
+            ..self.clone()
+        }
+    }
+
     /// The design-matrix row of `row`, in the columns of `x`: the same
     /// coding as the data (powers, indicators against the baselines, the
     /// trend index counted from the first period, season indicators).
