@@ -14,6 +14,7 @@ use std::path::{Path, PathBuf};
 use indexmap::IndexMap;
 use serde::Deserialize;
 
+use crate::fit::robust::Robust;
 use crate::period::{Frequency, SeasonBy};
 
 /// The confidence level used for intervals when a model does not set one.
@@ -134,6 +135,9 @@ pub struct ModelFile {
     /// the model, e.g. `[["region", "floor_area"]]`.
     #[serde(default)]
     pub interactions: Vec<[String; 2]>,
+    /// `"HC3"` or `"HC1"` for heteroscedasticity-consistent standard
+    /// errors of the coefficients; default the classical ones.
+    pub standard_errors: Option<String>,
 }
 
 /// The `season` table of a model.
@@ -302,6 +306,8 @@ pub struct ModelSpec {
     pub forecast: Option<ForecastSpec>,
     /// Interactions between two predictors, in job order.
     pub interactions: Vec<(String, String)>,
+    /// Heteroscedasticity-consistent standard errors, when asked for.
+    pub standard_errors: Option<Robust>,
 }
 
 impl ModelSpec {
@@ -479,6 +485,20 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                 ))
             }
         };
+        let standard_errors = match m.standard_errors.as_deref().map(str::to_ascii_uppercase).as_deref() {
+            None | Some("CLASSICAL") => None,
+            Some("HC1") => Some(Robust::Hc1),
+            Some("HC3") => Some(Robust::Hc3),
+            Some(_) => {
+                return Err(invalid(
+                    &key("standard_errors"),
+                    format!(
+                        "'{}' is not a choice; use \"HC3\" or \"HC1\" (or leave it out for the classical ones)",
+                        m.standard_errors.unwrap_or_default()
+                    ),
+                ))
+            }
+        };
         let forecast = m
             .forecast
             .map(|f| {
@@ -501,6 +521,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             backtest_rolling: m.backtest_rolling.unwrap_or(false),
             forecast,
             interactions: m.interactions.into_iter().map(|[a, b]| (a, b)).collect(),
+            standard_errors,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);

@@ -87,6 +87,10 @@ fn fit_models<'j>(job: &'j Job, table: &Table) -> Result<Vec<Fitted<'j>>, Error>
         .map(|spec| {
             let design = design::build(table, spec)?;
             let fit = fit::fit(&spec.name, &design, spec.confidence)?;
+            let fit = match spec.standard_errors {
+                Some(kind) => fit::with_robust_errors(fit, &design, kind),
+                None => fit,
+            };
             Ok(Fitted { spec, design, fit })
         })
         .collect()

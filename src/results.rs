@@ -8,8 +8,9 @@
 use serde::Serialize;
 
 use crate::checks::{
-    condition_check, each_term_last_anova, influence_check, row_diagnostics, sequential_anova,
-    AnovaRow, Check, RowDiagnostics,
+    collinearity::{collinearity, TermCollinearity},
+    collinearity_checks, condition_check, each_term_last_anova, influence_check, row_diagnostics,
+    sequential_anova, AnovaRow, Check, RowDiagnostics,
 };
 use crate::compare::{Comparison, DroppedTerm};
 use crate::design::{Design, TermKind};
@@ -104,6 +105,9 @@ pub struct ModelResults {
     pub response: String,
     /// Whether an intercept was fitted.
     pub intercept: bool,
+    /// `HC3` or `HC1` when the coefficients' standard errors are
+    /// heteroscedasticity-consistent; absent for the classical ones.
+    pub standard_errors: Option<String>,
     /// `log` when the model was fitted to the natural log of the response.
     pub transform: Option<String>,
     /// The periods, when the model has a date column.
@@ -134,6 +138,8 @@ pub struct ModelResults {
     pub term_tests: Vec<AnovaRow>,
     /// Model checks, each with its rule and verdict.
     pub checks: Vec<Check>,
+    /// (Generalized) variance inflation factor of each term.
+    pub collinearity: Vec<TermCollinearity>,
     /// Per-row residuals and influence.
     pub residuals: Vec<RowDiagnostics>,
     /// Per-period means of actual and fitted values, for models with a
@@ -174,6 +180,7 @@ pub fn analyse(
     backtest: Option<Backtest>,
 ) -> ModelResults {
     let residuals = row_diagnostics(design, fit);
+    let collinearity = collinearity(design, &fit.solution.kept);
     let baselines = design
         .terms
         .iter()
@@ -213,6 +220,7 @@ pub fn analyse(
         response: spec.response.clone(),
         intercept: spec.intercept,
         transform: design.log_response.then(|| "log".to_string()),
+        standard_errors: fit.standard_errors.map(|k| k.label().to_string()),
         timing: design.timing.as_ref().map(|t| TimingNote {
             column: t.column.clone(),
             frequency: t.frequency,
@@ -245,7 +253,11 @@ pub fn analyse(
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),
-        checks: vec![condition_check(fit), influence_check(&residuals)],
+        checks: [condition_check(fit), influence_check(&residuals)]
+            .into_iter()
+            .chain(collinearity_checks(&collinearity))
+            .collect(),
+        collinearity,
         residuals,
         history: history(design, fit),
         forecast,

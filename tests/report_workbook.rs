@@ -144,6 +144,7 @@ fn report_sheets_are_named_in_order() {
             "Coefficients",
             "ANOVA",
             "Fit quality",
+            "Comparison",
             "Checks",
             "Residuals",
             "Forecast",
@@ -171,6 +172,7 @@ fn coefficients_sheet_holds_the_json_numbers() {
             "Lower limit",
             "Upper limit",
             "Confidence",
+            "Standard errors",
             "Note"
         ]
     );
@@ -194,6 +196,7 @@ fn coefficients_sheet_holds_the_json_numbers() {
                 assert_number(&sheet, row, col, &c[key], &format!("{name} {term} {key}"));
             }
             assert_number(&sheet, row, 8, &model["confidence"], "confidence");
+            assert_eq!(text_at(&sheet, row, 9), "classical");
             row += 1;
         }
     }

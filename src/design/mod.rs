@@ -947,6 +947,7 @@ mod tests {
             backtest_rolling: false,
             forecast: None,
             interactions: vec![],
+            standard_errors: None,
         }
     }
 

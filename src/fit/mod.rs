@@ -11,11 +11,13 @@
 
 pub mod ddouble;
 pub mod qr;
+pub mod robust;
 
 use nalgebra::{DMatrix, DVector};
 use statrs::distribution::{Continuous, ContinuousCDF, FisherSnedecor, Normal, StudentsT};
 
 use self::ddouble::DoubleDouble;
+use self::robust::{robust_covariance, Robust};
 use crate::design::Design;
 
 pub use qr::ALIAS_TOLERANCE;
@@ -197,6 +199,38 @@ pub struct Fit {
     pub fitted: Vec<f64>,
     /// The least-squares solution behind it all.
     pub solution: LeastSquares,
+    /// The heteroscedasticity-consistent estimator behind the coefficients'
+    /// standard errors, when one was asked for.
+    pub standard_errors: Option<Robust>,
+}
+
+/// `fit` with its coefficients' standard errors, t statistics, p-values
+/// and intervals from a heteroscedasticity-consistent covariance (White
+/// 1980; HC1 and HC3 of MacKinnon & White 1985), t on the residual degrees
+/// of freedom. The overall F test and the forecast intervals keep the
+/// classical variance.
+pub fn with_robust_errors(mut fit: Fit, design: &Design, kind: Robust) -> Fit {
+    let ls = &fit.solution;
+    let residuals: Vec<f64> = ls.residuals.iter().copied().collect();
+    let cov = robust_covariance(
+        &design.x,
+        &ls.kept,
+        &ls.xtx_inv,
+        &residuals,
+        &ls.leverage,
+        kind,
+    );
+    let t_crit = t_quantile((1.0 + fit.confidence) / 2.0, fit.df_resid as f64);
+    for (k, c) in fit.coefficients.iter_mut().enumerate() {
+        let se = cov[(k, k)].sqrt();
+        c.std_error = se;
+        c.t_stat = (se > 0.0).then(|| c.estimate / se);
+        c.p_value = c.t_stat.and_then(|t| t_two_sided_p(t, fit.df_resid as f64));
+        c.ci_lower = c.estimate - t_crit * se;
+        c.ci_upper = c.estimate + t_crit * se;
+    }
+    fit.standard_errors = Some(kind);
+    fit
 }
 
 /// Fits `design` by least squares and computes its inference at `confidence`.
@@ -290,6 +324,7 @@ pub fn fit(model: &str, design: &Design, confidence: f64) -> Result<Fit, FitErro
         },
         fitted,
         solution,
+        standard_errors: None,
     })
 }
 

@@ -17,11 +17,12 @@ use crate::results::{row_ranges, ModelResults, Results};
 mod forecast;
 
 /// Sheet names, in the order they appear.
-pub const SHEETS: [&str; 11] = [
+pub const SHEETS: [&str; 12] = [
     "Overview",
     "Coefficients",
     "ANOVA",
     "Fit quality",
+    "Comparison",
     "Checks",
     "Residuals",
     "Forecast",
@@ -205,29 +206,34 @@ pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
         &formats,
         results,
     )?;
-    checks(
+    comparison(
         workbook.add_worksheet().set_name(SHEETS[4])?,
         &formats,
         results,
     )?;
-    let spans = residuals(
+    checks(
         workbook.add_worksheet().set_name(SHEETS[5])?,
         &formats,
         results,
     )?;
-    forecast::forecast_sheet(
+    let spans = residuals(
         workbook.add_worksheet().set_name(SHEETS[6])?,
+        &formats,
+        results,
+    )?;
+    forecast::forecast_sheet(
+        workbook.add_worksheet().set_name(SHEETS[7])?,
         &formats,
         results,
     )?;
     forecast::backtest_sheets(&mut workbook, &formats, results)?;
     let history = forecast::chart_data(
-        workbook.add_worksheet().set_name(SHEETS[9])?,
+        workbook.add_worksheet().set_name(SHEETS[10])?,
         &formats,
         results,
     )?;
     charts(
-        workbook.add_worksheet().set_name(SHEETS[10])?,
+        workbook.add_worksheet().set_name(SHEETS[11])?,
         results,
         &spans,
         &history,
@@ -249,7 +255,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
         sheet.write_string_with_format(r, 1 + j as u16, &m.name, &f.bold)?;
     }
     type Row = (&'static str, fn(&ModelResults) -> Cell);
-    let rows: [Row; 16] = [
+    let rows: [Row; 18] = [
         ("Response", |m| text(&m.response)),
         ("Rows used (n)", |m| num(m.n as f64, Style::Count)),
         ("Rows left out (blank cells)", |m| {
@@ -276,6 +282,22 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
         ("Confidence level", |m| num(m.confidence, Style::Ratio)),
         ("Condition number", |m| {
             num(m.fit.condition_number, Style::Value)
+        }),
+        ("Back-test RMSE (last periods held out)", |m| {
+            opt(m.backtest.as_ref().map(|b| b.accuracy.rmse), Style::Value)
+        }),
+        ("Suggested from (terms dropped)", |m| {
+            match &m.suggested_from {
+                Some(from) => text(format!(
+                    "{from} (dropped {})",
+                    m.dropped_terms
+                        .iter()
+                        .map(|d| d.term.as_str())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                )),
+                None => text("the job"),
+            }
         }),
         ("Checks flagged (see Checks)", |m| {
             num(
@@ -419,6 +441,7 @@ fn coefficients(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result
         "Lower limit",
         "Upper limit",
         "Confidence",
+        "Standard errors",
         "Note",
     ];
     let mut rows = Vec::new();
@@ -434,12 +457,16 @@ fn coefficients(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result
                 num(c.ci_lower, Style::Value),
                 num(c.ci_upper, Style::Value),
                 num(m.confidence, Style::Ratio),
+                text(match &m.standard_errors {
+                    Some(kind) => format!("{kind} (heteroscedasticity-consistent)"),
+                    None => "classical".to_string(),
+                }),
                 Cell::Empty,
             ]);
         }
         for a in &m.aliased {
             let mut row = vec![text(&m.name), text(a)];
-            row.extend((0..7).map(|_| Cell::Empty));
+            row.extend((0..8).map(|_| Cell::Empty));
             row.push(text("aliased: left out of the fit"));
             rows.push(row);
         }
@@ -528,6 +555,44 @@ fn fit_quality(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<
         })
         .collect();
     write_table(sheet, f, "Fit_quality_table", 0, &headers, &rows)
+}
+
+fn comparison(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
+    let headers = [
+        "Smaller model",
+        "Larger model",
+        "Nested",
+        "F",
+        "df extra",
+        "df residual",
+        "p-value",
+        "AIC difference (larger − smaller)",
+        "BIC difference (larger − smaller)",
+        "Reading",
+    ];
+    let rows: Vec<Vec<Cell>> = results
+        .comparisons
+        .iter()
+        .map(|c| {
+            vec![
+                text(c.smaller.as_str()),
+                text(c.larger.as_str()),
+                text(if c.nested { "yes" } else { "no" }),
+                opt(c.f_stat, Style::Value),
+                opt(c.df1.map(|d| d as f64), Style::Count),
+                opt(c.df2.map(|d| d as f64), Style::Count),
+                opt(c.p_value, Style::PValue),
+                num(c.aic_difference, Style::Value),
+                num(c.bic_difference, Style::Value),
+                text(c.note.as_str()),
+            ]
+        })
+        .collect();
+    if rows.is_empty() {
+        sheet.write_string(0, 0, "One model: nothing to compare.")?;
+        return Ok(());
+    }
+    write_table(sheet, f, "Comparison_table", 0, &headers, &rows)
 }
 
 fn checks(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
@@ -621,7 +686,7 @@ fn charts(
 ) -> Result<(), XlsxError> {
     // Printed (or converted to PDF) one page wide, in landscape.
     sheet.set_landscape().set_print_fit_to_pages(1, 0);
-    let residual_sheet = SHEETS[5];
+    let residual_sheet = SHEETS[6];
     for (k, (m, span)) in results.models.iter().zip(spans).enumerate() {
         let top = k as u32 * 22;
         let fitted = (

@@ -4,6 +4,8 @@
 //! Every function here reads a [`Fit`] (and its [`Design`]) and returns new
 //! values; nothing is stored back into the fit.
 
+pub mod collinearity;
+
 use crate::design::{Design, Term, TermKind};
 use crate::fit::{f_sf, least_squares, Fit, Precision, EXTENDED_ABOVE};
 
@@ -169,6 +171,39 @@ pub fn condition_check(fit: &Fit) -> Check {
         flagged,
         verdict,
     }
+}
+
+/// A GVIF^(1/(2·df)) above this flags a term: for one-column terms that is
+/// a VIF above 10, a common rule of thumb (e.g. Kutner et al., *Applied
+/// Linear Statistical Models*, 5th ed., §10.5), on the scale Fox & Monette
+/// (1992) make comparable across terms of different df.
+pub const VIF_LIMIT: f64 = 10.0;
+
+/// One check per term from its (generalized) variance inflation factor.
+pub fn collinearity_checks(terms: &[collinearity::TermCollinearity]) -> Vec<Check> {
+    let limit = VIF_LIMIT.sqrt();
+    terms
+        .iter()
+        .map(|t| {
+            let flagged = t.gvif_adjusted > limit;
+            Check {
+                name: format!("variance inflation: {}", t.term),
+                statistic: Some(t.gvif),
+                p_value: None,
+                rule: format!(
+                    "GVIF^(1/(2 df)) above √{VIF_LIMIT} ≈ {limit:.2}, i.e. a VIF above {VIF_LIMIT} for a one-column term (Fox & Monette 1992; a rule of thumb); here {} on {} df",
+                    crate::results::significant(t.gvif_adjusted, 3),
+                    t.df
+                ),
+                flagged,
+                verdict: if flagged {
+                    format!("{} overlaps strongly with the other predictors: its standard errors are inflated; consider dropping or combining it", t.term)
+                } else {
+                    format!("{} is not much explained by the other predictors", t.term)
+                },
+            }
+        })
+        .collect()
 }
 
 /// Per-row values for the residual sheet.
@@ -351,6 +386,7 @@ mod tests {
             backtest_rolling: false,
             forecast: None,
             interactions: vec![],
+            standard_errors: None,
         };
         let design = build(&table, &spec).unwrap();
         let fit = crate::fit::fit("m", &design, 0.95).unwrap();

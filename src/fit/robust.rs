@@ -1,0 +1,250 @@
+//! Heteroscedasticity-consistent ("robust", "sandwich") covariance of the
+//! least-squares coefficients.
+//!
+//! When the errors' variance differs from row to row, s²(X'X)⁻¹ misstates
+//! the coefficients' variance. White's (1980) estimator
+//!
+//! V = (X'X)⁻¹ X'ΩX (X'X)⁻¹ = (X'X)⁻¹ (Σᵢ ωᵢ xᵢxᵢ') (X'X)⁻¹
+//!
+//! replaces the unknown error variances by weights ωᵢ built from the
+//! residuals eᵢ; xᵢ is row i of the design over the estimable columns.
+//!
+//! References:
+//! * White, H. (1980). A heteroskedasticity-consistent covariance matrix
+//!   estimator and a direct test for heteroskedasticity. *Econometrica*
+//!   48(4), 817–838.
+//! * MacKinnon, J. G. & White, H. (1985). Some heteroskedasticity-consistent
+//!   covariance matrix estimators with improved finite sample properties.
+//!   *Journal of Econometrics* 29(3), 305–325.
+//! * Long, J. S. & Ervin, L. H. (2000). Using heteroscedasticity consistent
+//!   standard errors in the linear regression model. *The American
+//!   Statistician* 54(3), 217–224.
+
+use nalgebra::DMatrix;
+
+/// Which heteroscedasticity-consistent estimator.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+pub enum Robust {
+    /// HC1: ωᵢ = n/(n − p)·eᵢ², White's HC0 with the degrees-of-freedom
+    /// correction of MacKinnon & White (1985); n rows, p estimable
+    /// coefficients.
+    Hc1,
+    /// HC3: ωᵢ = eᵢ²/(1 − hᵢ)², hᵢ the leverage of row i (MacKinnon & White
+    /// 1985, their jackknife approximation); recommended by Long & Ervin
+    /// (2000), above all for samples under 250 rows.
+    Hc3,
+}
+
+impl Robust {
+    /// The estimator's usual short name, for the report: "HC1" or "HC3".
+    pub fn label(self) -> &'static str {
+        match self {
+            Robust::Hc1 => "HC1",
+            Robust::Hc3 => "HC3",
+        }
+    }
+}
+
+/// Rows whose leverage is within this of 1 are taken to have leverage 1:
+/// leverages are computed to about 10⁻¹⁵, so 1 − hᵢ below 10⁻¹⁰ is rounding,
+/// not a measurement.
+pub const UNIT_LEVERAGE_TOLERANCE: f64 = 1e-10;
+
+/// Indices of the rows whose leverage is 1 to within
+/// [`UNIT_LEVERAGE_TOLERANCE`]: rows the fit passes through whatever their
+/// response, such as the only row of a factor level. HC3 leaves them out of
+/// its sum (see [`robust_covariance`]); a caller may want to say so.
+pub fn unit_leverage_rows(leverage: &[f64]) -> Vec<usize> {
+    leverage
+        .iter()
+        .enumerate()
+        .filter(|(_, &h)| 1.0 - h <= UNIT_LEVERAGE_TOLERANCE)
+        .map(|(i, _)| i)
+        .collect()
+}
+
+/// The heteroscedasticity-consistent covariance matrix of the coefficients
+/// over the estimable columns `kept` of `x`, in the order of `kept`.
+///
+/// `xtx_inv` is (X'X)⁻¹ over those columns, `residuals` and `leverage` one
+/// value per row of `x` (all as in [`crate::fit::LeastSquares`]; pass
+/// `residuals.as_slice()`). With cᵢ = (X'X)⁻¹xᵢ, the estimate is
+///
+/// V = Σᵢ ωᵢ cᵢcᵢ'  (White 1980),
+///
+/// * HC1: ωᵢ = n/(n − p)·eᵢ² (MacKinnon & White 1985);
+/// * HC3: ωᵢ = eᵢ²/(1 − hᵢ)² (MacKinnon & White 1985; Long & Ervin 2000).
+///
+/// The standard errors are the square roots of the diagonal. V is formed as
+/// W'W, W the rows √ωᵢ·cᵢ', so it is symmetric and never has a negative
+/// diagonal.
+///
+/// A row with leverage 1 (see [`UNIT_LEVERAGE_TOLERANCE`]) has a zero
+/// residual whatever its error, so its HC3 weight is 0/0. HC3 leaves such
+/// rows out of the sum (weight zero) instead of letting the 0/0 make every
+/// entry NaN. The coefficients such a row does not move (those the other
+/// rows determine alone) then get exactly the variance they would get
+/// without it; the coefficient it alone determines (the indicator of a level
+/// with one row) gets a variance that leaves out that row's own error
+/// variance, which no residual can estimate, and so is too small.
+/// [`unit_leverage_rows`] finds these rows. HC1 needs no such rule: the
+/// row's residual is zero and so is its weight.
+///
+/// When the shapes disagree (`xtx_inv` not p × p, `residuals` or, for HC3,
+/// `leverage` not one per row, an index of `kept` past the columns of `x`)
+/// or there are no more rows than coefficients, the variance is undefined
+/// and every entry is NaN.
+pub fn robust_covariance(
+    x: &DMatrix<f64>,
+    kept: &[usize],
+    xtx_inv: &DMatrix<f64>,
+    residuals: &[f64],
+    leverage: &[f64],
+    kind: Robust,
+) -> DMatrix<f64> {
+    let p = kept.len();
+    let n = x.nrows();
+    let shapes_agree = xtx_inv.shape() == (p, p)
+        && residuals.len() == n
+        && (kind == Robust::Hc1 || leverage.len() == n)
+        && kept.iter().all(|&j| j < x.ncols());
+    if !shapes_agree || n <= p {
+        return DMatrix::from_element(p, p, f64::NAN);
+    }
+    // Row i of c is cᵢ' = xᵢ'(X'X)⁻¹ ((X'X)⁻¹ is symmetric).
+    let mut w = x.select_columns(kept) * xtx_inv;
+    let hc1_scale = (n as f64 / (n - p) as f64).sqrt();
+    for (i, mut row) in w.row_iter_mut().enumerate() {
+        let e = residuals[i].abs();
+        let root_weight = match kind {
+            Robust::Hc1 => hc1_scale * e,
+            Robust::Hc3 => {
+                let room = 1.0 - leverage[i];
+                if room <= UNIT_LEVERAGE_TOLERANCE {
+                    0.0
+                } else {
+                    e / room
+                }
+            }
+        };
+        row *= root_weight;
+    }
+    w.tr_mul(&w)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fit::least_squares;
+    use nalgebra::DVector;
+
+    /// A straight line through six points with unequal scatter.
+    fn line() -> (DMatrix<f64>, DVector<f64>) {
+        let xs = [1.0, 2.0, 3.0, 4.0, 5.0, 6.0];
+        let ys = [1.2, 1.9, 3.4, 3.7, 5.9, 5.1];
+        let x = DMatrix::from_fn(6, 2, |i, j| if j == 0 { 1.0 } else { xs[i] });
+        (x, DVector::from_row_slice(&ys))
+    }
+
+    #[test]
+    fn slope_of_a_line_matches_the_closed_form() {
+        // For y = a + b·x, HC0 of the slope is Σ (xᵢ − x̄)² eᵢ² / Sxx²
+        // (White 1980); HC1 scales it by n/(n − 2), HC3 divides each term
+        // by (1 − hᵢ)².
+        let (x, y) = line();
+        let ls = least_squares(&x, None, &y);
+        let xs: Vec<f64> = x.column(1).iter().copied().collect();
+        let mean = xs.iter().sum::<f64>() / 6.0;
+        let sxx: f64 = xs.iter().map(|v| (v - mean).powi(2)).sum();
+        let term = |i: usize| (xs[i] - mean).powi(2) * ls.residuals[i].powi(2) / (sxx * sxx);
+        let hc1: f64 = (0..6).map(term).sum::<f64>() * 6.0 / 4.0;
+        let hc3: f64 = (0..6)
+            .map(|i| term(i) / (1.0 - ls.leverage[i]).powi(2))
+            .sum();
+        let e = ls.residuals.as_slice();
+        let v1 = robust_covariance(&x, &ls.kept, &ls.xtx_inv, e, &ls.leverage, Robust::Hc1);
+        let v3 = robust_covariance(&x, &ls.kept, &ls.xtx_inv, e, &ls.leverage, Robust::Hc3);
+        assert!(
+            (v1[(1, 1)] / hc1 - 1.0).abs() < 1e-13,
+            "{} vs {hc1}",
+            v1[(1, 1)]
+        );
+        assert!(
+            (v3[(1, 1)] / hc3 - 1.0).abs() < 1e-13,
+            "{} vs {hc3}",
+            v3[(1, 1)]
+        );
+        assert_eq!(v1, v1.transpose());
+    }
+
+    #[test]
+    fn a_row_with_leverage_one_is_left_out_of_hc3() {
+        // The last column is the indicator of the last row alone: its
+        // leverage is 1 and its residual 0.
+        let (x, y) = line();
+        let x = x.insert_column(2, 0.0);
+        let mut x = x;
+        x[(5, 2)] = 1.0;
+        let ls = least_squares(&x, None, &y);
+        assert_eq!(unit_leverage_rows(&ls.leverage), vec![5]);
+        let e = ls.residuals.as_slice();
+        let v = robust_covariance(&x, &ls.kept, &ls.xtx_inv, e, &ls.leverage, Robust::Hc3);
+        assert!(v.iter().all(|v| v.is_finite()), "{v}");
+        // Intercept and slope: as from the first five rows alone.
+        let (x5, y5) = (
+            x.rows(0, 5).columns(0, 2).into_owned(),
+            y.rows(0, 5).into_owned(),
+        );
+        let ls5 = least_squares(&x5, None, &y5);
+        let e5 = ls5.residuals.as_slice();
+        let v5 = robust_covariance(&x5, &ls5.kept, &ls5.xtx_inv, e5, &ls5.leverage, Robust::Hc3);
+        for (j, k) in [(0, 0), (0, 1), (1, 1)] {
+            assert!((v[(j, k)] / v5[(j, k)] - 1.0).abs() < 1e-10, "{j},{k}");
+        }
+    }
+
+    #[test]
+    fn mismatched_or_too_short_inputs_give_nan_not_a_panic() {
+        let (x, y) = line();
+        let ls = least_squares(&x, None, &y);
+        let e = ls.residuals.as_slice();
+        let h = &ls.leverage;
+        let nan = |v: DMatrix<f64>| v.shape() == (2, 2) && v.iter().all(|v| v.is_nan());
+        for kind in [Robust::Hc1, Robust::Hc3] {
+            assert!(nan(robust_covariance(
+                &x,
+                &[0, 1],
+                &ls.xtx_inv,
+                &e[..5],
+                h,
+                kind
+            )));
+            assert!(nan(robust_covariance(&x, &[0, 7], &ls.xtx_inv, e, h, kind)));
+            let wrong = DMatrix::zeros(3, 3);
+            assert!(nan(robust_covariance(&x, &[0, 1], &wrong, e, h, kind)));
+            let two = x.rows(0, 2).into_owned();
+            assert!(nan(robust_covariance(
+                &two,
+                &[0, 1],
+                &ls.xtx_inv,
+                &e[..2],
+                &h[..2],
+                kind
+            )));
+        }
+        assert!(nan(robust_covariance(
+            &x,
+            &[0, 1],
+            &ls.xtx_inv,
+            e,
+            &h[..3],
+            Robust::Hc3
+        )));
+        // HC1 does not read the leverages.
+        let v = robust_covariance(&x, &[0, 1], &ls.xtx_inv, e, &[], Robust::Hc1);
+        assert!(v.iter().all(|v| v.is_finite()));
+        // No coefficients: an empty matrix.
+        let v = robust_covariance(&x, &[], &DMatrix::zeros(0, 0), e, h, Robust::Hc3);
+        assert_eq!(v.shape(), (0, 0));
+    }
+}
