@@ -96,6 +96,16 @@ pub struct HistoryPoint {
     pub fitted: f64,
 }
 
+/// One point of the normal quantile plot.
+#[derive(Debug, Clone, Serialize)]
+pub struct NormalPoint {
+    /// Expected standard normal quantile Φ⁻¹((i − 3/8)/(n + 1/4)) of the
+    /// i-th smallest of n values (Blom 1958).
+    pub normal_quantile: f64,
+    /// The i-th smallest standardized residual.
+    pub standardized_residual: f64,
+}
+
 /// One model's results.
 #[derive(Debug, Clone, Serialize)]
 pub struct ModelResults {
@@ -142,6 +152,8 @@ pub struct ModelResults {
     pub collinearity: Vec<TermCollinearity>,
     /// Per-row residuals and influence.
     pub residuals: Vec<RowDiagnostics>,
+    /// The standardized residuals, sorted, against their normal quantiles.
+    pub normal_plot: Vec<NormalPoint>,
     /// Per-period means of actual and fitted values, for models with a
     /// date column.
     pub history: Vec<HistoryPoint>,
@@ -180,6 +192,7 @@ pub fn analyse(
     backtest: Option<Backtest>,
 ) -> ModelResults {
     let residuals = row_diagnostics(design, fit);
+    let normal_plot = normal_plot(&residuals);
     let collinearity = collinearity(design, &fit.solution.kept);
     let baselines = design
         .terms
@@ -259,12 +272,36 @@ pub fn analyse(
             .collect(),
         collinearity,
         residuals,
+        normal_plot,
         history: history(design, fit),
         forecast,
         backtest,
         suggested_from: None,
         dropped_terms: Vec::new(),
     }
+}
+
+/// The standardized residuals sorted against Blom's normal scores.
+fn normal_plot(rows: &[RowDiagnostics]) -> Vec<NormalPoint> {
+    let mut r: Vec<f64> = rows
+        .iter()
+        .filter_map(|d| d.standardized_residual)
+        .collect();
+    r.sort_by(f64::total_cmp);
+    let n = r.len() as f64;
+    let Ok(normal) = statrs::distribution::Normal::new(0.0, 1.0) else {
+        return Vec::new();
+    };
+    r.iter()
+        .enumerate()
+        .map(|(i, &v)| NormalPoint {
+            normal_quantile: statrs::distribution::ContinuousCDF::inverse_cdf(
+                &normal,
+                (i as f64 + 1.0 - 0.375) / (n + 0.25),
+            ),
+            standardized_residual: v,
+        })
+        .collect()
 }
 
 /// Per-period means of the actual and fitted values, back on the
@@ -409,6 +446,46 @@ mod tests {
         assert_eq!(significant(3.16081871345e-15, 4), "3.161e-15");
         assert_eq!(significant(1829.15146, 4), "1829");
         assert_eq!(significant(0.00073206, 4), "0.0007321");
+    }
+
+    #[test]
+    fn normal_plot_uses_blom_scores() {
+        // Φ⁻¹((i − 3/8)/(n + 1/4)) for n = 5 from scipy 1.17.1
+        // (scipy.stats.norm.ppf): ±1.1797611176118612, ±0.49720057068155404, 0.
+        let rows: Vec<RowDiagnostics> = [0.3, -1.0, 2.0, 0.0, -0.2]
+            .iter()
+            .map(|&r| RowDiagnostics {
+                row: 2,
+                period: None,
+                index: None,
+                actual: 0.0,
+                fitted: 0.0,
+                residual: 0.0,
+                standardized_residual: Some(r),
+                leverage: 0.0,
+                cooks_distance: None,
+                studentized_residual: None,
+                dffits: None,
+                flags: vec![],
+            })
+            .collect();
+        let plot = normal_plot(&rows);
+        let expected = [
+            -1.1797611176118612,
+            -0.49720057068155404,
+            0.0,
+            0.49720057068155404,
+            1.1797611176118612,
+        ];
+        for (p, q) in plot.iter().zip(expected) {
+            assert!(
+                (p.normal_quantile - q).abs() < 1e-14,
+                "{} vs {q}",
+                p.normal_quantile
+            );
+        }
+        let sorted: Vec<f64> = plot.iter().map(|p| p.standardized_residual).collect();
+        assert_eq!(sorted, vec![-1.0, -0.2, 0.0, 0.3, 2.0]);
     }
 
     #[test]

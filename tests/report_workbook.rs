@@ -151,6 +151,7 @@ fn report_sheets_are_named_in_order() {
             "Back-test",
             "Back-test rows",
             "Chart data",
+            "Normal plot",
             "Charts"
         ]
     );

@@ -6,7 +6,9 @@ use rust_xlsxwriter::{
     Chart, ChartFormat, ChartSolidFill, ChartType, Workbook, Worksheet, XlsxError,
 };
 
-use super::{num, opt, text, write_table, Cell, Formats, Style, SHEETS};
+use super::{
+    num, opt, text, write_table, Cell, Formats, Style, BACKTEST, BACKTEST_ROWS, CHART_DATA,
+};
 use crate::results::{ModelResults, Results};
 
 /// Where a model's forecast-chart data sit on the chart-data sheet.
@@ -135,7 +137,7 @@ pub(super) fn backtest_sheets(
             }
         }
     }
-    let summary_sheet = workbook.add_worksheet().set_name(SHEETS[8])?;
+    let summary_sheet = workbook.add_worksheet().set_name(BACKTEST)?;
     if summary.is_empty() {
         note(
             summary_sheet,
@@ -156,7 +158,7 @@ pub(super) fn backtest_sheets(
         ];
         write_table(summary_sheet, f, "Backtest_table", 0, &headers, &summary)?;
     }
-    let points_sheet = workbook.add_worksheet().set_name(SHEETS[9])?;
+    let points_sheet = workbook.add_worksheet().set_name(BACKTEST_ROWS)?;
     if points.is_empty() {
         return note(points_sheet, f, "No back-test rows.");
     }
@@ -249,7 +251,7 @@ const BAND_COL: u16 = 7;
 /// stacked-area band, with the actual, fitted and forecast lines over it,
 /// on a date axis.
 pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
-    let data = SHEETS[10];
+    let data = CHART_DATA;
     let range = |col: u16| (data, block.first, col, block.last, col);
     let mut band = Chart::new(ChartType::AreaStacked);
     band.add_series()

@@ -7,29 +7,45 @@
 
 use chrono::Datelike;
 use rust_xlsxwriter::{
-    Chart, ChartAxisLabelPosition, ChartMarker, ChartMarkerType, ChartType, DocProperties,
-    ExcelDateTime, Format, FormatAlign, Table, TableColumn, TableStyle, Workbook, Worksheet,
-    XlsxError,
+    Chart, ChartAxisLabelPosition, ChartFormat, ChartLine, ChartMarker, ChartMarkerType, ChartType,
+    DocProperties, ExcelDateTime, Format, FormatAlign, Table, TableColumn, TableStyle, Workbook,
+    Worksheet, XlsxError,
 };
 
 use crate::results::{row_ranges, ModelResults, Results};
 
 mod forecast;
 
+/// Sheet names.
+const OVERVIEW: &str = "Overview";
+const COEFFICIENTS: &str = "Coefficients";
+const ANOVA: &str = "ANOVA";
+const FIT_QUALITY: &str = "Fit quality";
+const COMPARISON: &str = "Comparison";
+const CHECKS: &str = "Checks";
+const RESIDUALS: &str = "Residuals";
+const FORECAST: &str = "Forecast";
+const BACKTEST: &str = "Back-test";
+const BACKTEST_ROWS: &str = "Back-test rows";
+const CHART_DATA: &str = "Chart data";
+const NORMAL_PLOT: &str = "Normal plot";
+const CHARTS: &str = "Charts";
+
 /// Sheet names, in the order they appear.
-pub const SHEETS: [&str; 12] = [
-    "Overview",
-    "Coefficients",
-    "ANOVA",
-    "Fit quality",
-    "Comparison",
-    "Checks",
-    "Residuals",
-    "Forecast",
-    "Back-test",
-    "Back-test rows",
-    "Chart data",
-    "Charts",
+pub const SHEETS: [&str; 13] = [
+    OVERVIEW,
+    COEFFICIENTS,
+    ANOVA,
+    FIT_QUALITY,
+    COMPARISON,
+    CHECKS,
+    RESIDUALS,
+    FORECAST,
+    BACKTEST,
+    BACKTEST_ROWS,
+    CHART_DATA,
+    NORMAL_PLOT,
+    CHARTS,
 ];
 
 /// One cell of a table row.
@@ -187,56 +203,58 @@ pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
             .set_comment(format!("Run {}", results.run.run_time)),
     );
     overview(
-        workbook.add_worksheet().set_name(SHEETS[0])?,
+        workbook.add_worksheet().set_name(OVERVIEW)?,
         &formats,
         results,
     )?;
     coefficients(
-        workbook.add_worksheet().set_name(SHEETS[1])?,
+        workbook.add_worksheet().set_name(COEFFICIENTS)?,
         &formats,
         results,
     )?;
-    anova(
-        workbook.add_worksheet().set_name(SHEETS[2])?,
-        &formats,
-        results,
-    )?;
+    anova(workbook.add_worksheet().set_name(ANOVA)?, &formats, results)?;
     fit_quality(
-        workbook.add_worksheet().set_name(SHEETS[3])?,
+        workbook.add_worksheet().set_name(FIT_QUALITY)?,
         &formats,
         results,
     )?;
     comparison(
-        workbook.add_worksheet().set_name(SHEETS[4])?,
+        workbook.add_worksheet().set_name(COMPARISON)?,
         &formats,
         results,
     )?;
     checks(
-        workbook.add_worksheet().set_name(SHEETS[5])?,
+        workbook.add_worksheet().set_name(CHECKS)?,
         &formats,
         results,
     )?;
     let spans = residuals(
-        workbook.add_worksheet().set_name(SHEETS[6])?,
+        workbook.add_worksheet().set_name(RESIDUALS)?,
         &formats,
         results,
     )?;
     forecast::forecast_sheet(
-        workbook.add_worksheet().set_name(SHEETS[7])?,
+        workbook.add_worksheet().set_name(FORECAST)?,
         &formats,
         results,
     )?;
     forecast::backtest_sheets(&mut workbook, &formats, results)?;
     let history = forecast::chart_data(
-        workbook.add_worksheet().set_name(SHEETS[10])?,
+        workbook.add_worksheet().set_name(CHART_DATA)?,
+        &formats,
+        results,
+    )?;
+    let normal = normal_plot_data(
+        workbook.add_worksheet().set_name(NORMAL_PLOT)?,
         &formats,
         results,
     )?;
     charts(
-        workbook.add_worksheet().set_name(SHEETS[11])?,
+        workbook.add_worksheet().set_name(CHARTS)?,
         results,
         &spans,
         &history,
+        &normal,
     )?;
     workbook.save_to_buffer()
 }
@@ -678,15 +696,81 @@ fn residuals(
     Ok(spans)
 }
 
+/// The sorted standardized residuals of every model beside their normal
+/// quantiles; returns each model's rows.
+fn normal_plot_data(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<Vec<Span>, XlsxError> {
+    let headers = ["Model", "Normal quantile", "Standardized residual (sorted)"];
+    let mut rows = Vec::new();
+    let mut spans = Vec::new();
+    for m in &results.models {
+        let first = 1 + rows.len() as u32;
+        for p in &m.normal_plot {
+            rows.push(vec![
+                text(m.name.as_str()),
+                num(p.normal_quantile, Style::Value),
+                num(p.standardized_residual, Style::Value),
+            ]);
+        }
+        spans.push(Span {
+            first,
+            last: rows.len() as u32,
+        });
+    }
+    write_table(sheet, f, "Normal_plot_table", 0, &headers, &rows)?;
+    Ok(spans)
+}
+
+/// Normal quantile plot: sorted standardized residuals against their
+/// normal scores, with the line y = x they follow when the residuals are
+/// normal.
+fn normal_chart(m: &ModelResults, span: Span) -> Chart {
+    let range = |col: u16| (NORMAL_PLOT, span.first, col, span.last, col);
+    let mut chart = Chart::new(ChartType::ScatterStraight);
+    chart
+        .add_series()
+        .set_name("Standardized residuals")
+        .set_categories(range(1))
+        .set_values(range(2))
+        .set_marker(
+            ChartMarker::new()
+                .set_type(ChartMarkerType::Circle)
+                .set_size(5),
+        )
+        .set_format(ChartFormat::new().set_no_line());
+    chart
+        .add_series()
+        .set_name("Normal line (y = x)")
+        .set_categories(range(1))
+        .set_values(range(1))
+        .set_marker(ChartMarker::new().set_none())
+        .set_format(ChartFormat::new().set_line(ChartLine::new().set_color("#ED7D31")));
+    chart
+        .title()
+        .set_name(format!("{}: normal quantile plot of the residuals", m.name).as_str());
+    chart
+        .x_axis()
+        .set_name("Normal quantile")
+        .set_label_position(ChartAxisLabelPosition::Low);
+    chart.y_axis().set_name("Standardized residual");
+    chart.legend().set_hidden();
+    chart.set_width(560).set_height(400);
+    chart
+}
+
 fn charts(
     sheet: &mut Worksheet,
     results: &Results,
     spans: &[Span],
     history: &[forecast::ChartBlock],
+    normal: &[Span],
 ) -> Result<(), XlsxError> {
     // Printed (or converted to PDF) one page wide, in landscape.
     sheet.set_landscape().set_print_fit_to_pages(1, 0);
-    let residual_sheet = SHEETS[6];
+    let residual_sheet = RESIDUALS;
     for (k, (m, span)) in results.models.iter().zip(spans).enumerate() {
         let top = k as u32 * 22;
         let fitted = (
@@ -736,8 +820,11 @@ fn charts(
         );
         sheet.insert_chart(top, 0, &actual)?;
         sheet.insert_chart(top, 9, &resid)?;
+        if let Some(span) = normal.get(k).filter(|s| s.last >= s.first) {
+            sheet.insert_chart(top, 18, &normal_chart(m, *span))?;
+        }
         if let Some(block) = history.iter().find(|b| b.model == k) {
-            sheet.insert_chart(top, 18, &forecast::forecast_chart(m, block))?;
+            sheet.insert_chart(top, 27, &forecast::forecast_chart(m, block))?;
         }
     }
     Ok(())
