@@ -112,6 +112,15 @@ fn pair(small: &Candidate<'_>, large: &Candidate<'_>) -> Comparison {
             None => format!("'{}' is nested in '{}'", small.name, large.name),
         };
         (f, p, words)
+    } else if same_data && subset && df1 == 0 {
+        (
+            None,
+            None,
+            format!(
+                "'{}' and '{}' have the same coefficients: they are the same model",
+                small.name, large.name
+            ),
+        )
     } else {
         let why = if !same_data {
             "different rows or response"

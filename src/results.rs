@@ -8,6 +8,7 @@
 use serde::Serialize;
 
 use crate::checks::{
+    assumption_checks,
     collinearity::{collinearity, TermCollinearity},
     collinearity_checks, condition_check, each_term_last_anova, influence_check, row_diagnostics,
     sequential_anova, AnovaRow, Check, RowDiagnostics,
@@ -266,8 +267,9 @@ pub fn analyse(
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),
-        checks: [condition_check(fit), influence_check(&residuals)]
+        checks: assumption_checks(design, fit)
             .into_iter()
+            .chain([condition_check(fit), influence_check(&residuals)])
             .chain(collinearity_checks(&collinearity))
             .collect(),
         collinearity,

@@ -4,7 +4,12 @@
 //! Every function here reads a [`Fit`] (and its [`Design`]) and returns new
 //! values; nothing is stored back into the fit.
 
+pub mod assumptions;
 pub mod collinearity;
+
+use assumptions::{
+    breusch_godfrey, breusch_pagan, durbin_watson, jarque_bera, reset, shapiro_wilk, TestResult,
+};
 
 use crate::design::{Design, Term, TermKind};
 use crate::fit::{f_sf, least_squares, Fit, Precision, EXTENDED_ABOVE};
@@ -171,6 +176,97 @@ pub fn condition_check(fit: &Fit) -> Check {
         flagged,
         verdict,
     }
+}
+
+/// The level at which the assumption tests flag a problem.
+pub const TEST_LEVEL: f64 = 0.05;
+
+/// A test result as a check: flagged when p < [`TEST_LEVEL`].
+fn test_check(name: &str, result: Option<TestResult>, rule: &str, good: &str, bad: &str) -> Check {
+    let p = result.as_ref().and_then(|r| r.p_value);
+    let flagged = p.is_some_and(|p| p < TEST_LEVEL);
+    Check {
+        name: name.into(),
+        statistic: result.as_ref().map(|r| r.statistic),
+        p_value: p,
+        rule: format!("{rule}; flagged when p < {TEST_LEVEL}"),
+        flagged,
+        verdict: match (&result, flagged) {
+            (None, _) => "not computed: too few rows, or no variation in the residuals".into(),
+            (Some(_), true) => bad.into(),
+            (Some(_), false) => good.into(),
+        },
+    }
+}
+
+/// The assumption checks of a fit: independence (Durbin-Watson, and
+/// Breusch-Godfrey when the model has periods), constant spread
+/// (Breusch-Pagan, Koenker's studentized form), normality (Jarque-Bera,
+/// Shapiro-Wilk) and missing curvature (RESET).
+pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
+    let e: Vec<f64> = fit.solution.residuals.iter().copied().collect();
+    let y: Vec<f64> = design.y.iter().copied().collect();
+    let order_words = if design.timing.is_some() {
+        "rows in period order"
+    } else {
+        "rows in sheet order; meaningful only when that order is time"
+    };
+    let mut checks = vec![test_check(
+        "durbin-watson",
+        durbin_watson(&e, &design.x),
+        &format!("Durbin & Watson (1950, 1971); p for positive autocorrelation, exact below 100 rows, else normal approximation; {order_words}"),
+        "residuals look independent from one row to the next",
+        "residuals of neighbouring rows move together (positive autocorrelation): standard errors and p-values are too optimistic; consider a trend, seasons or fewer, longer periods",
+    )];
+    if let Some(timing) = &design.timing {
+        let order = design
+            .terms
+            .iter()
+            .find_map(|t| match t.kind {
+                TermKind::Season { by, .. } => Some(by.labels().len()),
+                _ => None,
+            })
+            .unwrap_or(2);
+        checks.push(test_check(
+            "breusch-godfrey",
+            breusch_godfrey(&e, &design.x, order),
+            &format!(
+                "Breusch (1978), Godfrey (1978): autocorrelation up to lag {order} ({} periods); chi-square LM form",
+                timing.frequency.name()
+            ),
+            "no sign of autocorrelation up to that lag",
+            "residuals are correlated across periods: standard errors are too optimistic and forecasts' intervals too narrow",
+        ));
+    }
+    checks.push(test_check(
+        "breusch-pagan",
+        breusch_pagan(&e, &design.x),
+        "Breusch & Pagan (1979), studentized by Koenker (1981): does the spread of the residuals change with the predictors?",
+        "spread looks constant",
+        "spread changes with the predictors: consider robust standard errors (standard_errors = \"HC3\") or a log response",
+    ));
+    checks.push(test_check(
+        "jarque-bera",
+        jarque_bera(&e),
+        "Jarque & Bera (1980): skewness and kurtosis of the residuals against the normal",
+        "residuals look normal in shape",
+        "residuals are skewed or heavy-tailed: p-values and intervals are approximate; look at the flagged rows and the normal plot",
+    ));
+    checks.push(test_check(
+        "shapiro-wilk",
+        shapiro_wilk(&e),
+        "Shapiro & Wilk (1965), Royston's (1995) algorithm, 3 to 5000 rows",
+        "residuals look normal",
+        "residuals depart from the normal: p-values and intervals are approximate; look at the normal plot",
+    ));
+    checks.push(test_check(
+        "reset",
+        reset(&y, &design.x, &fit.fitted),
+        "Ramsey (1969) RESET: do the squared and cubed fitted values add anything?",
+        "no sign of missing curvature",
+        "the relation looks curved: consider a polynomial term, an interaction or a log response",
+    ));
+    checks
 }
 
 /// A GVIF^(1/(2·df)) above this flags a term: for one-column terms that is
