@@ -64,6 +64,9 @@ pub struct JobFile {
     pub output: OutputFile,
     /// p-value above which the suggested model drops a term; default 0.05.
     pub suggest_threshold: Option<f64>,
+    /// Last run's results JSON, relative to the job file: the report then
+    /// shows what changed and how last run's forecasts did.
+    pub compare_with: Option<PathBuf>,
     /// The models to fit, in the order they appear in the report.
     #[serde(default, rename = "model")]
     pub models: Vec<ModelFile>,
@@ -86,8 +89,12 @@ pub struct InputFile {
 #[serde(deny_unknown_fields)]
 pub struct OutputFile {
     /// The report workbook, relative to the job file; the results JSON is
-    /// written beside it with the extension `.json`.
+    /// written beside it with the extension `.json`. May contain `{period}`
+    /// (the data's last period), `{date}` (the run date) and `{job}` (the
+    /// job file's stem).
     pub workbook: Option<PathBuf>,
+    /// Replace an existing report; default false.
+    pub overwrite: Option<bool>,
 }
 
 /// One `[[model]]` table.
@@ -195,8 +202,13 @@ pub struct Job {
     pub sheet: Option<String>,
     /// Header row, counted from 1.
     pub header_row: u32,
-    /// Report workbook path, resolved.
+    /// Report workbook path, resolved; may still hold `{period}`, `{date}`
+    /// and `{job}` placeholders.
     pub output: PathBuf,
+    /// Whether an existing report may be replaced.
+    pub overwrite: bool,
+    /// Last run's results JSON, resolved.
+    pub compare_with: Option<PathBuf>,
     /// The models, in job order.
     pub models: Vec<ModelSpec>,
     /// p-value above which the suggested model drops a term.
@@ -393,6 +405,19 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                     format!("'{}' must end in .xlsx", p.display()),
                 ));
             }
+            let text = p.to_string_lossy();
+            let mut rest = text.as_ref();
+            while let Some(open) = rest.find('{') {
+                let close = rest[open..].find('}').map(|c| open + c);
+                let name = close.map(|c| &rest[open + 1..c]);
+                if !matches!(name, Some("period" | "date" | "job")) {
+                    return Err(invalid(
+                        "output.workbook",
+                        format!("'{text}' has a placeholder the tool does not know; use {{period}}, {{date}} or {{job}}"),
+                    ));
+                }
+                rest = &rest[close.map_or(rest.len(), |c| c + 1)..];
+            }
             folder.join(p)
         }
         None => {
@@ -565,6 +590,8 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         sheet: file.input.sheet,
         header_row,
         output,
+        overwrite: file.output.overwrite.unwrap_or(false),
+        compare_with: file.compare_with.map(|p| folder.join(p)),
         models,
         suggest_threshold,
     })

@@ -8,6 +8,7 @@
 //! atomically). [`run_job`] and [`check_job`] drive it for the binary.
 #![warn(missing_docs)]
 
+pub mod changes;
 pub mod checks;
 pub mod compare;
 pub mod design;
@@ -20,7 +21,8 @@ pub mod results;
 pub mod source;
 
 use std::fmt::Write as _;
-use std::path::Path;
+use std::path::{Path, PathBuf};
+use std::time::Instant;
 
 use sha2::{Digest, Sha256};
 
@@ -49,6 +51,21 @@ pub enum Error {
     /// The report could not be written.
     #[error(transparent)]
     Report(#[from] report::ReportError),
+    /// Last run's results could not be read.
+    #[error(transparent)]
+    Changes(#[from] changes::ChangesError),
+    /// The report exists and the run may not replace it.
+    #[error("{path} exists; run with --overwrite, or set `overwrite = true` under [output] in the job file, to replace it (or put {{period}} or {{date}} in `output.workbook` to keep every run)")]
+    Exists {
+        /// The existing file.
+        path: PathBuf,
+    },
+    /// `{period}` in the output path without any periods.
+    #[error("`output.workbook` ({path}) uses {{period}}, but no model has a date column (`trend` or `season`)")]
+    NoPeriod {
+        /// The output path as written.
+        path: PathBuf,
+    },
     /// The input could not be read for its fingerprint.
     #[error("cannot read input {path} for its SHA-256: {source}")]
     Fingerprint {
@@ -152,21 +169,49 @@ fn model_results(
     Ok((models, comparisons))
 }
 
-/// Reads the job's input and fits every model, returning all results.
+/// How a run behaves beyond what the job file says.
+#[derive(Debug, Clone, Default)]
+pub struct RunOptions {
+    /// Replace existing reports even when the job does not say so.
+    pub overwrite: bool,
+    /// The run time to record instead of the clock's, for byte-identical
+    /// reruns.
+    pub run_time: Option<chrono::DateTime<chrono::Utc>>,
+    /// Last run's results JSON, overriding the job's `compare_with`.
+    pub previous: Option<PathBuf>,
+}
+
+/// Time spent in each stage of a run, for `-v`.
+pub type Timings = Vec<(&'static str, std::time::Duration)>;
+
+/// Reads the job's input and fits every model, returning all results and
+/// the time each stage took.
 ///
 /// # Errors
 /// The first [`Error`] met; no model's results are returned when any fails.
-pub fn analyse_job(job: &Job) -> Result<Results, Error> {
+pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings), Error> {
+    let mut timings = Timings::new();
+    let clock = Instant::now();
     let table = source::read_table(&job.input, job.sheet.as_deref(), job.header_row)?;
     let bytes = std::fs::read(&job.input).map_err(|source| Error::Fingerprint {
         path: job.input.clone(),
         source,
     })?;
+    timings.push(("read input", clock.elapsed()));
+    let clock = Instant::now();
     let fitted = fit_models(job, &table)?;
     let (models, comparisons) = model_results(job, &fitted)?;
+    let changes = options
+        .previous
+        .as_ref()
+        .or(job.compare_with.as_ref())
+        .map(|path| changes::against(path, &models))
+        .transpose()?;
+    timings.push(("fit and check", clock.elapsed()));
+    let run_time = options.run_time.unwrap_or_else(chrono::Utc::now);
     let run = RunStamp {
         tool: format!("sheetfit {}", env!("CARGO_PKG_VERSION")),
-        run_time: chrono::Utc::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
+        run_time: run_time.to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
         job_file: job.path.display().to_string(),
         job_sha256: sha256_hex(job.text.as_bytes()),
         input_file: job.input.display().to_string(),
@@ -174,18 +219,75 @@ pub fn analyse_job(job: &Job) -> Result<Results, Error> {
         sheet: table.sheet.clone(),
         rows_read: table.rows.len(),
     };
-    Ok(collect(job, run, models, comparisons))
+    Ok((collect(job, run, models, comparisons, changes), timings))
+}
+
+/// The report path with its placeholders filled: `{period}` the last
+/// period in the data over the models with a date column, `{date}` the run
+/// date, `{job}` the job file's stem.
+///
+/// # Errors
+/// [`Error::NoPeriod`] when `{period}` is used and no model has periods.
+pub fn output_path(job: &Job, results: &Results) -> Result<PathBuf, Error> {
+    let text = job.output.to_string_lossy().into_owned();
+    if !text.contains('{') {
+        return Ok(job.output.clone());
+    }
+    let mut out = text.clone();
+    if text.contains("{period}") {
+        let last = results
+            .models
+            .iter()
+            .filter_map(|m| m.timing.as_ref().map(|t| t.last.clone()))
+            .max()
+            .ok_or_else(|| Error::NoPeriod {
+                path: job.output.clone(),
+            })?;
+        out = out.replace("{period}", &last);
+    }
+    let date = results.run.run_time.get(..10).unwrap_or_default();
+    let stem = job
+        .path
+        .file_stem()
+        .and_then(|s| s.to_str())
+        .unwrap_or("job");
+    Ok(PathBuf::from(
+        out.replace("{date}", date).replace("{job}", stem),
+    ))
+}
+
+/// What a run wrote and how long it took.
+#[derive(Debug, Clone)]
+pub struct RunReport {
+    /// The files written.
+    pub written: report::Written,
+    /// Time per stage.
+    pub timings: Timings,
 }
 
 /// Runs the job file at `path`: fits every model and writes the report
 /// workbook and the results JSON.
 ///
 /// # Errors
-/// Any [`Error`]; nothing is written when one occurs.
-pub fn run_job(path: &Path) -> Result<report::Written, Error> {
+/// Any [`Error`]; nothing is written when one occurs, and an existing
+/// report is left alone unless the job or `options` allow replacing it.
+pub fn run_job(path: &Path, options: &RunOptions) -> Result<RunReport, Error> {
     let job = job::load(path)?;
-    let results = analyse_job(&job)?;
-    Ok(report::write(&results, &job.output, &job.input)?)
+    let (results, mut timings) = analyse_job(&job, options)?;
+    let clock = Instant::now();
+    let output = output_path(&job, &results)?;
+    let json = report::json_path(&output);
+    report::check_targets(&output, &[&job.input, &job.path])?;
+    if !(options.overwrite || job.overwrite) {
+        if let Some(existing) = [&output, &json].into_iter().find(|p| p.is_file()) {
+            return Err(Error::Exists {
+                path: existing.clone(),
+            });
+        }
+    }
+    let written = report::write(&results, &output, &[&job.input, &job.path])?;
+    timings.push(("write report", clock.elapsed()));
+    Ok(RunReport { written, timings })
 }
 
 /// Checks the job file at `path` against its input without writing
@@ -195,7 +297,7 @@ pub fn run_job(path: &Path) -> Result<report::Written, Error> {
 /// The first [`Error`] a run would meet before writing.
 pub fn check_job(path: &Path) -> Result<String, Error> {
     let job = job::load(path)?;
-    report::check_targets(&job.output, &job.input)?;
+    report::check_targets(&job.output, &[&job.input, &job.path])?;
     let table = source::read_table(&job.input, job.sheet.as_deref(), job.header_row)?;
     let mut out = String::new();
     let _ = writeln!(out, "job {}: {} model(s)", path.display(), job.models.len());
@@ -210,7 +312,10 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
     out.push_str(&describe_columns(&table));
     let fitted = fit_models(&job, &table)?;
     // Everything a run computes, so check meets the errors run would.
-    model_results(&job, &fitted)?;
+    let (models, _) = model_results(&job, &fitted)?;
+    if let Some(previous) = &job.compare_with {
+        changes::against(previous, &models)?;
+    }
     for Fitted { spec, design, fit } in &fitted {
         let _ = writeln!(
             out,

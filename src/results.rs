@@ -7,6 +7,7 @@
 
 use serde::Serialize;
 
+use crate::changes::RunChanges;
 use crate::checks::{
     assumption_checks,
     collinearity::{collinearity, TermCollinearity},
@@ -181,6 +182,9 @@ pub struct Results {
     pub models: Vec<ModelResults>,
     /// Every pair of models, nested pairs with their partial F test.
     pub comparisons: Vec<Comparison>,
+    /// What changed since last run, when the job compares with one.
+    #[serde(flatten)]
+    pub changes: Option<RunChanges>,
 }
 
 /// Computes every reported number for one fitted model, with its forecast
@@ -340,6 +344,7 @@ pub fn collect(
     run: RunStamp,
     models: Vec<ModelResults>,
     comparisons: Vec<Comparison>,
+    changes: Option<RunChanges>,
 ) -> Results {
     Results {
         title: job.title.clone(),
@@ -347,6 +352,7 @@ pub fn collect(
         cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
         models,
         comparisons,
+        changes,
     }
 }
 

@@ -655,7 +655,7 @@ fn output_path_equal_to_the_input_is_refused_and_the_input_is_unchanged() {
     assert_run_and_check_fail(
         &s,
         1,
-        &["the output path ./data.xlsx is the input file itself; choose another `output.workbook` in the job file"],
+        &["the output path ./data.xlsx is the input workbook or the job file itself; choose another `output.workbook` in the job file"],
         &["data.xlsx", "job.toml"],
     );
     assert_eq!(std::fs::read(&input).unwrap(), before, "input changed");
@@ -730,7 +730,10 @@ fn blank_cells_drop_the_row_and_the_json_lists_the_sheet_rows() {
 
     let out = sheetfit(&s.path(""), &["run", "job.toml"]);
     assert_status(&out, 0);
-    assert_stderr_has(&out, &["wrote job-report.xlsx and job-report.json"]);
+    assert_stderr_has(
+        &out,
+        &["job.toml  ok      job-report.xlsx and job-report.json"],
+    );
     assert_files(
         &s,
         &[
@@ -847,7 +850,7 @@ fn several_jobs_one_bad_one_good_writes_the_good_report_and_exits_1() {
         &out,
         &[
             "has no column 'size'",
-            "sheetfit: good.toml: wrote good-report.xlsx and good-report.json",
+            "good.toml  ok      good-report.xlsx and good-report.json",
         ],
     );
     assert_files(

@@ -15,7 +15,7 @@ use crate::results::Results;
 #[derive(Debug, thiserror::Error)]
 pub enum ReportError {
     /// The report would replace the input it was computed from.
-    #[error("the output path {path} is the input file itself; choose another `output.workbook` in the job file")]
+    #[error("the output path {path} is the input workbook or the job file itself; choose another `output.workbook` in the job file")]
     OutputIsInput {
         /// The path given for the report.
         path: PathBuf,
@@ -69,13 +69,13 @@ pub fn json_path(workbook: &Path) -> PathBuf {
 }
 
 /// Writes the workbook to `path` and the results JSON beside it, refusing
-/// to overwrite `input`.
+/// to overwrite any of `protected` (the input workbook and the job file).
 ///
 /// # Errors
 /// [`ReportError`] when the path is unusable or a write fails; in that case
 /// neither file has been replaced.
-pub fn write(results: &Results, path: &Path, input: &Path) -> Result<Written, ReportError> {
-    check_targets(path, input)?;
+pub fn write(results: &Results, path: &Path, protected: &[&Path]) -> Result<Written, ReportError> {
+    check_targets(path, protected)?;
     let json = json_path(path);
     let workbook_bytes =
         workbook::workbook_bytes(results).map_err(|source| ReportError::Workbook {
@@ -114,16 +114,16 @@ pub fn write(results: &Results, path: &Path, input: &Path) -> Result<Written, Re
 }
 
 /// Checks that the report and its JSON can be written without touching
-/// `input`: neither path may be a folder or the input itself.
+/// any of `protected`: neither path may be a folder or a protected file.
 ///
 /// # Errors
 /// [`ReportError::OutputIsFolder`] or [`ReportError::OutputIsInput`].
-pub fn check_targets(path: &Path, input: &Path) -> Result<(), ReportError> {
+pub fn check_targets(path: &Path, protected: &[&Path]) -> Result<(), ReportError> {
     for target in [path.to_path_buf(), json_path(path)] {
         if target.is_dir() {
             return Err(ReportError::OutputIsFolder { path: target });
         }
-        if same_file(&target, input) {
+        if protected.iter().any(|p| same_file(&target, p)) {
             return Err(ReportError::OutputIsInput { path: target });
         }
     }

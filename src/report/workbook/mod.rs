@@ -30,6 +30,9 @@ const BACKTEST_ROWS: &str = "Back-test rows";
 const CHART_DATA: &str = "Chart data";
 const NORMAL_PLOT: &str = "Normal plot";
 const CHARTS: &str = "Charts";
+/// Sheets added when the job compares with last run.
+const CHANGES: &str = "Changes";
+const TRACKING: &str = "Forecast tracking";
 
 /// Sheet names, in the order they appear.
 pub const SHEETS: [&str; 13] = [
@@ -195,8 +198,13 @@ fn write_table(
 pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
     let formats = Formats::new();
     let mut workbook = Workbook::new();
+    // The run time, not the clock, so reruns with a fixed time are identical.
+    let created = chrono::DateTime::parse_from_rfc3339(&results.run.run_time)
+        .map(|t| t.timestamp())
+        .unwrap_or(0);
     workbook.set_properties(
         &DocProperties::new()
+            .set_creation_datetime(&ExcelDateTime::from_timestamp(created)?)
             .set_title(&results.title)
             .set_subject("Linear regression report")
             .set_author(&results.run.tool)
@@ -256,7 +264,89 @@ pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
         &history,
         &normal,
     )?;
+    if let Some(changes) = &results.changes {
+        changes_sheets(&mut workbook, &formats, changes)?;
+    }
     workbook.save_to_buffer()
+}
+
+/// Coefficient moves since last run, and how last run's forecasts did.
+fn changes_sheets(
+    workbook: &mut Workbook,
+    f: &Formats,
+    changes: &crate::changes::RunChanges,
+) -> Result<(), XlsxError> {
+    let sheet = workbook.add_worksheet().set_name(CHANGES)?;
+    let headers = [
+        "Model",
+        "Term",
+        "Last run",
+        "This run",
+        "Change",
+        "Combined standard error",
+        "Change in standard errors",
+        "Notable (beyond ±1.96)",
+    ];
+    let rows: Vec<Vec<Cell>> = changes
+        .changes
+        .iter()
+        .map(|c| {
+            vec![
+                text(c.model.as_str()),
+                text(c.term.as_str()),
+                num(c.previous_estimate, Style::Value),
+                num(c.estimate, Style::Value),
+                num(c.change, Style::Value),
+                num(c.combined_std_error, Style::Value),
+                opt(c.z, Style::Value),
+                text(if c.notable { "yes" } else { "no" }),
+            ]
+        })
+        .collect();
+    if rows.is_empty() {
+        sheet.write_string(
+            0,
+            0,
+            format!(
+                "No model of {} has the same name as a model of this run.",
+                changes.previous
+            ),
+        )?;
+    } else {
+        write_table(sheet, f, "Change_table", 0, &headers, &rows)?;
+    }
+    let sheet = workbook.add_worksheet().set_name(TRACKING)?;
+    let headers = [
+        "Model",
+        "Period",
+        "Last run's estimate",
+        "Last run's prediction lower",
+        "Last run's prediction upper",
+        "Actual (period mean)",
+        "Error (actual − estimate)",
+        "Inside last run's interval",
+    ];
+    let rows: Vec<Vec<Cell>> = changes
+        .forecast_tracking
+        .iter()
+        .map(|t| {
+            vec![
+                text(t.model.as_str()),
+                text(t.period.as_str()),
+                num(t.previous_estimate, Style::Value),
+                num(t.previous_pred_lower, Style::Value),
+                num(t.previous_pred_upper, Style::Value),
+                num(t.actual, Style::Value),
+                num(t.error, Style::Value),
+                text(if t.inside { "yes" } else { "no" }),
+            ]
+        })
+        .collect();
+    if rows.is_empty() {
+        sheet.write_string(0, 0, "None of last run's forecast periods has data yet.")?;
+        return Ok(());
+    }
+    write_table(sheet, f, "Tracking_table", 0, &headers, &rows)
 }
 
 fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
