@@ -16,6 +16,7 @@ use serde::Deserialize;
 
 use crate::fit::robust::Robust;
 use crate::period::{Frequency, SeasonBy};
+use crate::source::Limits;
 
 /// The confidence level used for intervals when a model does not set one.
 pub const DEFAULT_CONFIDENCE: f64 = 0.95;
@@ -82,6 +83,12 @@ pub struct InputFile {
     pub sheet: Option<String>,
     /// Row holding the column names, counted from 1; default 1.
     pub header_row: Option<u32>,
+    /// Raise the pre-scan's limit on the cells a sheet may declare.
+    pub max_cells: Option<u64>,
+    /// Raise the pre-scan's limit on declared shared strings.
+    pub max_shared_strings: Option<u64>,
+    /// Raise the pre-scan's limit on the unpacked size, in MiB.
+    pub max_uncompressed_mb: Option<u64>,
 }
 
 /// The `[output]` table.
@@ -202,6 +209,8 @@ pub struct Job {
     pub sheet: Option<String>,
     /// Header row, counted from 1.
     pub header_row: u32,
+    /// Limits of the workbook pre-scan.
+    pub limits: Limits,
     /// Report workbook path, resolved; may still hold `{period}`, `{date}`
     /// and `{job}` placeholders.
     pub output: PathBuf,
@@ -371,9 +380,30 @@ pub fn load(path: &Path) -> Result<Job, JobError> {
 pub fn parse(path: &Path, text: &str) -> Result<Job, JobError> {
     let file: JobFile = toml::from_str(text).map_err(|e| JobError::Parse {
         path: path.to_path_buf(),
-        message: e.to_string().trim_end().to_string(),
+        message: with_suggestion(e.to_string().trim_end()),
     })?;
     check(path, text, file)
+}
+
+/// Adds "did you mean `numeric`?" to an unknown-field message, from the
+/// field names the message lists.
+fn with_suggestion(message: &str) -> String {
+    let Some(rest) = message.split("unknown field `").nth(1) else {
+        return message.to_string();
+    };
+    let Some((field, expected)) = rest.split_once('`') else {
+        return message.to_string();
+    };
+    let known: Vec<String> = expected
+        .split('`')
+        .skip(1)
+        .step_by(2)
+        .map(str::to_string)
+        .collect();
+    match crate::design::closest(field, &known) {
+        Some(best) => format!("{message}\ndid you mean `{best}`?"),
+        None => message.to_string(),
+    }
 }
 
 fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
@@ -569,6 +599,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             ));
         }
     }
+    let defaults = Limits::default();
     let suggest_threshold = file.suggest_threshold.unwrap_or(0.05);
     if !(suggest_threshold > 0.0 && suggest_threshold < 1.0) {
         return Err(invalid(
@@ -589,6 +620,17 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         input,
         sheet: file.input.sheet,
         header_row,
+        limits: Limits {
+            cells: file.input.max_cells.unwrap_or(defaults.cells),
+            shared_strings: file
+                .input
+                .max_shared_strings
+                .unwrap_or(defaults.shared_strings),
+            uncompressed_mb: file
+                .input
+                .max_uncompressed_mb
+                .unwrap_or(defaults.uncompressed_mb),
+        },
         output,
         overwrite: file.output.overwrite.unwrap_or(false),
         compare_with: file.compare_with.map(|p| folder.join(p)),
@@ -852,6 +894,7 @@ mod tests {
             "{msg}"
         );
         assert!(msg.contains("numerci"), "{msg}");
+        assert!(msg.ends_with("did you mean `numeric`?"), "{msg}");
     }
 
     #[test]

@@ -122,9 +122,12 @@ fn model_results(
     let mut models = Vec::with_capacity(fitted.len());
     for f in fitted {
         let plan = match &f.spec.forecast {
-            Some(job::ForecastSpec::Plan { sheet }) => {
-                Some(source::read_table(&job.input, Some(sheet), job.header_row)?)
-            }
+            Some(job::ForecastSpec::Plan { sheet }) => Some(source::read_table_with(
+                &job.input,
+                Some(sheet),
+                job.header_row,
+                &job.limits,
+            )?),
             _ => None,
         };
         let rows = forecast::forecast(f.spec, &f.design, &f.fit, plan.as_ref())?;
@@ -192,7 +195,12 @@ pub type Timings = Vec<(&'static str, std::time::Duration)>;
 pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings), Error> {
     let mut timings = Timings::new();
     let clock = Instant::now();
-    let table = source::read_table(&job.input, job.sheet.as_deref(), job.header_row)?;
+    let table = source::read_table_with(
+        &job.input,
+        job.sheet.as_deref(),
+        job.header_row,
+        &job.limits,
+    )?;
     let bytes = std::fs::read(&job.input).map_err(|source| Error::Fingerprint {
         path: job.input.clone(),
         source,
@@ -298,7 +306,12 @@ pub fn run_job(path: &Path, options: &RunOptions) -> Result<RunReport, Error> {
 pub fn check_job(path: &Path) -> Result<String, Error> {
     let job = job::load(path)?;
     report::check_targets(&job.output, &[&job.input, &job.path])?;
-    let table = source::read_table(&job.input, job.sheet.as_deref(), job.header_row)?;
+    let table = source::read_table_with(
+        &job.input,
+        job.sheet.as_deref(),
+        job.header_row,
+        &job.limits,
+    )?;
     let mut out = String::new();
     let _ = writeln!(out, "job {}: {} model(s)", path.display(), job.models.len());
     let _ = writeln!(

@@ -12,7 +12,10 @@ fn readme_example_job_checks_against_the_demo_workbook() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
     let readme = std::fs::read_to_string(root.join("README.md")).expect("README.md");
     let start = readme.find("```toml\n").expect("a toml block in README.md") + 8;
-    let end = start + readme[start..].find("```").expect("the end of the toml block");
+    let end = start
+        + readme[start..]
+            .find("```")
+            .expect("the end of the toml block");
     let job = &readme[start..end];
     let scratch = Scratch::new();
     std::fs::copy(

@@ -8,6 +8,11 @@
 //! baseline (treatment coding). Each column remembers the [`Term`] it belongs
 //! to, so that a factor can be tested as one term.
 
+// Design errors carry the model, place, cell, value and a hint so the
+// message can say everything at once; they happen at most once per model,
+// so their size does not matter.
+#![allow(clippy::result_large_err)]
+
 mod time;
 
 use std::collections::{BTreeSet, HashMap};
@@ -39,7 +44,7 @@ pub enum DesignError {
         available: String,
     },
     /// A cell in a numeric column holds something that is not a number.
-    #[error("model '{model}': {place}, cell {cell} in numeric column '{column}' holds {kind} '{value}', not a number; correct the cell, clear it to leave the row out, or list the column under `categorical`")]
+    #[error("model '{model}': {place}, cell {cell} in numeric column '{column}' holds {kind} '{value}', not a number{hint}; correct the cell, clear it to leave the row out, or list the column under `categorical`")]
     NotANumber {
         /// The model.
         model: String,
@@ -53,6 +58,8 @@ pub enum DesignError {
         kind: &'static str,
         /// The value as text.
         value: String,
+        /// A hint when the text looks like a number stored as text.
+        hint: &'static str,
     },
     /// A cell holds an error value such as `#N/A`.
     #[error("model '{model}': {place}, cell {cell} in column '{column}' holds the error value {value}; fix the formula or clear the cell to leave the row out")]
@@ -856,6 +863,11 @@ impl Context<'_> {
                     cell: self.table.cell(column, i),
                     kind: other.kind(),
                     value: other.to_string(),
+                    hint: match other {
+                        Value::Text(t) if looks_like_a_number(t) => " (it looks like a number stored as text, with separators, a sign in brackets, a percent or a currency sign: the tool does not guess what such text means; store the cell as a number)",
+                        Value::Date(_) => " (a date; dates belong in a `trend` or `season` column)",
+                        _ => "",
+                    },
                 }),
             })
             .collect()
@@ -885,6 +897,18 @@ impl Context<'_> {
             value: value.to_string(),
         }
     }
+}
+
+/// Whether text reads as a number once thousands separators, a currency or
+/// percent sign, or accounting brackets are taken off ("1,234", "(1,234)",
+/// "12%", "$1,200"): the tool refuses such cells rather than guess, and
+/// says why.
+fn looks_like_a_number(text: &str) -> bool {
+    let stripped: String = text
+        .chars()
+        .filter(|c| !matches!(c, ',' | ' ' | '$' | '€' | '£' | '%' | '(' | ')' | '\u{a0}'))
+        .collect();
+    !stripped.is_empty() && stripped != text && stripped.parse::<f64>().is_ok()
 }
 
 /// The name in `names` closest to `name` by Jaro-Winkler similarity, when it

@@ -1,0 +1,584 @@
+//! Reading the input: one sheet of a workbook (or a CSV file) into a [`Table`].
+//!
+//! The table keeps every cell's value with its type as the file stored it
+//! and its place in the sheet, so that later stages can say "sheet
+//! 'records', cell C14 holds the text 'n/a'" instead of "bad value".
+//! Nothing here decides what a column means; `design` does that per model.
+
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+mod guard;
+
+pub use guard::Limits;
+
+use calamine::{open_workbook_auto, Data, DataRef, Reader, Sheets};
+
+/// An error while opening or reading the input.
+#[derive(Debug, thiserror::Error)]
+pub enum SourceError {
+    /// The input file is not there or cannot be opened.
+    #[error("cannot open input {path}: {reason}; check `input.workbook` in the job file")]
+    Open {
+        /// The input file.
+        path: PathBuf,
+        /// What went wrong.
+        reason: String,
+    },
+    /// The sheet named in the job does not exist.
+    #[error("{path} has no sheet named '{sheet}'; its sheets are: {available}")]
+    NoSuchSheet {
+        /// The input file.
+        path: PathBuf,
+        /// The sheet asked for.
+        sheet: String,
+        /// The sheet names, quoted and comma separated.
+        available: String,
+    },
+    /// The pre-scan refused the workbook.
+    #[error("refusing to open {path}: {reason}")]
+    Refused {
+        /// The input file.
+        path: PathBuf,
+        /// Which limit, and how to raise it.
+        reason: String,
+    },
+    /// The sheet could not be parsed.
+    #[error("cannot read sheet '{sheet}' of {path}: {reason}")]
+    Sheet {
+        /// The input file.
+        path: PathBuf,
+        /// The sheet.
+        sheet: String,
+        /// The reader's message.
+        reason: String,
+    },
+    /// The header row holds no column names.
+    #[error("sheet '{sheet}' of {path} has no column names in row {row}; set `input.header_row` to the row that holds them")]
+    NoHeader {
+        /// The input file.
+        path: PathBuf,
+        /// The sheet.
+        sheet: String,
+        /// The header row, counted from 1.
+        row: u32,
+    },
+    /// Two columns share one name.
+    #[error("sheet '{sheet}' of {path}: cells {first} and {second} both name a column '{name}'; give each column its own name")]
+    DuplicateHeader {
+        /// The input file.
+        path: PathBuf,
+        /// The sheet.
+        sheet: String,
+        /// The repeated name.
+        name: String,
+        /// The first header cell.
+        first: CellRef,
+        /// The second header cell.
+        second: CellRef,
+    },
+}
+
+/// A cell's place in a sheet, shown in A1 form (column letters, row counted
+/// from 1).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct CellRef {
+    /// Row counted from 1.
+    pub row: u32,
+    /// Column counted from 0 (A = 0).
+    pub col: u32,
+}
+
+impl fmt::Display for CellRef {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}{}", column_letters(self.col), self.row)
+    }
+}
+
+/// Column letters for a zero-based column index: 0 -> A, 25 -> Z, 26 -> AA.
+pub fn column_letters(col: u32) -> String {
+    let mut n = col + 1;
+    let mut letters = Vec::new();
+    while n > 0 {
+        let rem = (n - 1) % 26;
+        letters.push(b'A' + rem as u8);
+        n = (n - 1) / 26;
+    }
+    letters.reverse();
+    String::from_utf8(letters).unwrap_or_default()
+}
+
+/// A cell value as stored in the input.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Value {
+    /// Nothing, or only spaces.
+    Blank,
+    /// A number.
+    Number(f64),
+    /// Text, trimmed of surrounding spaces.
+    Text(String),
+    /// TRUE or FALSE.
+    Bool(bool),
+    /// A date or time, as ISO 8601 text.
+    Date(String),
+    /// An error value such as `#DIV/0!`.
+    Error(String),
+}
+
+impl Value {
+    /// The kind of value, in words, for messages and the `check` command.
+    pub fn kind(&self) -> &'static str {
+        match self {
+            Value::Blank => "blank",
+            Value::Number(_) => "number",
+            Value::Text(_) => "text",
+            Value::Bool(_) => "true/false",
+            Value::Date(_) => "date",
+            Value::Error(_) => "error",
+        }
+    }
+}
+
+impl fmt::Display for Value {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Value::Blank => f.write_str("(blank)"),
+            Value::Number(x) => write!(f, "{x}"),
+            Value::Text(s) | Value::Date(s) | Value::Error(s) => f.write_str(s),
+            Value::Bool(b) => f.write_str(if *b { "TRUE" } else { "FALSE" }),
+        }
+    }
+}
+
+/// One named column of the table.
+#[derive(Debug, Clone)]
+pub struct Column {
+    /// The header text, trimmed.
+    pub name: String,
+    /// Zero-based sheet column of this column.
+    pub col: u32,
+    /// One value per data row, in sheet order.
+    pub values: Vec<Value>,
+}
+
+/// The data of one sheet: named columns of equal length, below a header row.
+#[derive(Debug, Clone)]
+pub struct Table {
+    /// The input file.
+    pub path: PathBuf,
+    /// The sheet read (for CSV, the file name).
+    pub sheet: String,
+    /// Sheet row number (from 1) of each data row.
+    pub rows: Vec<u32>,
+    /// The columns in sheet order.
+    pub columns: Vec<Column>,
+}
+
+impl Table {
+    /// The column called `name`, if there is one.
+    pub fn column(&self, name: &str) -> Option<&Column> {
+        self.columns.iter().find(|c| c.name == name)
+    }
+
+    /// The cell address of data row `index` in `column`.
+    pub fn cell(&self, column: &Column, index: usize) -> CellRef {
+        CellRef {
+            row: self.rows[index],
+            col: column.col,
+        }
+    }
+
+    /// Where the data came from, for messages: "sheet 'records' of data.xlsx".
+    pub fn place(&self) -> String {
+        format!("sheet '{}' of {}", self.sheet, self.path.display())
+    }
+}
+
+/// Reads `sheet` (the first sheet when `None`) of the workbook or CSV file
+/// at `path`, with column names in `header_row` (counted from 1), under the
+/// default [`Limits`].
+///
+/// # Errors
+/// As [`read_table_with`].
+pub fn read_table(path: &Path, sheet: Option<&str>, header_row: u32) -> Result<Table, SourceError> {
+    read_table_with(path, sheet, header_row, &Limits::default())
+}
+
+/// Reads a sheet as [`read_table`] does, refusing an .xlsx/.xlsm file past
+/// `limits` before the reader sees it. Sheets of .xlsx/.xlsm files are read
+/// cell by cell into the named columns, so memory follows the data, not the
+/// sheet's bounding box; rows after the last value in a named column are not
+/// kept, and columns with a blank header cell are skipped.
+///
+/// # Errors
+/// [`SourceError`] when the file cannot be opened or is refused, the sheet
+/// is missing, the header row is empty or two columns share a name.
+pub fn read_table_with(
+    path: &Path,
+    sheet: Option<&str>,
+    header_row: u32,
+    limits: &Limits,
+) -> Result<Table, SourceError> {
+    let extension = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase)
+        .unwrap_or_default();
+    if extension == "csv" {
+        return read_csv(path, header_row);
+    }
+    if !path.is_file() {
+        return Err(SourceError::Open {
+            path: path.to_path_buf(),
+            reason: if path.exists() {
+                "it is not a file".into()
+            } else {
+                "no such file".into()
+            },
+        });
+    }
+    if matches!(extension.as_str(), "xlsx" | "xlsm") {
+        guard::prescan(path, limits).map_err(|reason| SourceError::Refused {
+            path: path.to_path_buf(),
+            reason,
+        })?;
+    }
+    read_workbook(path, sheet, header_row)
+}
+
+fn open_error(path: &Path, e: impl fmt::Display) -> SourceError {
+    let text = e.to_string();
+    let hint = if text.contains("ncrypt") || text.contains("CFB") || text.contains("cfb") {
+        "; an encrypted or password-protected workbook cannot be read: save an unprotected copy"
+    } else {
+        ""
+    };
+    SourceError::Open {
+        path: path.to_path_buf(),
+        reason: format!("it is not a readable workbook ({text}){hint}"),
+    }
+}
+
+/// The sheet to read: `wanted`, or the first.
+fn pick_sheet(path: &Path, names: &[String], wanted: Option<&str>) -> Result<String, SourceError> {
+    match wanted {
+        Some(s) => names
+            .iter()
+            .find(|n| n.as_str() == s)
+            .cloned()
+            .ok_or_else(|| SourceError::NoSuchSheet {
+                path: path.to_path_buf(),
+                sheet: s.to_string(),
+                available: names
+                    .iter()
+                    .map(|n| format!("'{n}'"))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+            }),
+        None => names.first().cloned().ok_or_else(|| SourceError::Open {
+            path: path.to_path_buf(),
+            reason: "the workbook has no sheets".into(),
+        }),
+    }
+}
+
+fn read_workbook(path: &Path, sheet: Option<&str>, header_row: u32) -> Result<Table, SourceError> {
+    let mut workbook = open_workbook_auto(path).map_err(|e| open_error(path, e))?;
+    let name = pick_sheet(path, &workbook.sheet_names(), sheet)?;
+    let sheet_error = |e: &dyn fmt::Display| SourceError::Sheet {
+        path: path.to_path_buf(),
+        sheet: name.clone(),
+        reason: e.to_string(),
+    };
+    let mut builder = Builder::new(path, &name, header_row);
+    match &mut workbook {
+        Sheets::Xlsx(xlsx) => {
+            let mut cells = xlsx
+                .worksheet_cells_reader(&name)
+                .map_err(|e| sheet_error(&e))?;
+            while let Some(cell) = cells.next_cell().map_err(|e| sheet_error(&e))? {
+                let (row, col) = cell.get_position();
+                builder.push(row, col, value_from_ref(cell.get_value()))?;
+            }
+        }
+        other => {
+            let range = other.worksheet_range(&name).map_err(|e| sheet_error(&e))?;
+            let (row0, col0) = range.start().unwrap_or((0, 0));
+            for (r, c, cell) in range.used_cells() {
+                builder.push(row0 + r as u32, col0 + c as u32, value_from_cell(cell))?;
+            }
+        }
+    }
+    builder.finish()
+}
+
+fn value_from_ref(cell: &DataRef<'_>) -> Value {
+    match cell {
+        DataRef::Empty => Value::Blank,
+        DataRef::Int(i) => Value::Number(*i as f64),
+        DataRef::Float(x) => Value::Number(*x),
+        DataRef::String(s) => text_value(s),
+        DataRef::SharedString(s) => text_value(s),
+        DataRef::Bool(b) => Value::Bool(*b),
+        DataRef::DateTime(dt) => date_value(dt),
+        DataRef::DateTimeIso(s) | DataRef::DurationIso(s) => Value::Date(s.clone()),
+        DataRef::Error(e) => Value::Error(e.to_string()),
+    }
+}
+
+fn date_value(dt: &calamine::ExcelDateTime) -> Value {
+    Value::Date(match dt.as_datetime() {
+        Some(d) if d.time() == chrono::NaiveTime::MIN => d.date().to_string(),
+        Some(d) => d.to_string(),
+        None => dt.as_f64().to_string(),
+    })
+}
+
+fn value_from_cell(cell: &Data) -> Value {
+    match cell {
+        Data::Empty => Value::Blank,
+        Data::Int(i) => Value::Number(*i as f64),
+        Data::Float(x) => Value::Number(*x),
+        Data::String(s) => text_value(s),
+        Data::Bool(b) => Value::Bool(*b),
+        Data::DateTime(dt) => date_value(dt),
+        Data::DateTimeIso(s) | Data::DurationIso(s) => Value::Date(s.clone()),
+        Data::Error(e) => Value::Error(e.to_string()),
+    }
+}
+
+/// Text cells: blank when only spaces; spreadsheet error texts (as some
+/// formats store them) stay errors.
+fn text_value(s: &str) -> Value {
+    let t = s.trim();
+    if t.is_empty() {
+        Value::Blank
+    } else if matches!(
+        t,
+        "#DIV/0!" | "#N/A" | "#NAME?" | "#NULL!" | "#NUM!" | "#REF!" | "#VALUE!"
+    ) {
+        Value::Error(t.to_string())
+    } else {
+        Value::Text(t.to_string())
+    }
+}
+
+fn read_csv(path: &Path, header_row: u32) -> Result<Table, SourceError> {
+    let open_err = |reason: String| SourceError::Open {
+        path: path.to_path_buf(),
+        reason,
+    };
+    let mut reader = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .from_path(path)
+        .map_err(|e| open_err(e.to_string()))?;
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let mut builder = Builder::new(path, &name, header_row);
+    for (r, record) in reader.records().enumerate() {
+        let record = record.map_err(|e| open_err(format!("it is not readable CSV ({e})")))?;
+        for (c, field) in record.iter().enumerate() {
+            let value = match text_value(field) {
+                Value::Text(t) => t.parse::<f64>().map_or(Value::Text(t), Value::Number),
+                other => other,
+            };
+            builder.push(r as u32, c as u32, value)?;
+        }
+    }
+    builder.finish()
+}
+
+/// Builds a [`Table`] from cells given in row order (zero-based positions):
+/// header-row cells name the columns, later cells in named columns fill
+/// them; other cells are ignored.
+struct Builder {
+    path: PathBuf,
+    sheet: String,
+    /// Header row, counted from 1.
+    header_row: u32,
+    columns: Vec<Column>,
+    /// Column index by sheet column, once the header is complete.
+    by_col: std::collections::HashMap<u32, usize>,
+    header_done: bool,
+    rows: Vec<u32>,
+}
+
+impl Builder {
+    fn new(path: &Path, sheet: &str, header_row: u32) -> Self {
+        Builder {
+            path: path.to_path_buf(),
+            sheet: sheet.to_string(),
+            header_row,
+            columns: Vec::new(),
+            by_col: std::collections::HashMap::new(),
+            header_done: false,
+            rows: Vec::new(),
+        }
+    }
+
+    fn push(&mut self, row0: u32, col: u32, value: Value) -> Result<(), SourceError> {
+        let row = row0.saturating_add(1);
+        if row < self.header_row || value == Value::Blank {
+            return Ok(());
+        }
+        if row == self.header_row {
+            self.columns.push(Column {
+                name: value.to_string(),
+                col,
+                values: Vec::new(),
+            });
+            return Ok(());
+        }
+        self.close_header()?;
+        let Some(&j) = self.by_col.get(&col) else {
+            return Ok(());
+        };
+        let index = (row - self.header_row - 1) as usize;
+        while self.rows.len() <= index {
+            self.rows.push(self.header_row + 1 + self.rows.len() as u32);
+            for c in &mut self.columns {
+                c.values.push(Value::Blank);
+            }
+        }
+        self.columns[j].values[index] = value;
+        Ok(())
+    }
+
+    /// Checks the header once its row is complete: at least one name, no
+    /// name twice.
+    fn close_header(&mut self) -> Result<(), SourceError> {
+        if self.header_done {
+            return Ok(());
+        }
+        self.header_done = true;
+        if self.columns.is_empty() {
+            return Err(SourceError::NoHeader {
+                path: self.path.clone(),
+                sheet: self.sheet.clone(),
+                row: self.header_row,
+            });
+        }
+        for (j, c) in self.columns.iter().enumerate() {
+            if let Some(prev) = self.columns[..j].iter().find(|p| p.name == c.name) {
+                return Err(SourceError::DuplicateHeader {
+                    path: self.path.clone(),
+                    sheet: self.sheet.clone(),
+                    name: c.name.clone(),
+                    first: CellRef {
+                        row: self.header_row,
+                        col: prev.col,
+                    },
+                    second: CellRef {
+                        row: self.header_row,
+                        col: c.col,
+                    },
+                });
+            }
+            self.by_col.insert(c.col, j);
+        }
+        Ok(())
+    }
+
+    fn finish(mut self) -> Result<Table, SourceError> {
+        self.close_header()?;
+        Ok(Table {
+            path: self.path,
+            sheet: self.sheet,
+            rows: self.rows,
+            columns: self.columns,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn column_letters_follow_the_sheet_convention() {
+        assert_eq!(column_letters(0), "A");
+        assert_eq!(column_letters(25), "Z");
+        assert_eq!(column_letters(26), "AA");
+        assert_eq!(column_letters(701), "ZZ");
+        assert_eq!(column_letters(702), "AAA");
+        assert_eq!(CellRef { row: 14, col: 2 }.to_string(), "C14");
+    }
+
+    /// A table from rows of cells whose top-left sits at `start`.
+    fn build(
+        rows: Vec<Vec<Value>>,
+        start: (u32, u32),
+        header_row: u32,
+    ) -> Result<Table, SourceError> {
+        let mut b = Builder::new(Path::new("d.xlsx"), "s", header_row);
+        for (r, row) in rows.into_iter().enumerate() {
+            for (c, v) in row.into_iter().enumerate() {
+                b.push(start.0 + r as u32, start.1 + c as u32, v)?;
+            }
+        }
+        b.finish()
+    }
+
+    #[test]
+    fn offsets_are_kept_in_cell_addresses() {
+        let t = build(
+            vec![
+                vec![Value::Text("y".into()), Value::Text("x".into())],
+                vec![Value::Number(1.0), Value::Number(2.0)],
+                vec![Value::Blank, Value::Blank],
+            ],
+            (2, 1),
+            3,
+        )
+        .unwrap();
+        assert_eq!(t.rows, vec![4]);
+        let x = t.column("x").unwrap();
+        assert_eq!(t.cell(x, 0).to_string(), "C4");
+    }
+
+    #[test]
+    fn far_apart_cells_cost_rows_not_the_bounding_box() {
+        // A value in A1 048 576 and one in XFD2: only the named column A is
+        // kept, so the table holds one column of a million rows.
+        let mut b = Builder::new(Path::new("d.xlsx"), "s", 1);
+        b.push(0, 0, Value::Text("y".into())).unwrap();
+        b.push(1, 16_383, Value::Number(1.0)).unwrap();
+        b.push(1_048_575, 0, Value::Number(2.0)).unwrap();
+        let t = b.finish().unwrap();
+        assert_eq!(t.columns.len(), 1);
+        assert_eq!(t.rows.len(), 1_048_575);
+        assert_eq!(t.columns[0].values[1_048_574], Value::Number(2.0));
+    }
+
+    #[test]
+    fn duplicate_header_names_both_cells() {
+        let err = build(
+            vec![vec![Value::Text("y".into()), Value::Text("y".into())]],
+            (0, 0),
+            1,
+        )
+        .unwrap_err();
+        assert_eq!(
+            err.to_string(),
+            "sheet 's' of d.xlsx: cells A1 and B1 both name a column 'y'; give each column its own name"
+        );
+    }
+
+    #[test]
+    fn header_row_past_the_data_is_reported() {
+        let err = build(vec![vec![Value::Text("y".into())]], (0, 0), 5).unwrap_err();
+        assert!(
+            err.to_string().contains("no column names in row 5"),
+            "{err}"
+        );
+    }
+
+    #[test]
+    fn spreadsheet_error_text_is_an_error_value() {
+        assert_eq!(text_value(" #N/A "), Value::Error("#N/A".into()));
+        assert_eq!(text_value("   "), Value::Blank);
+    }
+}
