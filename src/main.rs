@@ -127,9 +127,18 @@ fn run(args: &RunArgs) -> u8 {
             return 2;
         }
     };
-    let bar = (!args.quiet && jobs.len() > 1 && std::io::stderr().is_terminal()).then(|| {
-        let bar = indicatif::ProgressBar::new(jobs.len() as u64);
-        bar.set_message("jobs");
+    // On a terminal: a bar over the jobs of a batch, or a spinner while a
+    // single job reads, fits and writes.
+    let bar = (!args.quiet && std::io::stderr().is_terminal()).then(|| {
+        let bar = if jobs.len() > 1 {
+            indicatif::ProgressBar::new(jobs.len() as u64)
+        } else {
+            let spinner = indicatif::ProgressBar::new_spinner();
+            if let Some(job) = jobs.first() {
+                spinner.set_message(format!("running {}", job.display()));
+            }
+            spinner
+        };
         bar.enable_steady_tick(Duration::from_millis(200));
         bar
     });
