@@ -136,8 +136,18 @@ struct Span {
     last: u32,
 }
 
+/// Rows in a worksheet, the file format's limit.
+const SHEET_ROWS: u32 = 1_048_576;
+
+/// The last sheet row a table starting at row 0 can fill.
+fn last_table_row(rows: usize) -> u32 {
+    (rows as u32).min(SHEET_ROWS - 1)
+}
+
 /// Writes `rows` as a worksheet table named `name` with its header row at
 /// `top` (zero-based), sets column widths to fit and freezes the header.
+/// Rows past the sheet's limit are left out, with a note beside the header
+/// (the JSON keeps them).
 fn write_table(
     sheet: &mut Worksheet,
     formats: &Formats,
@@ -147,6 +157,19 @@ fn write_table(
     rows: &[Vec<Cell>],
 ) -> Result<(), XlsxError> {
     let mut widths: Vec<usize> = headers.iter().map(|h| h.chars().count() + 4).collect();
+    let room = (SHEET_ROWS - top - 1) as usize;
+    let (rows, cut) = if rows.len() > room {
+        (&rows[..room], rows.len() - room)
+    } else {
+        (rows, 0)
+    };
+    if cut > 0 {
+        sheet.write_string(
+            top,
+            headers.len() as u16 + 1,
+            format!("{cut} more rows do not fit in a sheet (its limit is {SHEET_ROWS} rows); the results JSON has them all"),
+        )?;
+    }
     for (i, row) in rows.iter().enumerate() {
         let r = top + 1 + i as u32;
         for (j, cell) in row.iter().enumerate() {
@@ -778,8 +801,8 @@ fn residuals(
             ]);
         }
         spans.push(Span {
-            first,
-            last: rows.len() as u32,
+            first: first.min(SHEET_ROWS - 1),
+            last: last_table_row(rows.len()),
         });
     }
     write_table(sheet, f, "Residual_table", 0, &headers, &rows)?;
@@ -806,8 +829,8 @@ fn normal_plot_data(
             ]);
         }
         spans.push(Span {
-            first,
-            last: rows.len() as u32,
+            first: first.min(SHEET_ROWS - 1),
+            last: last_table_row(rows.len()),
         });
     }
     write_table(sheet, f, "Normal_plot_table", 0, &headers, &rows)?;
