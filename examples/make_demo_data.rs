@@ -1,21 +1,32 @@
-//! Generates the demo workbook `demo-data/garden-centres.xlsx` used by the
-//! sheetfit demo job `demo-data/garden-centres.toml`.
+//! Generates the demo workbooks used by the sheetfit demo jobs:
+//!
+//! * `demo-data/garden-centres.xlsx` for `demo-data/garden-centres.toml`:
+//!   2022-01 through 2025-12 (48 months, 384 rows);
+//! * `demo-data/garden-centres-2026-03.xlsx` for
+//!   `demo-data/garden-centres-2026-03.toml`: the same 384 rows, value for
+//!   value, plus three more months, 2026-01 through 2026-03 (51 months,
+//!   408 rows), the data of the following run in the two-month demo.
 //!
 //! The data is invented: a fictional chain of eight garden centres, two in
-//! each of four regions, observed monthly from 2022-01-01 through 2025-12-01
-//! (48 months, 384 rows). It describes no real business. Revenue is built
-//! from a known linear formula plus a mild seasonal swing, a slow upward
-//! trend and normal noise, so the fitted coefficients can be compared with
-//! the values used here.
+//! each of four regions, observed monthly. It describes no real business.
+//! Revenue is built from a known linear formula plus a mild seasonal swing,
+//! a slow upward trend and normal noise, so the fitted coefficients can be
+//! compared with the values used here.
 //!
-//! The workbook has two sheets:
+//! The three extra months are drawn from the same generator stream after
+//! the first 48 months, so the first workbook's values do not depend on
+//! them. Each workbook's properties carry one fixed creation time
+//! ([`CREATED`]), so every run writes byte-identical files.
+//!
+//! Each workbook has two sheets:
 //!
 //! * `records`: one row per store-month with the columns `month` (a date
 //!   cell, first day of the month), `store`, `region`, `format`,
 //!   `floor_area` (square metres), `staff_hours` (hours in the month),
 //!   `promo` (1 if a promotion ran that month, else 0) and `revenue`
-//!   (thousands, one decimal). Three revenue cells are deliberately left
-//!   blank to show how sheetfit drops and lists incomplete rows.
+//!   (thousands, one decimal). Three revenue cells (four in the 2026-03
+//!   workbook) are deliberately left blank to show how sheetfit drops and
+//!   lists incomplete rows.
 //! * `about`: a few lines describing the data.
 //!
 //! Only `rust_xlsxwriter` and the standard library are used. Random numbers
@@ -30,15 +41,25 @@
 
 use std::error::Error;
 use std::f64::consts::PI;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
-use rust_xlsxwriter::{ExcelDateTime, Format, Workbook};
+use rust_xlsxwriter::{DocProperties, ExcelDateTime, Format, Workbook};
 
-/// Fixed seed, so the demo workbook is reproducible.
+/// Fixed seed, so the demo workbooks are reproducible.
 const SEED: u64 = 20261202;
 
 const FIRST_YEAR: u16 = 2022;
+/// Months in `garden-centres.xlsx`: 2022-01 to 2025-12.
 const MONTHS: usize = 48;
+/// Months added in `garden-centres-2026-03.xlsx`: 2026-01 to 2026-03.
+const EXTRA_MONTHS: usize = 3;
+
+/// The creation time written into both workbooks' properties (year, month,
+/// day, hour, minute, second, UTC). Without it the writer stamps the
+/// current time and no two runs give the same bytes. It is the stamp of the
+/// first committed `garden-centres.xlsx`, so that file stays byte for byte
+/// what it was.
+const CREATED: (u16, u8, u8, u16, u8, u8) = (2026, 12, 2, 1, 1, 44);
 
 /// One invented store: name, region, format and floor area (square metres).
 struct Store {
@@ -102,10 +123,12 @@ const STORES: [Store; 8] = [
 ];
 
 /// Store-months whose revenue cell is left blank: (store name, year, month).
-const BLANK_REVENUE: [(&str, u16, u8); 3] = [
+/// The last lies in the extra months, so only the 2026-03 workbook has it.
+const BLANK_REVENUE: [(&str, u16, u8); 4] = [
     ("Lantern Hill", 2022, 7),
     ("Copper Yard", 2023, 11),
     ("Sparrow Park", 2025, 3),
+    ("Mossgate", 2026, 2),
 ];
 
 /// Column headers of the `records` sheet, with their widths.
@@ -174,33 +197,28 @@ fn round_to(value: f64, decimals: i32) -> f64 {
     (value * scale).round() / scale
 }
 
-fn main() -> Result<(), Box<dyn Error>> {
-    let out_dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data");
-    std::fs::create_dir_all(&out_dir)?;
-    let out_path = out_dir.join("garden-centres.xlsx");
+/// One store-month of the `records` sheet.
+struct Record {
+    year: u16,
+    month: u8,
+    store: &'static Store,
+    staff_hours: f64,
+    promo: f64,
+    /// `None` for a cell left blank on purpose.
+    revenue: Option<f64>,
+}
 
+/// Draws `months` months of records for the eight stores, month by month,
+/// from one generator seeded with [`SEED`]. A month's draws come after all
+/// earlier months' draws, so asking for more months leaves the earlier
+/// ones unchanged.
+fn records(months: usize) -> Vec<Record> {
     let mut rng = SplitMix64::new(SEED);
-    let mut workbook = Workbook::new();
-
-    let bold = Format::new().set_bold();
-    let date_format = Format::new().set_num_format("yyyy-mm-dd");
-    let one_decimal = Format::new().set_num_format("0.0");
-
-    let sheet = workbook.add_worksheet();
-    sheet.set_name("records")?;
-    for (col, (header, width)) in (0u16..).zip(COLUMNS) {
-        sheet.write_string_with_format(0, col, header, &bold)?;
-        sheet.set_column_width(col, width)?;
-    }
-    sheet.set_freeze_panes(1, 0)?;
-
-    let mut row: u32 = 1;
-    let mut blanks = Vec::new();
-    for month_index in 0..MONTHS {
-        // month_index < 48, so these conversions cannot truncate.
+    let mut out = Vec::with_capacity(months * STORES.len());
+    for month_index in 0..months {
+        // month_index < 51, so these conversions cannot truncate.
         let year = FIRST_YEAR + (month_index / 12) as u16;
         let month = (month_index % 12) as u8 + 1;
-        let date = ExcelDateTime::from_ymd(year, month, 1)?;
 
         // Spring peak: the cosine is largest in April (month 4).
         let seasonal = 5.0 * (2.0 * PI * (f64::from(month) - 4.0) / 12.0).cos();
@@ -220,68 +238,144 @@ fn main() -> Result<(), Box<dyn Error>> {
                 + seasonal
                 + trend
                 + noise;
-
-            sheet.write_datetime_with_format(row, 0, &date, &date_format)?;
-            sheet.write_string(row, 1, store.name)?;
-            sheet.write_string(row, 2, store.region)?;
-            sheet.write_string(row, 3, store.format)?;
-            sheet.write_number(row, 4, store.floor_area)?;
-            sheet.write_number(row, 5, staff_hours)?;
-            sheet.write_number(row, 6, promo)?;
-
             let is_blank = BLANK_REVENUE
                 .iter()
                 .any(|&(name, y, m)| name == store.name && y == year && m == month);
-            if is_blank {
-                blanks.push(format!(
-                    "row {} ({}, {year}-{month:02}-01)",
-                    row + 1,
-                    store.name
-                ));
-            } else {
-                sheet.write_number_with_format(row, 7, round_to(revenue, 1), &one_decimal)?;
+            out.push(Record {
+                year,
+                month,
+                store,
+                staff_hours,
+                promo,
+                revenue: (!is_blank).then(|| round_to(revenue, 1)),
+            });
+        }
+    }
+    out
+}
+
+/// Writes `records` and the `about` lines as a workbook at `path`; returns
+/// the blank revenue cells, described.
+fn write_workbook(
+    path: &Path,
+    records: &[Record],
+    about_lines: &[&str],
+) -> Result<Vec<String>, Box<dyn Error>> {
+    let mut workbook = Workbook::new();
+    let (y, mo, d, h, mi, s) = CREATED;
+    let created = ExcelDateTime::from_ymd(y, mo, d)?.and_hms(h, mi, s)?;
+    workbook.set_properties(&DocProperties::new().set_creation_datetime(&created));
+
+    let bold = Format::new().set_bold();
+    let date_format = Format::new().set_num_format("yyyy-mm-dd");
+    let one_decimal = Format::new().set_num_format("0.0");
+
+    let sheet = workbook.add_worksheet();
+    sheet.set_name("records")?;
+    for (col, (header, width)) in (0u16..).zip(COLUMNS) {
+        sheet.write_string_with_format(0, col, header, &bold)?;
+        sheet.set_column_width(col, width)?;
+    }
+    sheet.set_freeze_panes(1, 0)?;
+
+    let mut blanks = Vec::new();
+    for (row, r) in (1u32..).zip(records) {
+        let date = ExcelDateTime::from_ymd(r.year, r.month, 1)?;
+        sheet.write_datetime_with_format(row, 0, &date, &date_format)?;
+        sheet.write_string(row, 1, r.store.name)?;
+        sheet.write_string(row, 2, r.store.region)?;
+        sheet.write_string(row, 3, r.store.format)?;
+        sheet.write_number(row, 4, r.store.floor_area)?;
+        sheet.write_number(row, 5, r.staff_hours)?;
+        sheet.write_number(row, 6, r.promo)?;
+        match r.revenue {
+            Some(revenue) => {
+                sheet.write_number_with_format(row, 7, revenue, &one_decimal)?;
             }
-            row += 1;
+            None => blanks.push(format!(
+                "row {} ({}, {}-{:02}-01)",
+                row + 1,
+                r.store.name,
+                r.year,
+                r.month
+            )),
         }
     }
 
     let about = workbook.add_worksheet();
     about.set_name("about")?;
     about.set_column_width(0, 100)?;
-    let lines = [
+    for (r, line) in (0u32..).zip(about_lines) {
+        if r == 0 {
+            about.write_string_with_format(r, 0, *line, &bold)?;
+        } else if !line.is_empty() {
+            about.write_string(r, 0, *line)?;
+        }
+    }
+
+    workbook.save(path)?;
+    Ok(blanks)
+}
+
+/// The lines of the `about` sheet that describe the columns.
+const COLUMN_NOTES: [&str; 8] = [
+    "month: first day of the month (date)",
+    "store: invented store name",
+    "region: North, South, East or West (two stores each)",
+    "format: Garden shop or Retail park (fixed per store)",
+    "floor_area: sales floor area, square metres (fixed per store)",
+    "staff_hours: staff hours worked in the month, hours",
+    "promo: 1 if a promotion ran that month, else 0",
+    "revenue: monthly revenue, thousands (one decimal)",
+];
+
+fn main() -> Result<(), Box<dyn Error>> {
+    let out_dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data");
+    std::fs::create_dir_all(&out_dir)?;
+
+    let all = records(MONTHS + EXTRA_MONTHS);
+    let first_run = &all[..MONTHS * STORES.len()];
+
+    let mut about = vec![
         "Invented data for the sheetfit demo. It describes no real business.",
         "Generated by examples/make_demo_data.rs with the fixed seed 20261202.",
         "Rerun: cargo run --example make_demo_data",
         "",
         "Sheet 'records': one row per store-month, 8 stores x 48 months (2022-01 to 2025-12).",
-        "month: first day of the month (date)",
-        "store: invented store name",
-        "region: North, South, East or West (two stores each)",
-        "format: Garden shop or Retail park (fixed per store)",
-        "floor_area: sales floor area, square metres (fixed per store)",
-        "staff_hours: staff hours worked in the month, hours",
-        "promo: 1 if a promotion ran that month, else 0",
-        "revenue: monthly revenue, thousands (one decimal)",
+    ];
+    about.extend(COLUMN_NOTES);
+    about.extend([
         "",
         "Three revenue cells are left blank on purpose, to show how incomplete rows are dropped.",
+    ]);
+    let out_path = out_dir.join("garden-centres.xlsx");
+    let blanks = write_workbook(&out_path, first_run, &about)?;
+    report(&out_path, first_run.len(), &blanks);
+
+    let mut about = vec![
+        "Invented data for the sheetfit demo. It describes no real business.",
+        "Generated by examples/make_demo_data.rs with the fixed seed 20261202.",
+        "Rerun: cargo run --example make_demo_data",
+        "",
+        "Sheet 'records': one row per store-month, 8 stores x 51 months (2022-01 to 2026-03).",
+        "The rows to 2025-12 are those of garden-centres.xlsx, value for value;",
+        "the rows of 2026-01 to 2026-03 are the three months that followed (the demo's second run).",
     ];
-    for (r, line) in (0u32..).zip(lines) {
-        if r == 0 {
-            about.write_string_with_format(r, 0, line, &bold)?;
-        } else if !line.is_empty() {
-            about.write_string(r, 0, line)?;
-        }
-    }
+    about.extend(COLUMN_NOTES);
+    about.extend([
+        "",
+        "Four revenue cells are left blank on purpose (three up to 2025-12, one in 2026-02),",
+        "to show how incomplete rows are dropped.",
+    ]);
+    let out_path = out_dir.join("garden-centres-2026-03.xlsx");
+    let blanks = write_workbook(&out_path, &all, &about)?;
+    report(&out_path, all.len(), &blanks);
+    Ok(())
+}
 
-    workbook.save(&out_path)?;
-
-    println!(
-        "wrote {} ({} data rows)",
-        out_path.display(),
-        row.saturating_sub(1)
-    );
-    for blank in &blanks {
+fn report(path: &Path, rows: usize, blanks: &[String]) {
+    println!("wrote {} ({rows} data rows)", path.display());
+    for blank in blanks {
         println!("blank revenue: {blank}");
     }
-    Ok(())
 }
