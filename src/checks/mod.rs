@@ -204,6 +204,16 @@ fn test_check(name: &str, result: Option<TestResult>, rule: &str, good: &str, ba
 /// (Breusch-Pagan, Koenker's studentized form), normality (Jarque-Bera,
 /// Shapiro-Wilk) and missing curvature (RESET).
 pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
+    if !(fit.quality.sigma > 0.0 && fit.quality.sigma.is_finite()) {
+        return vec![Check {
+            name: "residual checks".into(),
+            statistic: None,
+            p_value: None,
+            rule: "the tests of independence, spread, normality and curvature need residual variation".into(),
+            flagged: true,
+            verdict: "not computed: the model fits every row exactly (or the values are too large to square); check that the response is not a copy or a sum of the predictors".into(),
+        }];
+    }
     let e: Vec<f64> = fit.solution.residuals.iter().copied().collect();
     let y: Vec<f64> = design.y.iter().copied().collect();
     let order_words = if design.timing.is_some() {
@@ -368,8 +378,8 @@ pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
         .map(|(i, &row)| {
             let residual = fit.solution.residuals[i];
             let h = fit.solution.leverage[i];
-            let standardized =
-                (s > 0.0 && h < 1.0 - 1e-12).then(|| residual / (s * (1.0 - h).sqrt()));
+            let standardized = (s > 0.0 && s.is_finite() && h < 1.0 - 1e-12)
+                .then(|| residual / (s * (1.0 - h).sqrt()));
             let period = design.timing.as_ref().map(|t| t.periods[i]);
             let cook = standardized.map(|r| r * r * h / (p * (1.0 - h)));
             let studentized = standardized

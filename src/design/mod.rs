@@ -76,7 +76,7 @@ pub enum DesignError {
         value: String,
     },
     /// A number that is not finite.
-    #[error("model '{model}': {place}, cell {cell} in column '{column}' holds {value}, which is not a finite number")]
+    #[error("model '{model}': {place}, cell {cell} in column '{column}' holds {value}, which is not a finite number; correct the cell, or clear it to leave the row out")]
     NotFinite {
         /// The model.
         model: String,

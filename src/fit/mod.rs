@@ -224,7 +224,7 @@ pub fn with_robust_errors(mut fit: Fit, design: &Design, kind: Robust) -> Fit {
     for (k, c) in fit.coefficients.iter_mut().enumerate() {
         let se = cov[(k, k)].sqrt();
         c.std_error = se;
-        c.t_stat = (se > 0.0).then(|| c.estimate / se);
+        c.t_stat = (se > 0.0 && se.is_finite()).then(|| c.estimate / se);
         c.p_value = c.t_stat.and_then(|t| t_two_sided_p(t, fit.df_resid as f64));
         c.ci_lower = c.estimate - t_crit * se;
         c.ci_upper = c.estimate + t_crit * se;
@@ -252,7 +252,16 @@ pub fn fit(model: &str, design: &Design, confidence: f64) -> Result<Fit, FitErro
     let df_resid = n - p;
     let intercept = usize::from(design.intercept && solution.kept.first() == Some(&0));
     let df_model = p - intercept;
-    let sse = solution.residuals.norm_squared();
+    // A fit exact to rounding (residuals within a few rounding errors of
+    // the response's size) is an exact fit: its residual variance is zero,
+    // not noise to build t statistics on.
+    let raw_sse = solution.residuals.norm_squared();
+    let exact = (n as f64 * f64::EPSILON).powi(2) * design.y.norm_squared();
+    let sse = if exact.is_finite() && raw_sse <= exact {
+        0.0
+    } else {
+        raw_sse
+    };
     let sst = if intercept == 1 {
         let mean = design.y.mean();
         design.y.iter().map(|v| (v - mean).powi(2)).sum()
@@ -270,7 +279,7 @@ pub fn fit(model: &str, design: &Design, confidence: f64) -> Result<Fit, FitErro
         .map(|(k, &j)| {
             let estimate = solution.beta[k];
             let std_error = (s2 * solution.xtx_inv[(k, k)]).sqrt();
-            let t_stat = (std_error > 0.0).then(|| estimate / std_error);
+            let t_stat = (std_error > 0.0 && std_error.is_finite()).then(|| estimate / std_error);
             Coefficient {
                 term: design.names[j].clone(),
                 estimate,
