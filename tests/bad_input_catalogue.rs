@@ -12,37 +12,10 @@
 mod common;
 
 use std::collections::BTreeMap;
-use std::process::Output;
 
-use common::{read_json, sheetfit, stderr, Cell, Scratch};
+use common::{assert_status, assert_stderr_has, read_json, sheetfit, stderr, Cell, Scratch};
 use serde_json::Value;
 use Cell::{Blank, N, T};
-
-/// Exit status of a finished run.
-fn status(out: &Output) -> i32 {
-    out.status.code().expect("sheetfit ended by a signal")
-}
-
-/// Asserts the exit status, printing stderr when it differs.
-fn assert_status(out: &Output, expected: i32) {
-    assert_eq!(
-        status(out),
-        expected,
-        "exit status; stderr was:\n{}",
-        stderr(out)
-    );
-}
-
-/// Asserts that stderr contains every one of `parts`.
-fn assert_stderr_has(out: &Output, parts: &[&str]) {
-    let err = stderr(out);
-    for part in parts {
-        assert!(
-            err.contains(part),
-            "stderr should contain {part:?}; it was:\n{err}"
-        );
-    }
-}
 
 /// Every file of the scratch folder with its bytes.
 fn snapshot(scratch: &Scratch) -> BTreeMap<String, Vec<u8>> {

@@ -11,50 +11,19 @@
 mod common;
 
 use std::path::PathBuf;
-use std::process::Output;
 
 use calamine::{open_workbook_auto, Data, Range, Reader};
 use chrono::{Datelike, Duration, NaiveDate};
 use serde_json::Value;
 
-use common::{read_json, sheetfit, stderr, Cell, Scratch};
+use common::{
+    assert_files, assert_status, assert_stderr_has, read_json, sheetfit, status, stderr, Cell,
+    Scratch,
+};
 use Cell::{N, S, T};
 
 // ---------------------------------------------------------------------------
 // Helpers (the small ones copied from tests/bad_input.rs)
-
-/// Exit status of a finished run.
-fn status(out: &Output) -> i32 {
-    out.status.code().expect("sheetfit ended by a signal")
-}
-
-/// Asserts the exit status, printing stderr when it differs.
-fn assert_status(out: &Output, expected: i32) {
-    assert_eq!(
-        status(out),
-        expected,
-        "exit status; stderr was:\n{}",
-        stderr(out)
-    );
-}
-
-/// Asserts that stderr contains every one of `parts`.
-fn assert_stderr_has(out: &Output, parts: &[&str]) {
-    let err = stderr(out);
-    for part in parts {
-        assert!(
-            err.contains(part),
-            "stderr should contain {part:?}; it was:\n{err}"
-        );
-    }
-}
-
-/// Asserts that the scratch folder holds exactly `expected` (sorted here).
-fn assert_files(scratch: &Scratch, expected: &[&str]) {
-    let mut expected: Vec<String> = expected.iter().map(|s| s.to_string()).collect();
-    expected.sort();
-    assert_eq!(scratch.files(), expected, "files in the scratch folder");
-}
 
 /// Runs `sheetfit <command> job.toml`; it must fail with `code`, print no
 /// summary, name every one of `parts` and leave no file beyond `inputs`.

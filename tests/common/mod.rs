@@ -143,3 +143,36 @@ pub fn assert_close(what: &str, a: f64, b: f64, tol: f64) {
         "{what}: got {a}, expected {b} (tolerance {tol})"
     );
 }
+
+/// Exit status of a finished run.
+pub fn status(out: &Output) -> i32 {
+    out.status.code().expect("sheetfit ended by a signal")
+}
+
+/// Asserts the exit status, printing stderr when it differs.
+pub fn assert_status(out: &Output, expected: i32) {
+    assert_eq!(
+        status(out),
+        expected,
+        "exit status; stderr was:\n{}",
+        stderr(out)
+    );
+}
+
+/// Asserts that stderr contains every one of `parts`.
+pub fn assert_stderr_has(out: &Output, parts: &[&str]) {
+    let err = stderr(out);
+    for part in parts {
+        assert!(
+            err.contains(part),
+            "stderr should contain {part:?}; it was:\n{err}"
+        );
+    }
+}
+
+/// Asserts that the scratch folder holds exactly `expected` (sorted here).
+pub fn assert_files(scratch: &Scratch, expected: &[&str]) {
+    let mut expected: Vec<String> = expected.iter().map(|s| s.to_string()).collect();
+    expected.sort();
+    assert_eq!(scratch.files(), expected, "files in the scratch folder");
+}
