@@ -6,31 +6,10 @@
 mod common;
 
 use common::{
-    assert_files, assert_status, assert_stderr_has, read_json, sheetfit, stderr, Cell, Scratch,
+    assert_files, assert_run_and_check_fail, assert_status, assert_stderr_has, read_json, sheetfit,
+    stderr, Cell, Scratch,
 };
 use Cell::{Blank, N, T};
-
-/// Runs `sheetfit run job.toml` and `sheetfit check job.toml`; both must
-/// fail with `code` and name every one of `parts`, and neither may leave a
-/// file behind beyond `inputs`.
-fn assert_run_and_check_fail(scratch: &Scratch, code: i32, parts: &[&str], inputs: &[&str]) {
-    for command in ["run", "check"] {
-        let out = sheetfit(&scratch.path(""), &[command, "job.toml"]);
-        assert_status(&out, code);
-        assert!(
-            stderr(&out).starts_with("sheetfit: error: "),
-            "`{command}`: {}",
-            stderr(&out)
-        );
-        assert_stderr_has(&out, parts);
-        assert!(
-            out.stdout.is_empty(),
-            "`{command}` printed a summary although it failed: {}",
-            String::from_utf8_lossy(&out.stdout)
-        );
-        assert_files(scratch, inputs);
-    }
-}
 
 /// Ten data rows of a small, well-conditioned data set: response `y`, numeric
 /// `price` and `area`, categorical `region`. Header in row 1.

@@ -17,49 +17,16 @@ use chrono::{Datelike, Duration, NaiveDate};
 use serde_json::Value;
 
 use common::{
-    assert_files, assert_status, assert_stderr_has, read_json, sheetfit, status, stderr, Cell,
-    Scratch,
+    assert_command_fails, assert_files, assert_run_and_check_fail, assert_status,
+    assert_stderr_has, read_json, sheetfit, status, Cell, Scratch,
 };
 use Cell::{N, S, T};
 
 // ---------------------------------------------------------------------------
-// Helpers (the small ones copied from tests/bad_input.rs)
+// Helpers
 
-/// Runs `sheetfit <command> job.toml`; it must fail with `code`, print no
-/// summary, name every one of `parts` and leave no file beyond `inputs`.
-fn assert_command_fails(
-    scratch: &Scratch,
-    command: &str,
-    code: i32,
-    parts: &[&str],
-    inputs: &[&str],
-) {
-    let out = sheetfit(&scratch.path(""), &[command, "job.toml"]);
-    assert_status(&out, code);
-    assert!(
-        stderr(&out).starts_with("sheetfit: error: "),
-        "`{command}`: {}",
-        stderr(&out)
-    );
-    assert_stderr_has(&out, parts);
-    assert!(
-        out.stdout.is_empty(),
-        "`{command}` printed a summary although it failed: {}",
-        String::from_utf8_lossy(&out.stdout)
-    );
-    assert_files(scratch, inputs);
-}
-
-/// Both `run` and `check` must fail as [`assert_command_fails`] says.
-fn assert_run_and_check_fail(scratch: &Scratch, code: i32, parts: &[&str], inputs: &[&str]) {
-    for command in ["run", "check"] {
-        assert_command_fails(scratch, command, code, parts, inputs);
-    }
-}
-
-/// `run` must fail as [`assert_command_fails`] says. For forecast and
-/// back-test problems, which `check` does not look at today (see
-/// `check_refuses_the_forecast_and_backtest_problems_that_run_refuses`).
+/// `run` must fail as [`assert_command_fails`] says (for cases where only
+/// `run` is exercised).
 fn assert_run_fails(scratch: &Scratch, code: i32, parts: &[&str], inputs: &[&str]) {
     assert_command_fails(scratch, "run", code, parts, inputs);
 }

@@ -176,3 +176,35 @@ pub fn assert_files(scratch: &Scratch, expected: &[&str]) {
     expected.sort();
     assert_eq!(scratch.files(), expected, "files in the scratch folder");
 }
+
+/// Runs `sheetfit <command> job.toml`; it must fail with `code`, print no
+/// summary, name every one of `parts` and leave no file beyond `inputs`.
+pub fn assert_command_fails(
+    scratch: &Scratch,
+    command: &str,
+    code: i32,
+    parts: &[&str],
+    inputs: &[&str],
+) {
+    let out = sheetfit(&scratch.path(""), &[command, "job.toml"]);
+    assert_status(&out, code);
+    assert!(
+        stderr(&out).starts_with("sheetfit: error: "),
+        "`{command}`: {}",
+        stderr(&out)
+    );
+    assert_stderr_has(&out, parts);
+    assert!(
+        out.stdout.is_empty(),
+        "`{command}` printed a summary although it failed: {}",
+        String::from_utf8_lossy(&out.stdout)
+    );
+    assert_files(scratch, inputs);
+}
+
+/// Both `run` and `check` must fail as [`assert_command_fails`] says.
+pub fn assert_run_and_check_fail(scratch: &Scratch, code: i32, parts: &[&str], inputs: &[&str]) {
+    for command in ["run", "check"] {
+        assert_command_fails(scratch, command, code, parts, inputs);
+    }
+}
