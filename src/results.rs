@@ -395,11 +395,20 @@ pub fn significant(x: f64, digits: usize) -> String {
     format!("{x:.decimals$}")
 }
 
+/// Ranges [`row_ranges`] spells out before it summarises the rest.
+const MAX_RANGES: usize = 30;
+
 /// Sheet rows as compact ranges: `[4, 9, 10, 11, 20]` → "4, 9–11, 20".
+/// Past [`MAX_RANGES`] ranges the rest is counted ("… and 812 more rows"),
+/// so a message stays readable and fits in one cell.
 pub fn row_ranges(rows: &[u32]) -> String {
     let mut parts = Vec::new();
     let mut i = 0;
     while i < rows.len() {
+        if parts.len() == MAX_RANGES {
+            parts.push(format!("… and {} more rows", rows.len() - i));
+            break;
+        }
         let start = rows[i];
         let mut end = start;
         while i + 1 < rows.len() && rows[i + 1] == end + 1 {
@@ -500,5 +509,9 @@ mod tests {
     fn rows_are_listed_as_ranges() {
         assert_eq!(row_ranges(&[4, 9, 10, 11, 20]), "4, 9–11, 20");
         assert_eq!(row_ranges(&[]), "");
+        let every_other: Vec<u32> = (0..100).map(|i| 2 * i).collect();
+        let summary = row_ranges(&every_other);
+        assert!(summary.starts_with("0, 2, 4"), "{summary}");
+        assert!(summary.ends_with("58, … and 70 more rows"), "{summary}");
     }
 }

@@ -9,7 +9,8 @@
 //! Rows are taken in the order given, which for the serial-correlation tests
 //! must be their time order.
 //!
-//! Every auxiliary regression goes through [`crate::fit::least_squares`], so
+//! Every auxiliary regression goes through
+//! [`crate::fit::auxiliary_least_squares`], so
 //! aliased columns are set aside as in the model itself, and degrees of
 //! freedom count the estimable (kept) columns only. Explained sums of squares
 //! are read from the QR effects (the squared entries of Qᵀy), which keeps
@@ -18,7 +19,7 @@
 use nalgebra::{DMatrix, DVector, SymmetricEigen};
 use statrs::distribution::{ChiSquared, ContinuousCDF, Normal};
 
-use crate::fit::{f_sf, least_squares, LeastSquares, ALIAS_TOLERANCE};
+use crate::fit::{auxiliary_least_squares, f_sf, LeastSquares, ALIAS_TOLERANCE};
 
 /// Result of one test.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
@@ -187,12 +188,12 @@ fn first_difference_times(b: &DMatrix<f64>) -> DMatrix<f64> {
 }
 
 /// An orthonormal basis (n × p) of the estimable columns of `x`: the columns
-/// [`least_squares`] keeps, scaled to unit length, through nalgebra's
+/// [`auxiliary_least_squares`] keeps, scaled to unit length, through nalgebra's
 /// Householder QR. `None` when the columns cannot be scaled.
 fn column_basis(x: &DMatrix<f64>) -> Option<DMatrix<f64>> {
     let n = x.nrows();
     let probe = DVector::zeros(n);
-    let kept = least_squares(x, None, &probe).kept;
+    let kept = auxiliary_least_squares(x, &probe).kept;
     if kept.is_empty() {
         return Some(DMatrix::zeros(n, 0));
     }
@@ -390,7 +391,7 @@ pub fn breusch_godfrey(residuals: &[f64], x: &DMatrix<f64>, order: usize) -> Opt
         }
     }
     let e = DVector::from_column_slice(residuals);
-    let ls = least_squares(&aux, None, &e);
+    let ls = auxiliary_least_squares(&aux, &e);
     let df = ls.kept.iter().filter(|&&j| j >= p).count();
     if df == 0 || ls.kept.len() >= n {
         return None;
@@ -432,7 +433,7 @@ pub fn breusch_pagan(residuals: &[f64], z: &DMatrix<f64>) -> Option<TestResult> 
     if !is_positive(total) {
         return None;
     }
-    let ls = least_squares(z, None, &w);
+    let ls = auxiliary_least_squares(z, &w);
     let k = ls.kept.len();
     if k < 2 || k >= n {
         return None;
@@ -670,7 +671,7 @@ pub fn reset(y: &[f64], x: &DMatrix<f64>, fitted: &[f64]) -> Option<TestResult> 
         aug[(i, p)] = f * f;
         aug[(i, p + 1)] = f * f * f;
     }
-    let ls = least_squares(&aug, None, &DVector::from_column_slice(y));
+    let ls = auxiliary_least_squares(&aug, &DVector::from_column_slice(y));
     let added: f64 = ls
         .kept
         .iter()
@@ -741,6 +742,7 @@ fn all_finite(values: &[f64]) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::fit::least_squares;
     use statrs::distribution::FisherSnedecor;
     use std::f64::consts::PI;
 

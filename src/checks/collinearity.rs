@@ -60,7 +60,9 @@ pub struct TermCollinearity {
 /// Z₁ orthogonal to the other columns Z₂. Both determinants come from
 /// Householder QR factors — of Z₁ alone, and of [Z₂ Z₁], whose trailing
 /// diagonal block belongs to E — as squared products of diagonals, summed as
-/// logarithms. Neither R nor its inverse is formed, so the digits lost are
+/// logarithms. Z is factored once, Z = QR; the factors of its column
+/// subsets are those of the same columns of R, which has as many rows as
+/// Z has columns. Neither R nor its inverse is formed, so the digits lost are
 /// those of the design, not of its square.
 ///
 /// Terms whose columns were all aliased are left out; a partly aliased
@@ -110,10 +112,14 @@ pub fn collinearity(design: &Design, kept: &[usize]) -> Vec<TermCollinearity> {
     let Some(z) = standardized(x, &columns) else {
         return Vec::new();
     };
+    // Z = QR, so every block of Z's Gram matrix is the same block of R'R:
+    // the determinants come from small QR factors of R's columns, and the
+    // n-row matrix is factored once.
+    let r = z.qr().r();
     terms
         .into_iter()
         .map(|(name, own)| {
-            let gvif = gvif(&z, &own);
+            let gvif = gvif(&r, &own);
             let df = own.len();
             TermCollinearity {
                 term: name.to_string(),
@@ -153,14 +159,15 @@ fn standardized(x: &DMatrix<f64>, columns: &[usize]) -> Option<DMatrix<f64>> {
     Some(z)
 }
 
-/// GVIF of the columns `own` of the standardized matrix `z` against the
+/// GVIF of the columns `own` of the standardized matrix Z against the
 /// rest: det(Z₁'Z₁)/det(E'E), from the diagonals of two Householder QR
-/// factors, in logarithms.
-fn gvif(z: &DMatrix<f64>, own: &[usize]) -> f64 {
-    let rest: Vec<usize> = (0..z.ncols()).filter(|j| !own.contains(j)).collect();
+/// factors, in logarithms. `r` is the R factor of Z = QR, whose columns
+/// have the same Gram matrix as Z's.
+fn gvif(r: &DMatrix<f64>, own: &[usize]) -> f64 {
+    let rest: Vec<usize> = (0..r.ncols()).filter(|j| !own.contains(j)).collect();
     let ordered: Vec<usize> = rest.iter().chain(own).copied().collect();
-    let log_det_own = log_det_gram(&z.select_columns(own), 0);
-    let log_det_orthogonal = log_det_gram(&z.select_columns(&ordered), rest.len());
+    let log_det_own = log_det_gram(&r.select_columns(own), 0);
+    let log_det_orthogonal = log_det_gram(&r.select_columns(&ordered), rest.len());
     if log_det_orthogonal == f64::NEG_INFINITY {
         return f64::INFINITY;
     }
@@ -171,7 +178,7 @@ fn gvif(z: &DMatrix<f64>, own: &[usize]) -> f64 {
 /// ln det of the Gram matrix of the trailing columns of `a` (from column
 /// `from`) after projecting out the leading ones: 2·Σ ln |rₖₖ| over the
 /// trailing diagonal of the R factor of a = QR. −∞ when a diagonal is zero.
-/// `a` has more rows than columns.
+/// `a` has at least as many rows as columns.
 fn log_det_gram(a: &DMatrix<f64>, from: usize) -> f64 {
     let r = a.clone().qr().r();
     (from..a.ncols()).map(|k| 2.0 * r[(k, k)].abs().ln()).sum()

@@ -74,20 +74,26 @@ pub fn each_term_last_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
                 .filter(|t| matches!(t.kind, TermKind::Interaction { left, right } if left == k || right == k))
                 .flat_map(|t| t.columns.clone())
                 .collect();
+            // The rank without the dropped columns and the rise in residual
+            // sum of squares over the full model: from the fit's own QR
+            // factor when it can tell, otherwise by a refit.
             let without = |drop: &dyn Fn(usize) -> bool| {
-                let cols: Vec<usize> = (0..design.x.ncols()).filter(|&j| !drop(j)).collect();
-                let lo = design.x_lo.as_ref().map(|l| l.select_columns(&cols));
-                least_squares(&design.x.select_columns(&cols), lo.as_ref(), &design.y)
+                fit.solution.sse_rise_without(drop).unwrap_or_else(|| {
+                    let cols: Vec<usize> = (0..design.x.ncols()).filter(|&j| !drop(j)).collect();
+                    let lo = design.x_lo.as_ref().map(|l| l.select_columns(&cols));
+                    let refit = least_squares(&design.x.select_columns(&cols), lo.as_ref(), &design.y);
+                    (refit.kept.len(), refit.residuals.norm_squared() - fit.quality.sse)
+                })
             };
-            let reduced = without(&|j| term.columns.contains(&j) || higher.contains(&j));
-            let (base_rank, base_sse) = if higher.is_empty() {
-                (fit.solution.kept.len(), fit.quality.sse)
+            let (reduced_rank, reduced_rise) =
+                without(&|j| term.columns.contains(&j) || higher.contains(&j));
+            let (base_rank, base_rise) = if higher.is_empty() {
+                (fit.solution.kept.len(), 0.0)
             } else {
-                let base = without(&|j| higher.contains(&j));
-                (base.kept.len(), base.residuals.norm_squared())
+                without(&|j| higher.contains(&j))
             };
-            let df = base_rank - reduced.kept.len();
-            let sum_sq = (reduced.residuals.norm_squared() - base_sse).max(0.0);
+            let df = base_rank - reduced_rank;
+            let sum_sq = (reduced_rise - base_rise).max(0.0);
             term_row(term, df, sum_sq, fit)
         })
         .collect();

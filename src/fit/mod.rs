@@ -17,6 +17,7 @@ use nalgebra::{DMatrix, DVector};
 use statrs::distribution::{Continuous, ContinuousCDF, FisherSnedecor, Normal, StudentsT};
 
 use self::ddouble::DoubleDouble;
+use self::qr::Leverage;
 use self::robust::{robust_covariance, Robust};
 use crate::design::Design;
 
@@ -86,6 +87,9 @@ pub struct LeastSquares {
     pub residuals: DVector<f64>,
     /// 2-norm condition number of the kept columns scaled to unit length.
     pub condition_number: f64,
+    /// The triangular factor R of the kept columns scaled to unit length,
+    /// in the order of `kept`.
+    pub r: DMatrix<f64>,
     /// The arithmetic of the solve.
     pub precision: Precision,
 }
@@ -99,26 +103,74 @@ pub fn least_squares(
     x_lo: Option<&DMatrix<f64>>,
     y: &DVector<f64>,
 ) -> LeastSquares {
-    let double = qr::solve::<f64>(x, None, y);
+    let double = qr::solve::<f64>(x, None, y, Leverage::Wanted);
     let kappa = qr::condition_number(&double.r);
-    let (solved, precision) = if kappa > EXTENDED_ABOVE {
-        (
-            qr::solve::<DoubleDouble>(x, x_lo, y),
-            Precision::DoubleDouble,
-        )
+    if kappa > EXTENDED_ABOVE {
+        let extended = qr::solve::<DoubleDouble>(x, x_lo, y, Leverage::Wanted);
+        LeastSquares::from_solved(extended, Precision::DoubleDouble)
     } else {
-        (double, Precision::Double)
-    };
-    LeastSquares {
-        condition_number: qr::condition_number(&solved.r),
-        kept: solved.kept,
-        aliased: solved.aliased,
-        beta: solved.beta,
-        xtx_inv: solved.xtx_inv,
-        effects: solved.effects,
-        leverage: solved.leverage,
-        residuals: solved.residuals,
-        precision,
+        LeastSquares::from_solved(double, Precision::Double)
+    }
+}
+
+/// The least-squares solution of an auxiliary regression, one that only
+/// feeds a test statistic (Breusch-Godfrey, Breusch-Pagan, RESET, ...):
+/// double precision at any condition number, and no leverage. A test
+/// statistic needs far fewer digits than a reported coefficient, and these
+/// regressions run on every row of every model.
+pub fn auxiliary_least_squares(x: &DMatrix<f64>, y: &DVector<f64>) -> LeastSquares {
+    let solved = qr::solve::<f64>(x, None, y, Leverage::Skipped);
+    LeastSquares::from_solved(solved, Precision::Double)
+}
+
+impl LeastSquares {
+    fn from_solved(solved: qr::Solved, precision: Precision) -> Self {
+        LeastSquares {
+            condition_number: qr::condition_number(&solved.r),
+            kept: solved.kept,
+            aliased: solved.aliased,
+            beta: solved.beta,
+            xtx_inv: solved.xtx_inv,
+            effects: solved.effects,
+            leverage: solved.leverage,
+            residuals: solved.residuals,
+            r: solved.r,
+            precision,
+        }
+    }
+
+    /// The rank of the model without the kept columns for which `drop` is
+    /// true, and how much its residual sum of squares exceeds this model's,
+    /// from this solution's R factor and effects alone: with X = QR,
+    /// dropping columns leaves a model inside the span of Q, so the rise is
+    /// min ‖Qᵀy − R_S b‖² over the remaining columns S, a problem of
+    /// only as many rows as coefficients (Golub & Van Loan 2013, §6.5 on
+    /// downdating). `None` when the answer needs a refit instead: when a
+    /// column was set aside as aliased (dropping a term can make it
+    /// estimable again) or the solve needed double-double precision.
+    pub fn sse_rise_without(&self, drop: impl Fn(usize) -> bool) -> Option<(usize, f64)> {
+        if !self.aliased.is_empty() || self.precision != Precision::Double {
+            return None;
+        }
+        let keep: Vec<usize> = (0..self.kept.len())
+            .filter(|&k| !drop(self.kept[k]))
+            .collect();
+        let effects = DVector::from_column_slice(&self.effects);
+        let rise = if keep.is_empty() {
+            effects.norm_squared()
+        } else {
+            let reduced = qr::solve::<f64>(
+                &self.r.select_columns(&keep),
+                None,
+                &effects,
+                Leverage::Skipped,
+            );
+            if reduced.kept.len() < keep.len() {
+                return None;
+            }
+            reduced.residuals.norm_squared()
+        };
+        Some((keep.len(), rise))
     }
 }
 
@@ -415,6 +467,34 @@ mod tests {
         let ls = least_squares(&x, None, &y);
         assert_eq!(ls.kept, vec![0, 1]);
         assert_eq!(ls.aliased, vec![2]);
+    }
+
+    #[test]
+    fn sse_rise_from_the_r_factor_matches_a_refit() {
+        // Five columns with no exact relation; drop columns 1 and 3.
+        let x = DMatrix::from_fn(12, 5, |i, j| {
+            if j == 0 {
+                1.0
+            } else {
+                ((i * 7 + j * 5) % 11) as f64 + (i * j) as f64 * 0.1
+            }
+        });
+        let y = DVector::from_fn(12, |i, _| (i as f64 * 1.3).sin() * 4.0 + i as f64);
+        let full = least_squares(&x, None, &y);
+        let (rank, rise) = full.sse_rise_without(|j| j == 1 || j == 3).unwrap();
+        let refit = least_squares(&x.select_columns(&[0, 2, 4]), None, &y);
+        let expected = refit.residuals.norm_squared() - full.residuals.norm_squared();
+        assert_eq!(rank, 3);
+        assert!(
+            (rise - expected).abs() < 1e-10 * expected,
+            "{rise} vs {expected}"
+        );
+        // A column set aside as aliased sends the caller to a refit.
+        let mut aliased = x.clone().insert_column(5, 0.0);
+        aliased.set_column(5, &(x.column(1) * 2.0));
+        assert!(least_squares(&aliased, None, &y)
+            .sse_rise_without(|j| j == 1)
+            .is_none());
     }
 
     #[test]

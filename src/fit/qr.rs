@@ -86,7 +86,8 @@ pub struct Solved {
     pub xtx_inv: DMatrix<f64>,
     /// The first `kept.len()` entries of Qᵀy.
     pub effects: Vec<f64>,
-    /// Diagonal of the hat matrix: squared row norms of the thin Q = X R⁻¹.
+    /// Diagonal of the hat matrix: squared row norms of the thin Q = X R⁻¹;
+    /// empty when the solve was asked to skip it.
     pub leverage: Vec<f64>,
     /// y − Xb, computed in the working precision.
     pub residuals: DVector<f64>,
@@ -94,10 +95,26 @@ pub struct Solved {
     pub r: DMatrix<f64>,
 }
 
+/// Whether a solve also computes each row's leverage, which costs about as
+/// much as the factorization itself.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Leverage {
+    /// Compute the diagonal of the hat matrix.
+    Wanted,
+    /// Leave [`Solved::leverage`] empty.
+    Skipped,
+}
+
 /// Solves least squares for the columns `cols` (each `hi + lo`, `lo` empty
 /// when the column is exact in double precision) and response `y`, in the
 /// arithmetic `T`.
-pub fn solve<T: Real>(hi: &DMatrix<f64>, lo: Option<&DMatrix<f64>>, y: &DVector<f64>) -> Solved {
+pub fn solve<T: Real>(
+    hi: &DMatrix<f64>,
+    lo: Option<&DMatrix<f64>>,
+    y: &DVector<f64>,
+    leverage: Leverage,
+) -> Solved {
+    let want_leverage = leverage == Leverage::Wanted;
     let (n, p) = hi.shape();
     let zero = T::of(0.0);
     let original: Vec<Vec<T>> = (0..p)
@@ -173,8 +190,9 @@ pub fn solve<T: Real>(hi: &DMatrix<f64>, lo: Option<&DMatrix<f64>>, y: &DVector<
 
     // Leverage h_i = ‖row i of Q‖², with Q = X_s R⁻¹ (X_s the scaled kept
     // columns): one forward substitution zR = x_i per row.
-    let mut leverage = vec![0.0; n];
+    let mut leverage = vec![0.0; if want_leverage { n } else { 0 }];
     let inverse_scale: Vec<T> = kept.iter().map(|&j| T::of(1.0) / scale[j]).collect();
+    let inverse_diagonal: Vec<T> = r_cols.iter().map(|c| T::of(1.0) / c[c.len() - 1]).collect();
     let mut z = vec![zero; rank];
     for (i, h) in leverage.iter_mut().enumerate() {
         let mut sum = zero;
@@ -184,7 +202,7 @@ pub fn solve<T: Real>(hi: &DMatrix<f64>, lo: Option<&DMatrix<f64>>, y: &DVector<
             for (&zm, &rm) in z[..c].iter().zip(r_col) {
                 v = v - zm * rm;
             }
-            z[c] = v / r_col[c];
+            z[c] = v * inverse_diagonal[c];
             sum = sum + z[c] * z[c];
         }
         *h = sum.value();
@@ -218,10 +236,20 @@ fn norm<T: Real>(x: &[T]) -> T {
     if big == zero {
         return zero;
     }
-    let sum = x.iter().fold(zero, |s, &v| {
-        let u = v / big;
-        s + u * u
-    });
+    // Multiplying by 1/big is much cheaper than dividing, above all in
+    // double-double; near underflow, where 1/big overflows, divide.
+    let inverse = T::of(1.0) / big;
+    let sum = if inverse.value().is_finite() {
+        x.iter().fold(zero, |s, &v| {
+            let u = v * inverse;
+            s + u * u
+        })
+    } else {
+        x.iter().fold(zero, |s, &v| {
+            let u = v / big;
+            s + u * u
+        })
+    };
     big * sum.sqrt()
 }
 
@@ -302,8 +330,8 @@ mod tests {
         let x = DMatrix::from_row_slice(4, 2, &[1.0, 0.0, 1.0, 1.0, 1.0, 2.0, 1.0, 4.0]);
         let y = DVector::from_vec(vec![2.0, 5.0, 8.0, 14.0]);
         for s in [
-            solve::<f64>(&x, None, &y),
-            solve::<DoubleDouble>(&x, None, &y),
+            solve::<f64>(&x, None, &y, Leverage::Wanted),
+            solve::<DoubleDouble>(&x, None, &y, Leverage::Wanted),
         ] {
             assert!((s.beta[0] - 2.0).abs() < 1e-14);
             assert!((s.beta[1] - 3.0).abs() < 1e-14);
@@ -319,9 +347,9 @@ mod tests {
         let hi = DMatrix::from_row_slice(3, 2, &[1.0, 0.0, 1.0, 1.0, 1.0, 2.0]);
         let lo = DMatrix::from_row_slice(3, 2, &[0.0, 0.0, 0.0, 0.0, 0.0, 2f64.powi(-50)]);
         let y = DVector::from_vec(vec![0.0, 1.0, 2.0]);
-        let exact = solve::<DoubleDouble>(&hi, None, &y);
+        let exact = solve::<DoubleDouble>(&hi, None, &y, Leverage::Wanted);
         assert_eq!(exact.beta[1], 1.0);
-        let shifted = solve::<DoubleDouble>(&hi, Some(&lo), &y);
+        let shifted = solve::<DoubleDouble>(&hi, Some(&lo), &y, Leverage::Wanted);
         assert!(shifted.beta[1] < 1.0, "{}", shifted.beta[1]);
         assert!(shifted.residuals.amax() > 0.0);
     }

@@ -1,0 +1,355 @@
+//! Whole-report speed and memory at 10k, 100k and 1M rows, beside the I/O
+//! floor measured in the same run.
+//!
+//! Run with `cargo bench --bench report_scale` (all three sizes) or name
+//! the sizes: `cargo bench --bench report_scale -- 10000 100000`. The
+//! `--smoke` flag runs the smallest size once and only checks that the run
+//! succeeded and wrote its files; CI runs it so the bench keeps working.
+//!
+//! For each size the bench
+//!
+//! 1. generates an invented workbook (`target/scale/rows-N.xlsx`, kept
+//!    between runs): a fictional parcel carrier's delivery rounds, one row
+//!    per round and month, with a date, five numeric columns, two text
+//!    categories and a 0/1 flag, from splitmix64 with a fixed seed;
+//! 2. runs the release `sheetfit` binary on a three-model job (numeric;
+//!    numeric and categorical; trend, monthly season and a 12-month
+//!    forecast), every sheet and chart included;
+//! 3. runs the floor in a separate process: stream the input with
+//!    calamine's cell reader into typed columns, then write as many number
+//!    cells as the report holds, sheet by sheet, with rust_xlsxwriter in
+//!    constant-memory mode;
+//!
+//! and prints wall time and peak RSS (`ru_maxrss` from `wait4`) of both,
+//! with their ratios. The machines are shared and noisy: compare ratios
+//! within one run, not seconds between runs.
+
+use std::error::Error;
+use std::f64::consts::PI;
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, ExitStatus};
+use std::time::{Duration, Instant};
+
+use calamine::{open_workbook_auto, DataType, Reader};
+use rust_xlsxwriter::{ExcelDateTime, Format, Workbook};
+
+/// Row counts of the three generated workbooks.
+const SIZES: [usize; 3] = [10_000, 100_000, 1_000_000];
+/// Fixed seed, so every run reads the same invented data.
+const SEED: u64 = 20261202;
+/// Months covered by the data; rounds are spread evenly over them.
+const MONTHS: usize = 60;
+const DEPOTS: [&str; 6] = [
+    "Ashford",
+    "Brookmere",
+    "Calder",
+    "Dunmore",
+    "Elmstead",
+    "Fenwick",
+];
+const VEHICLES: [&str; 3] = ["bike", "van", "truck"];
+const HEADERS: [&str; 9] = [
+    "month",
+    "depot",
+    "vehicle",
+    "distance_km",
+    "stops",
+    "parcels",
+    "driver_hours",
+    "express",
+    "cost",
+];
+
+/// The three-model job, with `{input}` and `{output}` filled in per size.
+const JOB: &str = r#"title = "Delivery rounds (invented scale data)"
+
+[input]
+workbook = "{input}"
+sheet = "rounds"
+
+[output]
+workbook = "{output}"
+overwrite = true
+
+[[model]]
+name = "drivers"
+response = "cost"
+numeric = ["distance_km", "stops", "parcels", "driver_hours", "express"]
+
+[[model]]
+name = "by depot and vehicle"
+response = "cost"
+numeric = ["distance_km", "stops", "parcels", "driver_hours", "express"]
+categorical = { depot = "Ashford", vehicle = "van" }
+
+[[model]]
+name = "trend and season"
+response = "cost"
+numeric = ["distance_km", "stops"]
+categorical = ["depot"]
+trend = "month"
+season = { column = "month", by = "month" }
+
+[model.forecast]
+horizon = 12
+hold = { distance_km = 40, stops = 60, depot = "Calder" }
+"#;
+
+/// splitmix64: a tiny, well-mixed 64-bit generator.
+struct SplitMix64(u64);
+
+impl SplitMix64 {
+    fn next_u64(&mut self) -> u64 {
+        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^ (z >> 31)
+    }
+
+    fn uniform(&mut self) -> f64 {
+        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
+    }
+
+    fn normal(&mut self) -> f64 {
+        let u1 = 1.0 - self.uniform();
+        let u2 = self.uniform();
+        (-2.0 * u1.ln()).sqrt() * (2.0 * PI * u2).cos()
+    }
+
+    fn pick(&mut self, n: usize) -> usize {
+        (self.next_u64() % n as u64) as usize
+    }
+}
+
+/// Writes `rows` invented delivery rounds to `path` (constant memory).
+fn generate(path: &Path, rows: usize) -> Result<(), Box<dyn Error>> {
+    let mut rng = SplitMix64(SEED);
+    let mut workbook = Workbook::new();
+    let date = Format::new().set_num_format("yyyy-mm-dd");
+    let sheet = workbook.add_worksheet_with_constant_memory()?;
+    sheet.set_name("rounds")?;
+    for (col, header) in HEADERS.iter().enumerate() {
+        sheet.write_string(0, col as u16, *header)?;
+    }
+    for i in 0..rows {
+        let row = i as u32 + 1;
+        let month = i * MONTHS / rows;
+        let (year, month_of_year) = (2021 + month / 12, month % 12 + 1);
+        let depot = rng.pick(DEPOTS.len());
+        let vehicle = rng.pick(VEHICLES.len());
+        let distance = (10.0 + 60.0 * rng.uniform()).round();
+        let stops = (20.0 + 80.0 * rng.uniform()).round();
+        let parcels = (stops * (1.2 + rng.uniform())).round();
+        let hours =
+            ((2.0 + distance / 25.0 + stops / 30.0 + 0.5 * rng.normal()) * 10.0).round() / 10.0;
+        let express = f64::from(rng.uniform() < 0.2);
+        let season = 8.0 * (2.0 * PI * month_of_year as f64 / 12.0).sin();
+        let cost = 40.0
+            + 1.8 * distance
+            + 0.9 * stops
+            + 0.15 * parcels
+            + 6.0 * hours
+            + 25.0 * express
+            + 4.0 * depot as f64
+            + [-15.0, 0.0, 30.0][vehicle]
+            + 0.2 * month as f64
+            + season
+            + 12.0 * rng.normal();
+        let stamp = ExcelDateTime::from_ymd(year as u16, month_of_year as u8, 1)?;
+        sheet.write_datetime_with_format(row, 0, &stamp, &date)?;
+        sheet.write_string(row, 1, DEPOTS[depot])?;
+        sheet.write_string(row, 2, VEHICLES[vehicle])?;
+        sheet.write_number(row, 3, distance)?;
+        sheet.write_number(row, 4, stops)?;
+        sheet.write_number(row, 5, parcels)?;
+        sheet.write_number(row, 6, hours)?;
+        sheet.write_number(row, 7, express)?;
+        sheet.write_number(row, 8, (cost * 100.0).round() / 100.0)?;
+    }
+    workbook.save(path)?;
+    Ok(())
+}
+
+/// The floor: stream every input cell into typed columns, then write
+/// `shape` (rows, columns per sheet) as number cells in constant memory.
+fn floor(input: &Path, output: &Path, shape: &[(u32, u16)]) -> Result<(), Box<dyn Error>> {
+    let mut workbook = open_workbook_auto(input)?;
+    let calamine::Sheets::Xlsx(ref mut xlsx) = workbook else {
+        return Err("the floor reads xlsx only".into());
+    };
+    let mut numbers: Vec<Vec<f64>> = vec![Vec::new(); HEADERS.len()];
+    let mut texts: Vec<Vec<String>> = vec![Vec::new(); HEADERS.len()];
+    let mut cells = xlsx.worksheet_cells_reader("rounds")?;
+    while let Some(cell) = cells.next_cell()? {
+        let col = cell.get_position().1 as usize;
+        if cell.get_position().0 == 0 || col >= HEADERS.len() {
+            continue;
+        }
+        match cell.get_value() {
+            calamine::DataRef::SharedString(s) => texts[col].push(s.to_string()),
+            calamine::DataRef::String(s) => texts[col].push(s.clone()),
+            other => numbers[col].push(other.get_float().or(other.as_f64()).unwrap_or(f64::NAN)),
+        }
+    }
+    std::hint::black_box((&numbers, &texts));
+    let mut report = Workbook::new();
+    for &(rows, cols) in shape {
+        let sheet = report.add_worksheet_with_constant_memory()?;
+        for row in 0..rows {
+            for col in 0..cols {
+                sheet.write_number(row, col, f64::from(row) + f64::from(col))?;
+            }
+        }
+    }
+    report.save(output)?;
+    Ok(())
+}
+
+/// Rows and columns of each sheet of a written workbook (cells it holds).
+fn sheet_shapes(path: &Path) -> Result<Vec<(u32, u16)>, Box<dyn Error>> {
+    let mut workbook = open_workbook_auto(path)?;
+    let names = workbook.sheet_names();
+    let mut shapes = Vec::new();
+    for name in names {
+        let range = workbook.worksheet_range(&name)?;
+        let (rows, cols) = range.get_size();
+        shapes.push((rows as u32, cols as u16));
+    }
+    Ok(shapes)
+}
+
+/// Wall time and peak resident set size of one child process.
+struct Measured {
+    wall: Duration,
+    peak_mb: f64,
+    status: ExitStatus,
+}
+
+fn measure(command: &mut Command) -> Result<Measured, Box<dyn Error>> {
+    use std::os::unix::process::ExitStatusExt;
+    let start = Instant::now();
+    let child = command.spawn()?;
+    let pid = child.id() as libc::pid_t;
+    let mut status = 0;
+    // SAFETY: rusage is plain data that wait4 fills in for our own child.
+    let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
+    // SAFETY: `pid` is a child of this process that has not been waited for.
+    let waited = unsafe { libc::wait4(pid, &mut status, 0, &mut usage) };
+    let wall = start.elapsed();
+    if waited != pid {
+        return Err(format!("waiting for process {pid} failed").into());
+    }
+    Ok(Measured {
+        wall,
+        peak_mb: usage.ru_maxrss as f64 / 1024.0,
+        status: ExitStatus::from_raw(status),
+    })
+}
+
+fn run_size(rows: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> {
+    let input = dir.join(format!("rows-{rows}.xlsx"));
+    if !input.exists() {
+        eprintln!("generating {} ...", input.display());
+        generate(&input, rows)?;
+    }
+    let report = dir.join(format!("rows-{rows}-report.xlsx"));
+    let job = dir.join(format!("rows-{rows}.toml"));
+    let text = JOB
+        .replace("{input}", &input.display().to_string())
+        .replace("{output}", &report.display().to_string());
+    fs::write(&job, text)?;
+
+    let tool = measure(
+        Command::new(env!("CARGO_BIN_EXE_sheetfit"))
+            .args(["run", "-q"])
+            .arg(&job),
+    )?;
+    if !tool.status.success() {
+        return Err(format!("sheetfit failed on {} ({})", job.display(), tool.status).into());
+    }
+    let json = report.with_extension("json");
+    if !json.exists() {
+        return Err(format!("sheetfit wrote no {}", json.display()).into());
+    }
+    let shape = sheet_shapes(&report)?;
+    let cells: u64 = shape
+        .iter()
+        .map(|&(r, c)| u64::from(r) * u64::from(c))
+        .sum();
+    if smoke {
+        println!(
+            "smoke run: {rows} rows, report of {cells} cells in {} sheets, ok",
+            shape.len()
+        );
+        return Ok(());
+    }
+    let shape_arg: Vec<String> = shape.iter().map(|(r, c)| format!("{r}x{c}")).collect();
+    let floor_out = dir.join(format!("rows-{rows}-floor.xlsx"));
+    let floor_run = measure(
+        Command::new(std::env::current_exe()?)
+            .arg("--floor")
+            .arg(&input)
+            .arg(&floor_out)
+            .arg(shape_arg.join(",")),
+    )?;
+    if !floor_run.status.success() {
+        return Err(format!("the floor run failed ({})", floor_run.status).into());
+    }
+    println!(
+        "{:>9} {:>11} {:>8.1} {:>8.1} {:>6.2} {:>9.0} {:>9.0} {:>6.2}",
+        rows,
+        cells,
+        floor_run.wall.as_secs_f64(),
+        tool.wall.as_secs_f64(),
+        tool.wall.as_secs_f64() / floor_run.wall.as_secs_f64(),
+        floor_run.peak_mb,
+        tool.peak_mb,
+        tool.peak_mb / floor_run.peak_mb,
+    );
+    Ok(())
+}
+
+fn parse_shape(text: &str) -> Result<Vec<(u32, u16)>, Box<dyn Error>> {
+    text.split(',')
+        .map(|part| {
+            let (rows, cols) = part.split_once('x').ok_or("shape must be ROWSxCOLS,...")?;
+            Ok((rows.parse()?, cols.parse()?))
+        })
+        .collect()
+}
+
+fn main() -> Result<(), Box<dyn Error>> {
+    let args: Vec<String> = std::env::args()
+        .skip(1)
+        .filter(|a| a != "--bench")
+        .collect();
+    if args.first().map(String::as_str) == Some("--floor") {
+        let [_, input, output, shape] = args.as_slice() else {
+            return Err("usage: --floor INPUT OUTPUT SHAPE".into());
+        };
+        return floor(Path::new(input), Path::new(output), &parse_shape(shape)?);
+    }
+    let smoke = args.iter().any(|a| a == "--smoke");
+    let mut sizes: Vec<usize> = args.iter().filter_map(|a| a.parse().ok()).collect();
+    if smoke {
+        sizes = vec![SIZES[0]];
+    } else if sizes.is_empty() {
+        sizes = SIZES.to_vec();
+    }
+    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("target")
+        .join("scale");
+    fs::create_dir_all(&dir)?;
+    if !smoke {
+        println!(
+            "{:>9} {:>11} {:>8} {:>8} {:>6} {:>9} {:>9} {:>6}",
+            "rows", "cells", "floor s", "tool s", "ratio", "floor MB", "tool MB", "ratio"
+        );
+    }
+    for rows in sizes {
+        run_size(rows, &dir, smoke)?;
+    }
+    Ok(())
+}
