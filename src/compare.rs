@@ -14,19 +14,40 @@ use serde::Serialize;
 
 use crate::checks::each_term_last_anova;
 use crate::design::{Design, TermKind};
-use crate::fit::{f_sf, fit, Fit, FitError};
+use crate::fit::{f_sf, fit, Fit, FitError, FitQuality};
 
 /// The significance threshold of the suggestion when the job sets none.
 pub const DEFAULT_THRESHOLD: f64 = 0.05;
 
-/// A fitted model as the comparison sees it.
-pub struct Candidate<'a> {
-    /// Model name.
-    pub name: &'a str,
-    /// Its design.
-    pub design: &'a Design,
-    /// Its fit.
-    pub fit: &'a Fit,
+/// A fitted model as the comparison sees it: what it explains, on which
+/// rows, with which coefficients, and how well. Small enough to keep for
+/// every model while the designs themselves are let go.
+pub struct Candidate {
+    name: String,
+    response: String,
+    log_response: bool,
+    /// Sheet rows used, sorted.
+    rows: Vec<u32>,
+    terms: Vec<String>,
+    df_resid: usize,
+    quality: FitQuality,
+}
+
+impl Candidate {
+    /// The comparison's view of the model `name` with `design` and `fit`.
+    pub fn new(name: &str, design: &Design, fit: &Fit) -> Self {
+        let mut rows = design.rows.clone();
+        rows.sort_unstable();
+        Candidate {
+            name: name.to_string(),
+            response: design.response.clone(),
+            log_response: design.log_response,
+            rows,
+            terms: fit.coefficients.iter().map(|k| k.term.clone()).collect(),
+            df_resid: fit.df_resid,
+            quality: fit.quality.clone(),
+        }
+    }
 }
 
 /// One pair of models.
@@ -55,11 +76,11 @@ pub struct Comparison {
 }
 
 /// Every pair of `models`, nested ones with their partial F test.
-pub fn compare(models: &[Candidate<'_>]) -> Vec<Comparison> {
+pub fn compare(models: &[Candidate]) -> Vec<Comparison> {
     let mut out = Vec::new();
     for (i, a) in models.iter().enumerate() {
         for b in &models[i + 1..] {
-            let (small, large) = if b.fit.coefficients.len() < a.fit.coefficients.len() {
+            let (small, large) = if b.terms.len() < a.terms.len() {
                 (b, a)
             } else {
                 (a, b)
@@ -70,32 +91,20 @@ pub fn compare(models: &[Candidate<'_>]) -> Vec<Comparison> {
     out
 }
 
-fn names<'a>(c: &Candidate<'a>) -> Vec<&'a str> {
-    c.fit.coefficients.iter().map(|k| k.term.as_str()).collect()
-}
-
-fn pair(small: &Candidate<'_>, large: &Candidate<'_>) -> Comparison {
-    let same_data = small.design.response == large.design.response
-        && small.design.log_response == large.design.log_response
-        && {
-            let mut a = small.design.rows.clone();
-            let mut b = large.design.rows.clone();
-            a.sort_unstable();
-            b.sort_unstable();
-            a == b
-        };
-    let large_names = names(large);
-    let subset = names(small).iter().all(|n| large_names.contains(n));
-    let df1 = small.fit.df_resid.saturating_sub(large.fit.df_resid);
+fn pair(small: &Candidate, large: &Candidate) -> Comparison {
+    let same_data = small.response == large.response
+        && small.log_response == large.log_response
+        && small.rows == large.rows;
+    let subset = small.terms.iter().all(|n| large.terms.contains(n));
+    let df1 = small.df_resid.saturating_sub(large.df_resid);
     let nested = same_data && subset && df1 > 0;
-    let aic_difference = large.fit.quality.aic - small.fit.quality.aic;
-    let bic_difference = large.fit.quality.bic - small.fit.quality.bic;
+    let aic_difference = large.quality.aic - small.quality.aic;
+    let bic_difference = large.quality.bic - small.quality.bic;
     let (f_stat, p_value, note) = if nested {
-        let q = &large.fit.quality;
-        let f =
-            ((small.fit.quality.sse - q.sse) / df1 as f64) / (q.sse / large.fit.df_resid as f64);
+        let q = &large.quality;
+        let f = ((small.quality.sse - q.sse) / df1 as f64) / (q.sse / large.df_resid as f64);
         let f = f.is_finite().then_some(f);
-        let p = f.and_then(|f| f_sf(f, df1 as f64, large.fit.df_resid as f64));
+        let p = f.and_then(|f| f_sf(f, df1 as f64, large.df_resid as f64));
         let words = match p {
             Some(p) if p < DEFAULT_THRESHOLD => format!(
                 "'{}' is nested in '{}': the {df1} extra coefficients together matter (p = {})",
@@ -143,7 +152,7 @@ fn pair(small: &Candidate<'_>, large: &Candidate<'_>) -> Comparison {
         nested,
         f_stat,
         df1: nested.then_some(df1),
-        df2: nested.then_some(large.fit.df_resid),
+        df2: nested.then_some(large.df_resid),
         p_value,
         aic_difference,
         bic_difference,

@@ -90,38 +90,31 @@ impl Error {
     }
 }
 
-/// A model of the job with its design and fit.
-struct Fitted<'j> {
-    spec: &'j job::ModelSpec,
-    design: design::Design,
-    fit: fit::Fit,
-}
-
-/// Builds and fits every model of `job` on `table`.
-fn fit_models<'j>(job: &'j Job, table: &Table) -> Result<Vec<Fitted<'j>>, Error> {
-    job.models
-        .iter()
-        .map(|spec| {
-            let design = design::build(table, spec)?;
-            let fit = fit::fit(&spec.name, &design, spec.confidence)?;
-            let fit = match spec.standard_errors {
-                Some(kind) => fit::with_robust_errors(fit, &design, kind),
-                None => fit,
-            };
-            Ok(Fitted { spec, design, fit })
-        })
-        .collect()
-}
-
-/// Every reported number of the fitted models: forecasts, back-tests, the
-/// suggested smaller models and the comparisons.
+/// Every reported number of the job's models: each model's fit, checks,
+/// forecast, back-test and suggested smaller model, then the comparisons.
+///
+/// Models are taken one at a time and each design (the n × p matrix) is let
+/// go once its results are in, so memory holds one design at a time;
+/// `inspect` sees each model's design and fit before that (`check` uses it
+/// to describe them).
 fn model_results(
     job: &Job,
-    fitted: &[Fitted<'_>],
+    table: &Table,
+    inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
 ) -> Result<(Vec<results::ModelResults>, Vec<compare::Comparison>), Error> {
-    let mut models = Vec::with_capacity(fitted.len());
-    for f in fitted {
-        let plan = match &f.spec.forecast {
+    let mut models = Vec::with_capacity(job.models.len());
+    let mut candidates = Vec::with_capacity(job.models.len());
+    let mut suggestions = Vec::new();
+    let mut suggested_candidates = Vec::new();
+    for spec in &job.models {
+        let design = design::build(table, spec)?;
+        let fit = fit::fit(&spec.name, &design, spec.confidence)?;
+        let fit = match spec.standard_errors {
+            Some(kind) => fit::with_robust_errors(fit, &design, kind),
+            None => fit,
+        };
+        inspect(spec, &design, &fit);
+        let plan = match &spec.forecast {
             Some(job::ForecastSpec::Plan { sheet }) => Some(source::read_table_with(
                 &job.input,
                 Some(sheet),
@@ -130,45 +123,28 @@ fn model_results(
             )?),
             _ => None,
         };
-        let rows = forecast::forecast(f.spec, &f.design, &f.fit, plan.as_ref())?;
-        let backtest = forecast::backtest(f.spec, &f.design, &f.fit)?;
-        models.push(analyse(f.spec, &f.design, &f.fit, rows, backtest));
-    }
-    let mut suggestions = Vec::new();
-    for f in fitted {
-        let name = format!("{} (suggested)", f.spec.name);
+        let rows = forecast::forecast(spec, &design, &fit, plan.as_ref())?;
+        let backtest = forecast::backtest(spec, &design, &fit)?;
+        models.push(analyse(spec, &design, &fit, rows, backtest));
+        candidates.push(compare::Candidate::new(&spec.name, &design, &fit));
+        let name = format!("{} (suggested)", spec.name);
         if let Some((design, fit, dropped)) =
-            compare::suggest(&name, &f.design, &f.fit, job.suggest_threshold)?
+            compare::suggest(&name, &design, &fit, job.suggest_threshold)?
         {
-            let spec = job::ModelSpec {
+            let suggested = job::ModelSpec {
                 name,
-                ..f.spec.clone()
+                ..spec.clone()
             };
-            let mut m = analyse(&spec, &design, &fit, Vec::new(), None);
-            m.suggested_from = Some(f.spec.name.clone());
+            let mut m = analyse(&suggested, &design, &fit, Vec::new(), None);
+            m.suggested_from = Some(spec.name.clone());
             m.dropped_terms = dropped;
-            suggestions.push((m, design, fit));
+            suggested_candidates.push(compare::Candidate::new(&m.name, &design, &fit));
+            suggestions.push(m);
         }
     }
-    let mut candidates: Vec<compare::Candidate<'_>> = fitted
-        .iter()
-        .map(|f| compare::Candidate {
-            name: &f.spec.name,
-            design: &f.design,
-            fit: &f.fit,
-        })
-        .collect();
-    candidates.extend(
-        suggestions
-            .iter()
-            .map(|(m, design, fit)| compare::Candidate {
-                name: &m.name,
-                design,
-                fit,
-            }),
-    );
+    candidates.extend(suggested_candidates);
     let comparisons = compare::compare(&candidates);
-    models.extend(suggestions.into_iter().map(|(m, _, _)| m));
+    models.extend(suggestions);
     Ok((models, comparisons))
 }
 
@@ -201,14 +177,13 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         job.header_row,
         &job.limits,
     )?;
-    let bytes = std::fs::read(&job.input).map_err(|source| Error::Fingerprint {
+    let input_sha256 = file_sha256_hex(&job.input).map_err(|source| Error::Fingerprint {
         path: job.input.clone(),
         source,
     })?;
     timings.push(("read input", clock.elapsed()));
     let clock = Instant::now();
-    let fitted = fit_models(job, &table)?;
-    let (models, comparisons) = model_results(job, &fitted)?;
+    let (models, comparisons) = model_results(job, &table, &mut |_, _, _| {})?;
     let changes = options
         .previous
         .as_ref()
@@ -223,7 +198,7 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         job_file: job.path.display().to_string(),
         job_sha256: sha256_hex(job.text.as_bytes()),
         input_file: job.input.display().to_string(),
-        input_sha256: sha256_hex(&bytes),
+        input_sha256,
         sheet: table.sheet.clone(),
         rows_read: table.rows.len(),
     };
@@ -323,69 +298,78 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
         job.header_row
     );
     out.push_str(&describe_columns(&table));
-    let fitted = fit_models(&job, &table)?;
     // Everything a run computes, so check meets the errors run would.
-    let (models, _) = model_results(&job, &fitted)?;
+    let (models, _) = model_results(&job, &table, &mut |spec, design, fit| {
+        describe_model(&mut out, spec, design, fit);
+    })?;
     if let Some(previous) = &job.compare_with {
         changes::against(previous, &models)?;
     }
-    for Fitted { spec, design, fit } in &fitted {
+    Ok(out)
+}
+
+/// What `check` prints for one model: rows, periods, dropped rows, terms,
+/// aliased columns and the size of the fit.
+fn describe_model(
+    out: &mut String,
+    spec: &job::ModelSpec,
+    design: &design::Design,
+    fit: &fit::Fit,
+) {
+    let _ = writeln!(
+        out,
+        "model '{}': response {}, {} usable rows",
+        spec.name,
+        spec.response,
+        design.rows.len()
+    );
+    if let Some(t) = &design.timing {
         let _ = writeln!(
             out,
-            "model '{}': response {}, {} usable rows",
-            spec.name,
-            spec.response,
-            design.rows.len()
-        );
-        if let Some(t) = &design.timing {
-            let _ = writeln!(
-                out,
-                "  periods: by {} ({}), {} to {}{}",
-                t.frequency.name(),
-                if t.detected {
-                    "told from the dates"
-                } else {
-                    "set in the job"
-                },
-                t.first,
-                t.last(),
-                if t.panel {
-                    ", several rows per period"
-                } else {
-                    ""
-                }
-            );
-        }
-        if !design.dropped.is_empty() {
-            let _ = writeln!(
-                out,
-                "  {} rows left out for blank cells: sheet rows {}",
-                design.dropped.len(),
-                row_ranges(&design.dropped)
-            );
-        }
-        for term in &design.terms {
-            let names = &design.names[term.columns.clone()];
-            let _ = writeln!(out, "  term {}: {}", term.name, names.join(", "));
-        }
-        if !fit.aliased.is_empty() {
-            let _ = writeln!(
-                out,
-                "  aliased, would be left out: {}",
-                fit.aliased.join(", ")
-            );
-        }
-        let _ = writeln!(
-            out,
-            "  would estimate {} coefficients with {} residual degrees of freedom; \
-             condition number {}, {} arithmetic",
-            fit.coefficients.len(),
-            fit.df_resid,
-            results::significant(fit.quality.condition_number, 4),
-            fit.quality.precision.label()
+            "  periods: by {} ({}), {} to {}{}",
+            t.frequency.name(),
+            if t.detected {
+                "told from the dates"
+            } else {
+                "set in the job"
+            },
+            t.first,
+            t.last(),
+            if t.panel {
+                ", several rows per period"
+            } else {
+                ""
+            }
         );
     }
-    Ok(out)
+    if !design.dropped.is_empty() {
+        let _ = writeln!(
+            out,
+            "  {} rows left out for blank cells: sheet rows {}",
+            design.dropped.len(),
+            row_ranges(&design.dropped)
+        );
+    }
+    for term in &design.terms {
+        let names = &design.names[term.columns.clone()];
+        let _ = writeln!(out, "  term {}: {}", term.name, names.join(", "));
+    }
+    if !fit.aliased.is_empty() {
+        let _ = writeln!(
+            out,
+            "  aliased, would be left out: {}",
+            fit.aliased.join(", ")
+        );
+    }
+    let _ = writeln!(
+        out,
+        "  would estimate {} coefficients with {} residual degrees of freedom; \
+         condition number {}, {} arithmetic",
+        fit.coefficients.len(),
+        fit.df_resid,
+        results::significant(fit.quality.condition_number, 4),
+        fit.quality.precision.label()
+    );
 }
 
 /// One line per column: letter, name, the kinds of value it holds and, for
@@ -431,10 +415,26 @@ fn describe_columns(table: &Table) -> String {
 }
 
 fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes)
-        .iter()
-        .fold(String::with_capacity(64), |mut s, b| {
-            let _ = write!(s, "{b:02x}");
-            s
-        })
+    hex(&Sha256::digest(bytes))
+}
+
+/// SHA-256 of a file, read in pieces rather than whole.
+fn file_sha256_hex(path: &Path) -> std::io::Result<String> {
+    use std::io::Read;
+    let mut file = std::fs::File::open(path)?;
+    let mut hasher = Sha256::new();
+    let mut buffer = vec![0; 1 << 16];
+    loop {
+        match file.read(&mut buffer)? {
+            0 => return Ok(hex(&hasher.finalize())),
+            n => hasher.update(&buffer[..n]),
+        }
+    }
+}
+
+fn hex(digest: &[u8]) -> String {
+    digest.iter().fold(String::with_capacity(64), |mut s, b| {
+        let _ = write!(s, "{b:02x}");
+        s
+    })
 }

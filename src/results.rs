@@ -154,7 +154,9 @@ pub struct ModelResults {
     pub collinearity: Vec<TermCollinearity>,
     /// Per-row residuals and influence.
     pub residuals: Vec<RowDiagnostics>,
-    /// The standardized residuals, sorted, against their normal quantiles.
+    /// The standardized residuals, sorted, against their normal quantiles;
+    /// past [`NORMAL_PLOT_POINTS`] residuals, the points of a fixed set of
+    /// ranks (see [`plotted_ranks`]).
     pub normal_plot: Vec<NormalPoint>,
     /// Per-period means of actual and fitted values, for models with a
     /// date column.
@@ -287,7 +289,31 @@ pub fn analyse(
     }
 }
 
-/// The standardized residuals sorted against Blom's normal scores.
+/// Points a normal quantile plot holds at most; each statistic still uses
+/// every row.
+pub const NORMAL_PLOT_POINTS: usize = 2_000;
+
+/// Ranks kept at each end of a sampled normal plot, where departures from
+/// normality show.
+const NORMAL_PLOT_TAIL: usize = 100;
+
+/// The ranks (0-based, ascending) a plot of `n` sorted values shows: all of
+/// them up to `limit`; past it the `tail` lowest and highest, and ranks
+/// evenly spaced between them, `limit` in all.
+pub fn plotted_ranks(n: usize, limit: usize, tail: usize) -> Vec<usize> {
+    if n <= limit {
+        return (0..n).collect();
+    }
+    let middle = limit - 2 * tail;
+    let inner = n - 2 * tail;
+    (0..tail)
+        .chain((0..middle).map(|k| tail + k * inner / middle))
+        .chain(n - tail..n)
+        .collect()
+}
+
+/// The standardized residuals sorted against Blom's normal scores
+/// Φ⁻¹((i − 3/8)/(n + 1/4)) (Blom 1958), at the ranks of [`plotted_ranks`].
 fn normal_plot(rows: &[RowDiagnostics]) -> Vec<NormalPoint> {
     let mut r: Vec<f64> = rows
         .iter()
@@ -298,14 +324,14 @@ fn normal_plot(rows: &[RowDiagnostics]) -> Vec<NormalPoint> {
     let Ok(normal) = statrs::distribution::Normal::new(0.0, 1.0) else {
         return Vec::new();
     };
-    r.iter()
-        .enumerate()
-        .map(|(i, &v)| NormalPoint {
+    plotted_ranks(r.len(), NORMAL_PLOT_POINTS, NORMAL_PLOT_TAIL)
+        .into_iter()
+        .map(|i| NormalPoint {
             normal_quantile: statrs::distribution::ContinuousCDF::inverse_cdf(
                 &normal,
                 (i as f64 + 1.0 - 0.375) / (n + 0.25),
             ),
-            standardized_residual: v,
+            standardized_residual: r[i],
         })
         .collect()
 }
@@ -463,6 +489,14 @@ mod tests {
         assert_eq!(significant(3.16081871345e-15, 4), "3.161e-15");
         assert_eq!(significant(1829.15146, 4), "1829");
         assert_eq!(significant(0.00073206, 4), "0.0007321");
+    }
+
+    #[test]
+    fn plotted_ranks_keep_both_tails_and_space_the_middle() {
+        assert_eq!(plotted_ranks(5, 10, 2), vec![0, 1, 2, 3, 4]);
+        // Two ranks at each end, then 6 spaced 996/6 = 166 apart from rank 2.
+        let ranks = plotted_ranks(1_000, 10, 2);
+        assert_eq!(ranks, vec![0, 1, 2, 168, 334, 500, 666, 832, 998, 999]);
     }
 
     #[test]

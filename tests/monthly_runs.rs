@@ -21,7 +21,7 @@ use common::{read_json, sheetfit, stderr, Cell, Scratch};
 use Cell::{N, S, T};
 
 /// The sheets of a report without a comparison, in order.
-const SHEETS: [&str; 13] = [
+const SHEETS: [&str; 14] = [
     "Overview",
     "Coefficients",
     "ANOVA",
@@ -34,6 +34,7 @@ const SHEETS: [&str; 13] = [
     "Back-test rows",
     "Chart data",
     "Normal plot",
+    "Chart points",
     "Charts",
 ];
 

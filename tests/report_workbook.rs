@@ -152,6 +152,7 @@ fn report_sheets_are_named_in_order() {
             "Back-test rows",
             "Chart data",
             "Normal plot",
+            "Chart points",
             "Charts"
         ]
     );

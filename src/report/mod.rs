@@ -1,12 +1,15 @@
 //! Writing the results: the report workbook and the results JSON beside it.
 //!
-//! Both files are built in memory, written to temporary files in the target
-//! folder and only then renamed into place, so a failed run leaves the
-//! previous report untouched and never a half-written one.
+//! Both files are written straight to temporary files in the target folder
+//! (the workbook and the JSON at the same time, on two threads) and only
+//! then renamed into place, so a failed run leaves the previous report
+//! untouched and never a half-written one, and neither file is ever held
+//! whole in memory.
 
 pub mod workbook;
 
-use std::io::Write;
+use std::fs::File;
+use std::io::{BufWriter, Write};
 use std::path::{Path, PathBuf};
 
 use crate::results::Results;
@@ -77,18 +80,6 @@ pub fn json_path(workbook: &Path) -> PathBuf {
 pub fn write(results: &Results, path: &Path, protected: &[&Path]) -> Result<Written, ReportError> {
     check_targets(path, protected)?;
     let json = json_path(path);
-    let workbook_bytes =
-        workbook::workbook_bytes(results).map_err(|source| ReportError::Workbook {
-            path: path.to_path_buf(),
-            source,
-        })?;
-    let mut json_bytes =
-        serde_json::to_vec_pretty(results).map_err(|source| ReportError::Json {
-            path: json.clone(),
-            source,
-        })?;
-    json_bytes.push(b'\n');
-
     let folder = match path.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
         _ => PathBuf::from("."),
@@ -97,8 +88,35 @@ pub fn write(results: &Results, path: &Path, protected: &[&Path]) -> Result<Writ
         path: folder.clone(),
         source,
     })?;
-    let staged_workbook = stage(&folder, &workbook_bytes)?;
-    let staged_json = stage(&folder, &json_bytes)?;
+    let write_workbook = |file: &mut File| {
+        workbook::write_workbook(results, file).map_err(|source| ReportError::Workbook {
+            path: path.to_path_buf(),
+            source,
+        })
+    };
+    let write_json = |file: &mut File| {
+        let json_error = |source| ReportError::Json {
+            path: json.clone(),
+            source,
+        };
+        let mut out = BufWriter::new(file);
+        serde_json::to_writer_pretty(&mut out, results).map_err(json_error)?;
+        out.write_all(b"\n")
+            .and_then(|()| out.flush())
+            .map_err(|source| ReportError::Io {
+                path: json.clone(),
+                source,
+            })
+    };
+    let (staged_workbook, staged_json) = std::thread::scope(|scope| {
+        let json_task = scope.spawn(|| stage(&folder, write_json));
+        let staged_workbook = stage(&folder, write_workbook);
+        let staged_json = json_task
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+        (staged_workbook, staged_json)
+    });
+    let (staged_workbook, staged_json) = (staged_workbook?, staged_json?);
     let persist = |staged: tempfile::NamedTempFile, target: &Path| {
         staged.persist(target).map_err(|e| ReportError::Io {
             path: target.to_path_buf(),
@@ -130,7 +148,12 @@ pub fn check_targets(path: &Path, protected: &[&Path]) -> Result<(), ReportError
     Ok(())
 }
 
-fn stage(folder: &Path, bytes: &[u8]) -> Result<tempfile::NamedTempFile, ReportError> {
+/// A temporary file in `folder` filled by `fill`, flushed to disk and made
+/// readable like a new file; it is deleted again if anything fails.
+fn stage(
+    folder: &Path,
+    fill: impl FnOnce(&mut File) -> Result<(), ReportError>,
+) -> Result<tempfile::NamedTempFile, ReportError> {
     let io = |source| ReportError::Io {
         path: folder.to_path_buf(),
         source,
@@ -139,7 +162,7 @@ fn stage(folder: &Path, bytes: &[u8]) -> Result<tempfile::NamedTempFile, ReportE
         .prefix(".sheetfit-")
         .tempfile_in(folder)
         .map_err(io)?;
-    file.write_all(bytes).map_err(io)?;
+    fill(file.as_file_mut())?;
     readable_by_others(file.as_file()).map_err(io)?;
     file.as_file().sync_all().map_err(io)?;
     Ok(file)

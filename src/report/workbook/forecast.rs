@@ -21,7 +21,7 @@ pub struct ChartBlock {
     pub last: u32,
 }
 
-fn date(iso: &str) -> Cell {
+fn date(iso: &str) -> Cell<'static> {
     NaiveDate::parse_from_str(iso, "%Y-%m-%d").map_or(Cell::Empty, Cell::Date)
 }
 
@@ -113,7 +113,7 @@ pub(super) fn backtest_sheets(
         for (method, a) in methods {
             summary.push(vec![
                 text(m.name.as_str()),
-                text(method.as_str()),
+                text(method.clone()),
                 num(a.points.len() as f64, Style::Count),
                 num(a.skipped as f64, Style::Count),
                 num(a.mae, Style::Value),
@@ -125,7 +125,7 @@ pub(super) fn backtest_sheets(
             for p in &a.points {
                 points.push(vec![
                     text(m.name.as_str()),
-                    text(method.as_str()),
+                    text(method.clone()),
                     text(p.period.as_str()),
                     num(f64::from(p.row), Style::Count),
                     num(p.actual, Style::Value),

@@ -5,6 +5,9 @@
 //! one model. Charts are built from the cell ranges recorded while the
 //! residual table is written, never from hand-typed coordinates.
 
+use std::borrow::Cow;
+use std::io::{Seek, Write};
+
 use chrono::Datelike;
 use rust_xlsxwriter::{
     Chart, ChartAxisLabelPosition, ChartFormat, ChartLine, ChartMarker, ChartMarkerType, ChartType,
@@ -29,13 +32,14 @@ const BACKTEST: &str = "Back-test";
 const BACKTEST_ROWS: &str = "Back-test rows";
 const CHART_DATA: &str = "Chart data";
 const NORMAL_PLOT: &str = "Normal plot";
+const CHART_POINTS: &str = "Chart points";
 const CHARTS: &str = "Charts";
 /// Sheets added when the job compares with last run.
 const CHANGES: &str = "Changes";
 const TRACKING: &str = "Forecast tracking";
 
 /// Sheet names, in the order they appear.
-pub const SHEETS: [&str; 13] = [
+pub const SHEETS: [&str; 14] = [
     OVERVIEW,
     COEFFICIENTS,
     ANOVA,
@@ -48,12 +52,14 @@ pub const SHEETS: [&str; 13] = [
     BACKTEST_ROWS,
     CHART_DATA,
     NORMAL_PLOT,
+    CHART_POINTS,
     CHARTS,
 ];
 
-/// One cell of a table row.
-enum Cell {
-    Text(String),
+/// One cell of a table row; text is borrowed from the results where it can
+/// be, so a long table does not copy a model name into every row.
+enum Cell<'a> {
+    Text(Cow<'a, str>),
     Number(f64, Style),
     /// A calendar date, written as a date cell.
     Date(chrono::NaiveDate),
@@ -73,18 +79,18 @@ enum Style {
     Count,
 }
 
-fn opt(x: Option<f64>, style: Style) -> Cell {
+fn opt(x: Option<f64>, style: Style) -> Cell<'static> {
     match x {
         Some(v) if v.is_finite() => Cell::Number(v, style),
         _ => Cell::Empty,
     }
 }
 
-fn num(x: f64, style: Style) -> Cell {
+fn num(x: f64, style: Style) -> Cell<'static> {
     opt(Some(x), style)
 }
 
-fn text(s: impl Into<String>) -> Cell {
+fn text<'a>(s: impl Into<Cow<'a, str>>) -> Cell<'a> {
     Cell::Text(s.into())
 }
 
@@ -98,6 +104,7 @@ struct Formats {
     title: Format,
     heading: Format,
     bold: Format,
+    header: Format,
     wrap: Format,
 }
 
@@ -113,17 +120,27 @@ impl Formats {
             title: Format::new().set_bold().set_font_size(16),
             heading: Format::new().set_bold().set_font_size(12),
             bold: Format::new().set_bold(),
+            header: Format::new()
+                .set_bold()
+                .set_border_bottom(rust_xlsxwriter::FormatBorder::Thin),
             wrap: Format::new().set_text_wrap().set_align(FormatAlign::Top),
+        }
+    }
+
+    /// The format most values of `style` are shown with.
+    fn usual(&self, style: Style) -> &Format {
+        match style {
+            Style::Value => &self.fixed,
+            Style::PValue => &self.p_value,
+            Style::Ratio => &self.ratio,
+            Style::Count => &self.count,
         }
     }
 
     fn for_number(&self, x: f64, style: Style) -> &Format {
         match style {
             Style::Value if x != 0.0 && !(1e-4..1e10).contains(&x.abs()) => &self.scientific,
-            Style::Value => &self.fixed,
-            Style::PValue => &self.p_value,
-            Style::Ratio => &self.ratio,
-            Style::Count => &self.count,
+            style => self.usual(style),
         }
     }
 }
@@ -156,13 +173,76 @@ fn write_table(
     headers: &[&str],
     rows: &[Vec<Cell>],
 ) -> Result<(), XlsxError> {
+    let layout = Layout::Table(name);
+    write_table_rows(sheet, formats, layout, top, headers, rows.len(), rows)?;
+    Ok(())
+}
+
+/// How [`write_table_rows`] marks out its rows.
+#[derive(Clone, Copy)]
+enum Layout<'a> {
+    /// A worksheet table with this name: banded rows and filter buttons.
+    Table(&'a str),
+    /// A bold header row with filter buttons, for a table too long for a
+    /// worksheet table (the writer indexes every cell of a table; at a
+    /// million rows that alone would take gigabytes). The caller gives the
+    /// range a defined name.
+    Filtered,
+}
+
+/// [`write_table`] for `count` rows produced one at a time, so a long
+/// table is never held whole; returns the last sheet row written.
+/// Everything is written top to bottom (the table and the note on the
+/// header row first), as a constant-memory worksheet requires; column
+/// widths, set last, follow the widest cell. Each numeric column takes the
+/// usual format of its first row's style as its column format, so only
+/// cells shown otherwise (scientific, for extreme values) carry a format
+/// of their own.
+fn write_table_rows<'a, R: AsRef<[Cell<'a>]>>(
+    sheet: &mut Worksheet,
+    formats: &Formats,
+    layout: Layout<'_>,
+    top: u32,
+    headers: &[&str],
+    count: usize,
+    rows: impl IntoIterator<Item = R>,
+) -> Result<u32, XlsxError> {
     let mut widths: Vec<usize> = headers.iter().map(|h| h.chars().count() + 4).collect();
     let room = (SHEET_ROWS - top - 1) as usize;
-    let (rows, cut) = if rows.len() > room {
-        (&rows[..room], rows.len() - room)
-    } else {
-        (rows, 0)
-    };
+    let (count, cut) = (count.min(room), count.saturating_sub(room));
+    let last_row = top + count.max(1) as u32;
+    let last_col = headers.len() as u16 - 1;
+    match layout {
+        Layout::Table(name) => {
+            let columns: Vec<TableColumn> = headers
+                .iter()
+                .map(|h| TableColumn::new().set_header(*h))
+                .collect();
+            let table = Table::new()
+                .set_name(name)
+                .set_style(TableStyle::Medium2)
+                .set_columns(&columns);
+            sheet.add_table(top, 0, last_row, last_col, &table)?;
+        }
+        Layout::Filtered => {
+            for (j, h) in headers.iter().enumerate() {
+                sheet.write_string_with_format(top, j as u16, *h, &formats.header)?;
+            }
+            sheet.autofilter(top, 0, last_row, last_col)?;
+        }
+    }
+    sheet.set_freeze_panes(top + 1, 0)?;
+    let mut rows = rows.into_iter().take(count).peekable();
+    let mut column_formats: Vec<Option<&Format>> = vec![None; headers.len()];
+    if let Some(first) = rows.peek() {
+        for (j, cell) in first.as_ref().iter().enumerate() {
+            if let Cell::Number(_, style) = cell {
+                let format = formats.usual(*style);
+                sheet.set_column_format(j as u16, format)?;
+                column_formats[j] = Some(format);
+            }
+        }
+    }
     if cut > 0 {
         sheet.write_string(
             top,
@@ -170,17 +250,23 @@ fn write_table(
             format!("{cut} more rows do not fit in a sheet (its limit is {SHEET_ROWS} rows); the results JSON has them all"),
         )?;
     }
-    for (i, row) in rows.iter().enumerate() {
+    for (i, row) in rows.enumerate() {
         let r = top + 1 + i as u32;
-        for (j, cell) in row.iter().enumerate() {
+        for (j, cell) in row.as_ref().iter().enumerate() {
             let c = j as u16;
             let width = match cell {
                 Cell::Text(s) => {
-                    sheet.write_string(r, c, s)?;
+                    sheet.write_string(r, c, s.as_ref())?;
                     s.chars().count()
                 }
                 Cell::Number(x, style) => {
-                    sheet.write_number_with_format(r, c, *x, formats.for_number(*x, *style))?;
+                    let format = formats.for_number(*x, *style);
+                    match column_formats[j] {
+                        Some(usual) if std::ptr::eq(usual, format) => {
+                            sheet.write_number(r, c, *x)?
+                        }
+                        _ => sheet.write_number_with_format(r, c, *x, format)?,
+                    };
                     12
                 }
                 Cell::Date(d) => {
@@ -197,28 +283,18 @@ fn write_table(
             widths[j] = widths[j].max(width + 2);
         }
     }
-    let columns: Vec<TableColumn> = headers
-        .iter()
-        .map(|h| TableColumn::new().set_header(*h))
-        .collect();
-    let table = Table::new()
-        .set_name(name)
-        .set_style(TableStyle::Medium2)
-        .set_columns(&columns);
-    let last_row = top + rows.len().max(1) as u32;
-    sheet.add_table(top, 0, last_row, headers.len() as u16 - 1, &table)?;
     for (j, w) in widths.iter().enumerate() {
         sheet.set_column_width(j as u16, (*w).min(60) as f64)?;
     }
-    sheet.set_freeze_panes(top + 1, 0)?;
-    Ok(())
+    Ok(last_row)
 }
 
-/// Lays `results` out as a workbook and returns its bytes.
+/// Lays `results` out as a workbook and writes it to `out`.
 ///
 /// # Errors
-/// Any [`XlsxError`] from the writer (a limit of the file format).
-pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
+/// Any [`XlsxError`] from the writer (a limit of the file format, or the
+/// write itself).
+pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Result<(), XlsxError> {
     let formats = Formats::new();
     let mut workbook = Workbook::new();
     // The run time, not the clock, so reruns with a fixed time are identical.
@@ -259,11 +335,8 @@ pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
         &formats,
         results,
     )?;
-    let spans = residuals(
-        workbook.add_worksheet().set_name(RESIDUALS)?,
-        &formats,
-        results,
-    )?;
+    // The one sheet that grows with the data is written row by row to disk.
+    residuals(&mut workbook, &formats, results)?;
     forecast::forecast_sheet(
         workbook.add_worksheet().set_name(FORECAST)?,
         &formats,
@@ -280,17 +353,22 @@ pub fn workbook_bytes(results: &Results) -> Result<Vec<u8>, XlsxError> {
         &formats,
         results,
     )?;
+    let points = chart_points(
+        workbook.add_worksheet().set_name(CHART_POINTS)?,
+        &formats,
+        results,
+    )?;
     charts(
         workbook.add_worksheet().set_name(CHARTS)?,
         results,
-        &spans,
+        &points,
         &history,
         &normal,
     )?;
     if let Some(changes) = &results.changes {
         changes_sheets(&mut workbook, &formats, changes)?;
     }
-    workbook.save_to_buffer()
+    workbook.save_to_writer(out)
 }
 
 /// Coefficient moves since last run, and how last run's forecasts did.
@@ -756,16 +834,12 @@ fn checks(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), X
     write_table(sheet, f, "Check_table", 0, &headers, &rows)
 }
 
-/// Column of the fitted, residual and actual values in the residual table.
-const FITTED_COL: u16 = 3;
-const ACTUAL_COL: u16 = 2;
-const RESIDUAL_COL: u16 = 4;
-
-fn residuals(
-    sheet: &mut Worksheet,
-    f: &Formats,
-    results: &Results,
-) -> Result<Vec<Span>, XlsxError> {
+/// The per-row table of every model, on as many sheets as it needs:
+/// `Residuals`, then `Residuals 2`, `Residuals 3`, ... once a sheet's
+/// 1,048,576 rows are full. The sheets are written row by row to disk
+/// (constant memory) and each range gets a defined name,
+/// `Residual_table`, `Residual_table_2`, ..., in place of a table's.
+fn residuals(workbook: &mut Workbook, f: &Formats, results: &Results) -> Result<(), XlsxError> {
     let headers = [
         "Model",
         "Sheet row",
@@ -780,12 +854,10 @@ fn residuals(
         "Flags",
         "Period",
     ];
-    let mut rows = Vec::new();
-    let mut spans = Vec::new();
-    for m in &results.models {
-        let first = 1 + rows.len() as u32;
-        for d in &m.residuals {
-            rows.push(vec![
+    let total: usize = results.models.iter().map(|m| m.residuals.len()).sum();
+    let mut rows = results.models.iter().flat_map(|m| {
+        m.residuals.iter().map(move |d| {
+            [
                 text(&m.name),
                 num(f64::from(d.row), Style::Count),
                 num(d.actual, Style::Value),
@@ -798,14 +870,111 @@ fn residuals(
                 opt(d.dffits, Style::Value),
                 text(d.flags.join(", ")),
                 d.period.as_deref().map_or(Cell::Empty, text),
+            ]
+        })
+    });
+    let per_sheet = (SHEET_ROWS - 1) as usize;
+    let sheets = total.div_ceil(per_sheet).max(1);
+    for k in 1..=sheets {
+        let (name, range_name) = if k == 1 {
+            (RESIDUALS.to_string(), "Residual_table".to_string())
+        } else {
+            (format!("{RESIDUALS} {k}"), format!("Residual_table_{k}"))
+        };
+        let count = (total - (k - 1) * per_sheet).min(per_sheet);
+        let sheet = workbook
+            .add_worksheet_with_constant_memory()?
+            .set_name(&name)?;
+        let last_row = write_table_rows(
+            sheet,
+            f,
+            Layout::Filtered,
+            0,
+            &headers,
+            count,
+            rows.by_ref(),
+        )?;
+        let range = rust_xlsxwriter::worksheet_range_absolute(
+            &name,
+            0,
+            0,
+            last_row,
+            headers.len() as u16 - 1,
+        );
+        workbook.define_name(&range_name, &format!("={range}"))?;
+    }
+    Ok(())
+}
+
+/// Points a scatter chart shows at most; the statistics use every row.
+const SCATTER_POINTS: usize = 2_000;
+
+/// Of those, the rows with the largest absolute residuals, always shown.
+const SCATTER_EXTREMES: usize = 100;
+
+/// The residual rows (indices, ascending) a model's scatter charts show:
+/// all of them up to [`SCATTER_POINTS`]; past that, rows evenly spaced in
+/// sheet order and the [`SCATTER_EXTREMES`] largest absolute residuals.
+fn scatter_rows(m: &ModelResults) -> Vec<usize> {
+    let n = m.residuals.len();
+    if n <= SCATTER_POINTS {
+        return (0..n).collect();
+    }
+    let spaced = SCATTER_POINTS - SCATTER_EXTREMES;
+    let mut by_size: Vec<usize> = (0..n).collect();
+    by_size.select_nth_unstable_by(SCATTER_EXTREMES, |&a, &b| {
+        m.residuals[b]
+            .residual
+            .abs()
+            .total_cmp(&m.residuals[a].residual.abs())
+    });
+    let mut rows: Vec<usize> = (0..spaced)
+        .map(|k| k * n / spaced)
+        .chain(by_size[..SCATTER_EXTREMES].iter().copied())
+        .collect();
+    rows.sort_unstable();
+    rows.dedup();
+    rows
+}
+
+/// Column of the fitted, residual and actual values in the chart points.
+const FITTED_COL: u16 = 3;
+const ACTUAL_COL: u16 = 2;
+const RESIDUAL_COL: u16 = 4;
+
+/// The points of the scatter charts: each model's [`scatter_rows`] with
+/// their fitted, actual and residual values; returns each model's rows and
+/// how many of its rows they show.
+fn chart_points(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<Vec<(Span, usize)>, XlsxError> {
+    let headers = ["Model", "Sheet row", "Actual", "Fitted", "Residual"];
+    let mut rows = Vec::new();
+    let mut spans = Vec::new();
+    for m in &results.models {
+        let first = 1 + rows.len() as u32;
+        let shown = scatter_rows(m);
+        for &i in &shown {
+            let d = &m.residuals[i];
+            rows.push(vec![
+                text(&m.name),
+                num(f64::from(d.row), Style::Count),
+                num(d.actual, Style::Value),
+                num(d.fitted, Style::Value),
+                num(d.residual, Style::Value),
             ]);
         }
-        spans.push(Span {
-            first: first.min(SHEET_ROWS - 1),
-            last: last_table_row(rows.len()),
-        });
+        spans.push((
+            Span {
+                first,
+                last: rows.len() as u32,
+            },
+            shown.len(),
+        ));
     }
-    write_table(sheet, f, "Residual_table", 0, &headers, &rows)?;
+    write_table(sheet, f, "Chart_point_table", 0, &headers, &rows)?;
     Ok(spans)
 }
 
@@ -861,9 +1030,19 @@ fn normal_chart(m: &ModelResults, span: Span) -> Chart {
         .set_values(range(1))
         .set_marker(ChartMarker::new().set_none())
         .set_format(ChartFormat::new().set_line(ChartLine::new().set_color("#ED7D31")));
+    let residuals = m
+        .residuals
+        .iter()
+        .filter(|d| d.standardized_residual.is_some())
+        .count();
+    let sample = if m.normal_plot.len() < residuals {
+        format!(" ({} of {residuals} residuals)", m.normal_plot.len())
+    } else {
+        String::new()
+    };
     chart
         .title()
-        .set_name(format!("{}: normal quantile plot of the residuals", m.name).as_str());
+        .set_name(format!("{}: normal quantile plot of the residuals{sample}", m.name).as_str());
     chart
         .x_axis()
         .set_name("Normal quantile")
@@ -877,34 +1056,32 @@ fn normal_chart(m: &ModelResults, span: Span) -> Chart {
 fn charts(
     sheet: &mut Worksheet,
     results: &Results,
-    spans: &[Span],
+    points: &[(Span, usize)],
     history: &[forecast::ChartBlock],
     normal: &[Span],
 ) -> Result<(), XlsxError> {
     // Printed (or converted to PDF) one page wide, in landscape.
     sheet.set_landscape().set_print_fit_to_pages(1, 0);
-    let residual_sheet = RESIDUALS;
-    for (k, (m, span)) in results.models.iter().zip(spans).enumerate() {
+    for (k, (m, &(span, shown))) in results.models.iter().zip(points).enumerate() {
         let top = k as u32 * 22;
-        let fitted = (
-            residual_sheet,
-            span.first,
-            FITTED_COL,
-            span.last,
-            FITTED_COL,
-        );
+        let fitted = (CHART_POINTS, span.first, FITTED_COL, span.last, FITTED_COL);
+        let sample = if shown < m.residuals.len() {
+            format!(" ({shown} of {} rows)", m.residuals.len())
+        } else {
+            String::new()
+        };
         let scatter = |title: String, x_name: String, y_name: String, values: u16| {
             let mut chart = Chart::new(ChartType::Scatter);
             chart
                 .add_series()
                 .set_categories(fitted)
-                .set_values((residual_sheet, span.first, values, span.last, values))
+                .set_values((CHART_POINTS, span.first, values, span.last, values))
                 .set_marker(
                     ChartMarker::new()
                         .set_type(ChartMarkerType::Circle)
                         .set_size(5),
                 );
-            chart.title().set_name(title.as_str());
+            chart.title().set_name(format!("{title}{sample}").as_str());
             // Labels at the foot of the plot, not on a zero line mid-chart.
             chart
                 .x_axis()
