@@ -173,7 +173,8 @@ fn generate(path: &Path, rows: usize) -> Result<(), Box<dyn Error>> {
 }
 
 /// The floor: stream every input cell into typed columns, then write
-/// `shape` (rows, columns per sheet) as number cells in constant memory.
+/// `shape` (rows, columns per sheet) as number cells in constant memory,
+/// each value with a full double's digits as the report's are.
 fn floor(input: &Path, output: &Path, shape: &[(u32, u16)]) -> Result<(), Box<dyn Error>> {
     let mut workbook = open_workbook_auto(input)?;
     let calamine::Sheets::Xlsx(ref mut xlsx) = workbook else {
@@ -199,7 +200,9 @@ fn floor(input: &Path, output: &Path, shape: &[(u32, u16)]) -> Result<(), Box<dy
         let sheet = report.add_worksheet_with_constant_memory()?;
         for row in 0..rows {
             for col in 0..cols {
-                sheet.write_number(row, col, f64::from(row) + f64::from(col))?;
+                // Values with as many digits as the report's statistics.
+                let value = (f64::from(row) * 0.618_033_988_749_895 + f64::from(col)).sin();
+                sheet.write_number(row, col, 1234.5 * value)?;
             }
         }
     }

@@ -63,6 +63,13 @@ pub struct Period {
     pub ordinal: i64,
 }
 
+/// A period is written as its label ("2024-03", "2024-Q1", ...).
+impl serde::Serialize for Period {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        serializer.collect_str(self)
+    }
+}
+
 impl Period {
     /// The period holding `date`.
     pub fn of_date(date: NaiveDate, frequency: Frequency) -> Self {

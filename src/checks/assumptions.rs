@@ -19,7 +19,9 @@
 use nalgebra::{DMatrix, DVector, SymmetricEigen};
 use statrs::distribution::{ChiSquared, ContinuousCDF, Normal};
 
-use crate::fit::{auxiliary_least_squares, f_sf, LeastSquares, ALIAS_TOLERANCE};
+use crate::fit::{
+    auxiliary_least_squares, auxiliary_least_squares_with, f_sf, LeastSquares, ALIAS_TOLERANCE,
+};
 
 /// Result of one test.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
@@ -94,15 +96,14 @@ pub fn durbin_watson(residuals: &[f64], x: &DMatrix<f64>) -> Option<TestResult> 
     }
     let num: f64 = residuals.windows(2).map(|w| (w[1] - w[0]).powi(2)).sum();
     let d = num / sse;
-    let p_value = match column_basis(x) {
-        Some(basis) if n >= 3 && basis.ncols() < n => {
-            if n < DW_EXACT_BELOW {
-                dw_exact_lower_tail(d, &basis)
-            } else {
-                dw_normal_lower_tail(d, &basis)
-            }
-        }
-        _ => None,
+    let p_value = if n < 3 {
+        None
+    } else if n < DW_EXACT_BELOW {
+        column_basis(x)
+            .filter(|basis| basis.ncols() < n)
+            .and_then(|basis| dw_exact_lower_tail(d, &basis))
+    } else {
+        dw_traces(x).and_then(|traces| dw_normal_lower_tail(d, n, traces))
     };
     result(d, None, None, p_value)
 }
@@ -142,25 +143,99 @@ fn dw_exact_lower_tail(d: f64, basis: &DMatrix<f64>) -> Option<f64> {
 
 /// P(D ≤ d) from the normal approximation with the exact moments (see
 /// [`durbin_watson`]).
-fn dw_normal_lower_tail(d: f64, basis: &DMatrix<f64>) -> Option<f64> {
-    let n = basis.nrows();
-    let p = basis.ncols();
-    let nf = n as f64;
-    let r = (n - p) as f64;
-    let aq = first_difference_times(basis);
-    // QᵀAQ, symmetric p × p.
-    let qaq = basis.transpose() * &aq;
-    let trace_qaq = qaq.trace();
-    let trace_p = 2.0 * (nf - 1.0) - trace_qaq;
-    // tr((MA)²) = tr(A²) − 2 tr(QᵀA²Q) + tr((QᵀAQ)²), tr(A²) = 2(3n − 4).
-    let trace_q = 2.0 * (3.0 * nf - 4.0) - 2.0 * aq.norm_squared() + qaq.norm_squared();
-    let mean = trace_p / r;
-    let variance = 2.0 * (trace_q - trace_p * mean) / (r * (r + 2.0));
+fn dw_normal_lower_tail(d: f64, n: usize, traces: DwTraces) -> Option<f64> {
+    let r = (n - traces.rank) as f64;
+    let mean = traces.ma / r;
+    let variance = 2.0 * (traces.ma_squared - traces.ma * mean) / (r * (r + 2.0));
     if !is_positive(variance) || !mean.is_finite() {
         return None;
     }
     let normal = Normal::new(mean, variance.sqrt()).ok()?;
     Some(normal.cdf(d))
+}
+
+/// The traces behind the moments of the Durbin-Watson statistic, with M
+/// the residual maker of the estimable columns and A the first-difference
+/// matrix.
+#[derive(Debug, Clone, Copy)]
+struct DwTraces {
+    /// Estimable columns p.
+    rank: usize,
+    /// tr(MA) = tr A − tr(QᵀAQ), tr A = 2(n − 1).
+    ma: f64,
+    /// tr((MA)²) = tr A² − 2‖AQ‖² + ‖QᵀAQ‖², tr A² = 2(3n − 4).
+    ma_squared: f64,
+}
+
+/// [`DwTraces`] of the estimable columns of `x`, in O(np²) and without an
+/// n-row copy: with W the kept columns scaled to unit length and W = QR,
+/// QᵀAQ = R⁻ᵀ(W'AW)R⁻¹ and ‖AQ‖² = tr(R⁻ᵀ(AW)'(AW)R⁻¹), where
+/// W'AW = Σ (wₜ₊₁ − wₜ)(wₜ₊₁ − wₜ)' (A = D'D, D the first differences)
+/// and (AW)'(AW) are p × p sums over the rows, taken in blocks. `None`
+/// with no residual degrees of freedom or columns that cannot be scaled.
+fn dw_traces(x: &DMatrix<f64>) -> Option<DwTraces> {
+    const BLOCK: usize = 4096;
+    let n = x.nrows();
+    let ls = auxiliary_least_squares(x, &DVector::zeros(n));
+    let p = ls.kept.len();
+    if p >= n {
+        return None;
+    }
+    let nf = n as f64;
+    if p == 0 {
+        return Some(DwTraces {
+            rank: 0,
+            ma: 2.0 * (nf - 1.0),
+            ma_squared: 2.0 * (3.0 * nf - 4.0),
+        });
+    }
+    let scale: Vec<f64> = ls.kept.iter().map(|&j| x.column(j).norm()).collect();
+    if scale.iter().any(|s| !(*s > 0.0 && s.is_finite())) {
+        return None;
+    }
+    let inverse: Vec<f64> = scale.iter().map(|s| 1.0 / s).collect();
+    let row = |t: usize, k: usize| x[(t, ls.kept[k])] * inverse[k];
+    let mut differences = DMatrix::<f64>::zeros(p, p);
+    let mut stencils = DMatrix::<f64>::zeros(p, p);
+    for start in (0..n).step_by(BLOCK) {
+        let end = (start + BLOCK).min(n);
+        let d = DMatrix::from_fn(end - start, p, |i, k| {
+            let t = start + i;
+            if t + 1 < n {
+                row(t + 1, k) - row(t, k)
+            } else {
+                0.0
+            }
+        });
+        let a = DMatrix::from_fn(end - start, p, |i, k| {
+            let t = start + i;
+            let mut v = 0.0;
+            let mut diagonal = 0.0;
+            if t > 0 {
+                v -= row(t - 1, k);
+                diagonal += 1.0;
+            }
+            if t + 1 < n {
+                v -= row(t + 1, k);
+                diagonal += 1.0;
+            }
+            v + diagonal * row(t, k)
+        });
+        differences += d.tr_mul(&d);
+        stencils += a.tr_mul(&a);
+    }
+    let r_inverse = ls.r.solve_upper_triangular(&DMatrix::identity(p, p))?;
+    let qaq = r_inverse.tr_mul(&differences) * &r_inverse;
+    let aq_squared = (r_inverse.tr_mul(&stencils) * &r_inverse).trace();
+    let (ma, ma_squared) = (
+        2.0 * (nf - 1.0) - qaq.trace(),
+        2.0 * (3.0 * nf - 4.0) - 2.0 * aq_squared + qaq.norm_squared(),
+    );
+    (ma.is_finite() && ma_squared.is_finite()).then_some(DwTraces {
+        rank: p,
+        ma,
+        ma_squared,
+    })
 }
 
 /// A·B for the n × n first-difference matrix A (diagonal 1, 2, …, 2, 1,
@@ -383,15 +458,15 @@ pub fn breusch_godfrey(residuals: &[f64], x: &DMatrix<f64>, order: usize) -> Opt
         return None;
     }
     let p = x.ncols();
-    let mut aux = DMatrix::zeros(n, p + order);
-    aux.columns_mut(0, p).copy_from(x);
-    for lag in 1..=order {
-        for t in lag..n {
-            aux[(t, p + lag - 1)] = residuals[t - lag];
-        }
-    }
+    let lags: Vec<Vec<f64>> = (1..=order)
+        .map(|lag| {
+            let mut column = vec![0.0; n];
+            column[lag.min(n)..].copy_from_slice(&residuals[..n.saturating_sub(lag)]);
+            column
+        })
+        .collect();
     let e = DVector::from_column_slice(residuals);
-    let ls = auxiliary_least_squares(&aux, &e);
+    let ls = auxiliary_least_squares_with(x, &lags, &e);
     let df = ls.kept.iter().filter(|&&j| j >= p).count();
     if df == 0 || ls.kept.len() >= n {
         return None;
@@ -665,13 +740,11 @@ pub fn reset(y: &[f64], x: &DMatrix<f64>, fitted: &[f64]) -> Option<TestResult> 
         return None;
     }
     let p = x.ncols();
-    let mut aug = DMatrix::zeros(n, p + 2);
-    aug.columns_mut(0, p).copy_from(x);
-    for (i, &f) in fitted.iter().enumerate() {
-        aug[(i, p)] = f * f;
-        aug[(i, p + 1)] = f * f * f;
-    }
-    let ls = auxiliary_least_squares(&aug, &DVector::from_column_slice(y));
+    let powers = [
+        fitted.iter().map(|f| f * f).collect(),
+        fitted.iter().map(|f| f * f * f).collect(),
+    ];
+    let ls = auxiliary_least_squares_with(x, &powers, &DVector::from_column_slice(y));
     let added: f64 = ls
         .kept
         .iter()
@@ -823,15 +896,17 @@ mod tests {
         let basis = column_basis(&x).unwrap();
         let lambda = dw_eigenvalues(&basis).unwrap();
         assert_eq!(lambda.len(), 37);
-        let aq = first_difference_times(&basis);
-        let trace = 2.0 * 39.0 - (basis.transpose() * &aq).trace();
+        let traces = dw_traces(&x).unwrap();
+        assert_eq!(traces.rank, 3);
         let sum: f64 = lambda.iter().sum();
-        assert!((sum - trace).abs() < 1e-10, "{sum} vs {trace}");
+        assert!((sum - traces.ma).abs() < 1e-10, "{sum} vs {}", traces.ma);
         // And their squares sum to tr((MA)²).
-        let qaq = basis.transpose() * &aq;
-        let trace2 = 2.0 * (3.0 * 40.0 - 4.0) - 2.0 * aq.norm_squared() + qaq.norm_squared();
         let sum2: f64 = lambda.iter().map(|l| l * l).sum();
-        assert!((sum2 - trace2).abs() < 1e-9, "{sum2} vs {trace2}");
+        assert!(
+            (sum2 - traces.ma_squared).abs() < 1e-9,
+            "{sum2} vs {}",
+            traces.ma_squared
+        );
     }
 
     #[test]

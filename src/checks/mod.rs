@@ -323,8 +323,8 @@ pub fn collinearity_checks(terms: &[collinearity::TermCollinearity]) -> Vec<Chec
 pub struct RowDiagnostics {
     /// Sheet row of the observation, counted from 1.
     pub row: u32,
-    /// Period label, when the model has a date column.
-    pub period: Option<String>,
+    /// The period, written as its label, when the model has a date column.
+    pub period: Option<crate::period::Period>,
     /// Trend index of the period.
     pub index: Option<i64>,
     /// Observed response.
@@ -403,7 +403,7 @@ pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
             }
             RowDiagnostics {
                 row,
-                period: period.map(|p| p.to_string()),
+                period,
                 index: period.zip(design.timing.as_ref()).map(|(p, t)| t.index(p)),
                 actual: design.y[i],
                 fitted: fit.fitted[i],

@@ -17,7 +17,7 @@ use nalgebra::{DMatrix, DVector};
 use statrs::distribution::{Continuous, ContinuousCDF, FisherSnedecor, Normal, StudentsT};
 
 use self::ddouble::DoubleDouble;
-use self::qr::Leverage;
+use self::qr::{Columns, Leverage};
 use self::robust::{robust_covariance, Robust};
 use crate::design::Design;
 
@@ -103,10 +103,10 @@ pub fn least_squares(
     x_lo: Option<&DMatrix<f64>>,
     y: &DVector<f64>,
 ) -> LeastSquares {
-    let double = qr::solve::<f64>(x, None, y, Leverage::Wanted);
+    let double = qr::solve::<f64>(Columns::of(x), None, y, Leverage::Wanted);
     let kappa = qr::condition_number(&double.r);
     if kappa > EXTENDED_ABOVE {
-        let extended = qr::solve::<DoubleDouble>(x, x_lo, y, Leverage::Wanted);
+        let extended = qr::solve::<DoubleDouble>(Columns::of(x), x_lo, y, Leverage::Wanted);
         LeastSquares::from_solved(extended, Precision::DoubleDouble)
     } else {
         LeastSquares::from_solved(double, Precision::Double)
@@ -119,7 +119,17 @@ pub fn least_squares(
 /// statistic needs far fewer digits than a reported coefficient, and these
 /// regressions run on every row of every model.
 pub fn auxiliary_least_squares(x: &DMatrix<f64>, y: &DVector<f64>) -> LeastSquares {
-    let solved = qr::solve::<f64>(x, None, y, Leverage::Skipped);
+    auxiliary_least_squares_with(x, &[], y)
+}
+
+/// [`auxiliary_least_squares`] on the columns of `x` followed by `extra`,
+/// without copying them into one matrix.
+pub fn auxiliary_least_squares_with(
+    x: &DMatrix<f64>,
+    extra: &[Vec<f64>],
+    y: &DVector<f64>,
+) -> LeastSquares {
+    let solved = qr::solve::<f64>(Columns::with_extra(x, extra), None, y, Leverage::Skipped);
     LeastSquares::from_solved(solved, Precision::Double)
 }
 
@@ -159,12 +169,9 @@ impl LeastSquares {
         let rise = if keep.is_empty() {
             effects.norm_squared()
         } else {
-            let reduced = qr::solve::<f64>(
-                &self.r.select_columns(&keep),
-                None,
-                &effects,
-                Leverage::Skipped,
-            );
+            let reduced_r = self.r.select_columns(&keep);
+            let reduced =
+                qr::solve::<f64>(Columns::of(&reduced_r), None, &effects, Leverage::Skipped);
             if reduced.kept.len() < keep.len() {
                 return None;
             }

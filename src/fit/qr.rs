@@ -105,43 +105,87 @@ pub enum Leverage {
     Skipped,
 }
 
-/// Solves least squares for the columns `cols` (each `hi + lo`, `lo` empty
-/// when the column is exact in double precision) and response `y`, in the
-/// arithmetic `T`.
+/// The columns of a design as `f64` slices: a matrix's own, optionally
+/// followed by extra columns (an auxiliary regression's lags or powers), so
+/// that no n-row matrix has to be copied to add them.
+#[derive(Clone, Copy)]
+pub struct Columns<'a> {
+    base: &'a DMatrix<f64>,
+    extra: &'a [Vec<f64>],
+}
+
+impl<'a> Columns<'a> {
+    /// The columns of `base`.
+    pub fn of(base: &'a DMatrix<f64>) -> Self {
+        Columns { base, extra: &[] }
+    }
+
+    /// The columns of `base`, then `extra` (each as long as `base` is tall).
+    pub fn with_extra(base: &'a DMatrix<f64>, extra: &'a [Vec<f64>]) -> Self {
+        Columns { base, extra }
+    }
+
+    fn rows(&self) -> usize {
+        self.base.nrows()
+    }
+
+    fn count(&self) -> usize {
+        self.base.ncols() + self.extra.len()
+    }
+
+    fn column(&self, j: usize) -> &'a [f64] {
+        let own = self.base.ncols();
+        if j < own {
+            &self.base.as_slice()[j * self.base.nrows()..(j + 1) * self.base.nrows()]
+        } else {
+            &self.extra[j - own]
+        }
+    }
+}
+
+/// Solves least squares for the columns `hi` (each `hi + lo`, `lo` empty
+/// when the column is exact in double precision; `lo` covers the base
+/// matrix's columns only) and response `y`, in the arithmetic `T`. The
+/// columns are read where they lie, never copied whole.
 pub fn solve<T: Real>(
-    hi: &DMatrix<f64>,
+    hi: Columns<'_>,
     lo: Option<&DMatrix<f64>>,
     y: &DVector<f64>,
     leverage: Leverage,
 ) -> Solved {
     let want_leverage = leverage == Leverage::Wanted;
-    let (n, p) = hi.shape();
+    let (n, p) = (hi.rows(), hi.count());
     let zero = T::of(0.0);
-    let original: Vec<Vec<T>> = (0..p)
-        .map(|j| match lo {
-            None => hi.column(j).iter().map(|&v| T::of(v)).collect(),
-            Some(lo) => hi
-                .column(j)
-                .iter()
-                .zip(lo.column(j).iter())
-                .map(|(&h, &l)| T::of(h) + T::of(l))
-                .collect(),
-        })
-        .collect();
-    let scale: Vec<T> = original.iter().map(|c| norm(c)).collect();
+    let low = |j: usize| lo.filter(|l| j < l.ncols()).map(|l| l.column(j));
+    // Column j of X in the working precision, value by value.
+    let column = |j: usize| {
+        let low = low(j);
+        hi.column(j)
+            .iter()
+            .enumerate()
+            .map(move |(i, &h)| match low {
+                None => T::of(h),
+                Some(l) => T::of(h) + T::of(l[i]),
+            })
+    };
+    let value = |i: usize, j: usize| match low(j) {
+        None => T::of(hi.column(j)[i]),
+        Some(l) => T::of(hi.column(j)[i]) + T::of(l[i]),
+    };
+    let scale: Vec<T> = (0..p).map(|j| norm_of(column(j))).collect();
 
     let mut kept = Vec::with_capacity(p);
     let mut aliased = Vec::new();
     let mut reflectors: Vec<(Vec<T>, T)> = Vec::with_capacity(p.min(n));
     let mut r_cols: Vec<Vec<T>> = Vec::with_capacity(p);
-    for (j, column) in original.iter().enumerate() {
+    for j in 0..p {
         let k = kept.len();
         if scale[j] == zero || k >= n {
             aliased.push(j);
             continue;
         }
         let inverse = T::of(1.0) / scale[j];
-        let mut col: Vec<T> = column.iter().map(|&v| v * inverse).collect();
+        let mut col: Vec<T> = column(j).map(|v| v * inverse).collect();
         for (i, (v, tau)) in reflectors.iter().enumerate() {
             reflect(v, *tau, &mut col[i..]);
         }
@@ -198,7 +242,7 @@ pub fn solve<T: Real>(
         let mut sum = zero;
         for c in 0..rank {
             let r_col = &r_cols[c];
-            let mut v = original[kept[c]][i] * inverse_scale[c];
+            let mut v = value(i, kept[c]) * inverse_scale[c];
             for (&zm, &rm) in z[..c].iter().zip(r_col) {
                 v = v - zm * rm;
             }
@@ -210,7 +254,7 @@ pub fn solve<T: Real>(
 
     let mut residuals: Vec<T> = y.iter().map(|&v| T::of(v)).collect();
     for (&j, &b) in kept.iter().zip(&beta) {
-        for (res, &x) in residuals.iter_mut().zip(&original[j]) {
+        for (res, x) in residuals.iter_mut().zip(column(j)) {
             *res = *res - x * b;
         }
     }
@@ -229,9 +273,14 @@ pub fn solve<T: Real>(
 /// Euclidean norm, scaled by the largest entry so that neither tiny nor
 /// huge values overflow or underflow.
 fn norm<T: Real>(x: &[T]) -> T {
+    norm_of(x.iter().copied())
+}
+
+/// [`norm`] of values read twice from an iterator.
+fn norm_of<T: Real>(x: impl Iterator<Item = T> + Clone) -> T {
     let zero = T::of(0.0);
     let big = x
-        .iter()
+        .clone()
         .fold(zero, |m, v| if v.abs() > m { v.abs() } else { m });
     if big == zero {
         return zero;
@@ -240,12 +289,12 @@ fn norm<T: Real>(x: &[T]) -> T {
     // double-double; near underflow, where 1/big overflows, divide.
     let inverse = T::of(1.0) / big;
     let sum = if inverse.value().is_finite() {
-        x.iter().fold(zero, |s, &v| {
+        x.fold(zero, |s, v| {
             let u = v * inverse;
             s + u * u
         })
     } else {
-        x.iter().fold(zero, |s, &v| {
+        x.fold(zero, |s, v| {
             let u = v / big;
             s + u * u
         })
@@ -330,8 +379,8 @@ mod tests {
         let x = DMatrix::from_row_slice(4, 2, &[1.0, 0.0, 1.0, 1.0, 1.0, 2.0, 1.0, 4.0]);
         let y = DVector::from_vec(vec![2.0, 5.0, 8.0, 14.0]);
         for s in [
-            solve::<f64>(&x, None, &y, Leverage::Wanted),
-            solve::<DoubleDouble>(&x, None, &y, Leverage::Wanted),
+            solve::<f64>(Columns::of(&x), None, &y, Leverage::Wanted),
+            solve::<DoubleDouble>(Columns::of(&x), None, &y, Leverage::Wanted),
         ] {
             assert!((s.beta[0] - 2.0).abs() < 1e-14);
             assert!((s.beta[1] - 3.0).abs() < 1e-14);
@@ -347,9 +396,9 @@ mod tests {
         let hi = DMatrix::from_row_slice(3, 2, &[1.0, 0.0, 1.0, 1.0, 1.0, 2.0]);
         let lo = DMatrix::from_row_slice(3, 2, &[0.0, 0.0, 0.0, 0.0, 0.0, 2f64.powi(-50)]);
         let y = DVector::from_vec(vec![0.0, 1.0, 2.0]);
-        let exact = solve::<DoubleDouble>(&hi, None, &y, Leverage::Wanted);
+        let exact = solve::<DoubleDouble>(Columns::of(&hi), None, &y, Leverage::Wanted);
         assert_eq!(exact.beta[1], 1.0);
-        let shifted = solve::<DoubleDouble>(&hi, Some(&lo), &y, Leverage::Wanted);
+        let shifted = solve::<DoubleDouble>(Columns::of(&hi), Some(&lo), &y, Leverage::Wanted);
         assert!(shifted.beta[1] < 1.0, "{}", shifted.beta[1]);
         assert!(shifted.residuals.amax() > 0.0);
     }

@@ -869,7 +869,7 @@ fn residuals(workbook: &mut Workbook, f: &Formats, results: &Results) -> Result<
                 opt(d.studentized_residual, Style::Value),
                 opt(d.dffits, Style::Value),
                 text(d.flags.join(", ")),
-                d.period.as_deref().map_or(Cell::Empty, text),
+                d.period.map_or(Cell::Empty, |p| text(p.to_string())),
             ]
         })
     });
