@@ -178,13 +178,13 @@ pub fn solve<T: Real>(
     let mut aliased = Vec::new();
     let mut reflectors: Vec<(Vec<T>, T)> = Vec::with_capacity(p.min(n));
     let mut r_cols: Vec<Vec<T>> = Vec::with_capacity(p);
-    for j in 0..p {
+    for (j, &length) in scale.iter().enumerate() {
         let k = kept.len();
-        if scale[j] == zero || k >= n {
+        if length == zero || k >= n {
             aliased.push(j);
             continue;
         }
-        let inverse = T::of(1.0) / scale[j];
+        let inverse = T::of(1.0) / length;
         let mut col: Vec<T> = column(j).map(|v| v * inverse).collect();
         for (i, (v, tau)) in reflectors.iter().enumerate() {
             reflect(v, *tau, &mut col[i..]);
