@@ -166,7 +166,7 @@ pub fn forecast(
                 .map(|(column, v)| {
                     let value = match v {
                         HoldValue::Number(x) => Value::Number(*x),
-                        HoldValue::Level(l) => Value::Text(l.clone()),
+                        HoldValue::Level(l) => Value::Text(l.as_str().into()),
                     };
                     (column.clone(), value)
                 })

@@ -7,6 +7,7 @@
 
 use std::fmt;
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 
 mod guard;
 
@@ -115,14 +116,15 @@ pub enum Value {
     Blank,
     /// A number.
     Number(f64),
-    /// Text, trimmed of surrounding spaces.
-    Text(String),
+    /// Text, trimmed of surrounding spaces. Equal texts of a column share
+    /// one allocation.
+    Text(Arc<str>),
     /// TRUE or FALSE.
     Bool(bool),
-    /// A date or time, as ISO 8601 text.
-    Date(String),
+    /// A date or time, as ISO 8601 text, shared like text.
+    Date(Arc<str>),
     /// An error value such as `#DIV/0!`.
-    Error(String),
+    Error(Arc<str>),
 }
 
 impl Value {
@@ -321,17 +323,20 @@ fn value_from_ref(cell: &DataRef<'_>) -> Value {
         DataRef::SharedString(s) => text_value(s),
         DataRef::Bool(b) => Value::Bool(*b),
         DataRef::DateTime(dt) => date_value(dt),
-        DataRef::DateTimeIso(s) | DataRef::DurationIso(s) => Value::Date(s.clone()),
-        DataRef::Error(e) => Value::Error(e.to_string()),
+        DataRef::DateTimeIso(s) | DataRef::DurationIso(s) => Value::Date(s.as_str().into()),
+        DataRef::Error(e) => Value::Error(e.to_string().into()),
     }
 }
 
 fn date_value(dt: &calamine::ExcelDateTime) -> Value {
-    Value::Date(match dt.as_datetime() {
-        Some(d) if d.time() == chrono::NaiveTime::MIN => d.date().to_string(),
-        Some(d) => d.to_string(),
-        None => dt.as_f64().to_string(),
-    })
+    Value::Date(
+        match dt.as_datetime() {
+            Some(d) if d.time() == chrono::NaiveTime::MIN => d.date().to_string(),
+            Some(d) => d.to_string(),
+            None => dt.as_f64().to_string(),
+        }
+        .into(),
+    )
 }
 
 fn value_from_cell(cell: &Data) -> Value {
@@ -342,8 +347,8 @@ fn value_from_cell(cell: &Data) -> Value {
         Data::String(s) => text_value(s),
         Data::Bool(b) => Value::Bool(*b),
         Data::DateTime(dt) => date_value(dt),
-        Data::DateTimeIso(s) | Data::DurationIso(s) => Value::Date(s.clone()),
-        Data::Error(e) => Value::Error(e.to_string()),
+        Data::DateTimeIso(s) | Data::DurationIso(s) => Value::Date(s.as_str().into()),
+        Data::Error(e) => Value::Error(e.to_string().into()),
     }
 }
 
@@ -357,9 +362,9 @@ fn text_value(s: &str) -> Value {
         t,
         "#DIV/0!" | "#N/A" | "#NAME?" | "#NULL!" | "#NUM!" | "#REF!" | "#VALUE!"
     ) {
-        Value::Error(t.to_string())
+        Value::Error(t.into())
     } else {
-        Value::Text(t.to_string())
+        Value::Text(t.into())
     }
 }
 
@@ -404,6 +409,9 @@ struct Builder {
     by_col: std::collections::HashMap<u32, usize>,
     header_done: bool,
     rows: Vec<u32>,
+    /// Every distinct text met so far, so repeated texts (a category, a
+    /// month) are stored once however many rows hold them.
+    texts: std::collections::HashSet<Arc<str>>,
 }
 
 impl Builder {
@@ -416,6 +424,24 @@ impl Builder {
             by_col: std::collections::HashMap::new(),
             header_done: false,
             rows: Vec::new(),
+            texts: std::collections::HashSet::new(),
+        }
+    }
+
+    /// `value` with its text replaced by the shared copy of an equal text.
+    fn shared(&mut self, value: Value) -> Value {
+        let mut share = |text: Arc<str>| match self.texts.get(&text) {
+            Some(known) => Arc::clone(known),
+            None => {
+                self.texts.insert(Arc::clone(&text));
+                text
+            }
+        };
+        match value {
+            Value::Text(t) => Value::Text(share(t)),
+            Value::Date(t) => Value::Date(share(t)),
+            Value::Error(t) => Value::Error(share(t)),
+            other => other,
         }
     }
 
@@ -443,7 +469,7 @@ impl Builder {
                 c.values.push(Value::Blank);
             }
         }
-        self.columns[j].values[index] = value;
+        self.columns[j].values[index] = self.shared(value);
         Ok(())
     }
 
