@@ -82,6 +82,7 @@ pub struct InputFile {
     /// Sheet name; the first sheet when absent.
     pub sheet: Option<String>,
     /// Row holding the column names, counted from 1; default 1.
+    #[serde(default, deserialize_with = "row_number")]
     pub header_row: Option<u32>,
     /// Raise the pre-scan's limit on the cells a sheet may declare.
     pub max_cells: Option<u64>,
@@ -113,7 +114,7 @@ pub struct ModelFile {
     /// The response column.
     pub response: String,
     /// Numeric predictor columns, each entering as one term.
-    #[serde(default)]
+    #[serde(default, deserialize_with = "column_names")]
     pub numeric: Vec<String>,
     /// Polynomial predictors, as a table `column = degree`: the column and
     /// its powers up to the degree, each with a coefficient, tested as one
@@ -179,6 +180,33 @@ pub struct ForecastFile {
     /// With `horizon`: the value of each predictor in the forecast rows.
     #[serde(default)]
     pub hold: IndexMap<String, toml::Value>,
+}
+
+/// `numeric = [...]`: a list of column names; any other shape is refused
+/// with a message saying what to write.
+fn column_names<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Vec<String>, D::Error> {
+    #[derive(Deserialize)]
+    #[serde(untagged, expecting = "a list of column names, such as [\"price\"]")]
+    enum Names {
+        List(Vec<String>),
+    }
+    let Names::List(names) = Names::deserialize(d)?;
+    Ok(names)
+}
+
+/// `header_row = 1`: a whole number; text or a fraction is refused with a
+/// message saying what to write.
+fn row_number<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u32>, D::Error> {
+    #[derive(Deserialize)]
+    #[serde(
+        untagged,
+        expecting = "the number of the row holding the column names, counted from 1, written as a whole number such as 1 (without quotes)"
+    )]
+    enum Row {
+        Number(u32),
+    }
+    let Row::Number(row) = Row::deserialize(d)?;
+    Ok(Some(row))
 }
 
 /// The two spellings of `categorical`.
