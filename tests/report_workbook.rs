@@ -446,3 +446,44 @@ fn workbook_holds_two_chart_parts_per_model() {
         .count();
     assert_eq!(raw, 2 * charts);
 }
+
+#[test]
+fn chart_points_of_a_small_model_are_all_its_rows() {
+    let report = run_report();
+    let sheet = report.sheet("Chart points");
+    assert_eq!(
+        header(&sheet),
+        ["Model", "Sheet row", "Actual", "Fitted", "Residual"]
+    );
+    let mut row = 1;
+    for model in report.models() {
+        let name = model["name"].as_str().unwrap();
+        for r in model["residuals"].as_array().unwrap() {
+            assert_eq!(text_at(&sheet, row, 0), name);
+            for (col, key) in [(1, "row"), (2, "actual"), (3, "fitted"), (4, "residual")] {
+                assert_number(&sheet, row, col, &r[key], &format!("{name} {key}"));
+            }
+            row += 1;
+        }
+    }
+    assert_eq!(sheet.height() as u32, row, "no rows beyond the residuals");
+}
+
+#[test]
+fn residual_range_has_a_defined_name() {
+    let report = run_report();
+    let rows: usize = report
+        .models()
+        .iter()
+        .map(|m| m["residuals"].as_array().unwrap().len())
+        .sum();
+    let file = std::fs::File::open(&report.workbook).unwrap();
+    let mut zip = zip::ZipArchive::new(file).expect("the report is a zip");
+    let mut xml = String::new();
+    std::io::Read::read_to_string(&mut zip.by_name("xl/workbook.xml").unwrap(), &mut xml).unwrap();
+    let expected = format!(
+        "<definedName name=\"Residual_table\">Residuals!$A$1:$L${}</definedName>",
+        rows + 1
+    );
+    assert!(xml.contains(&expected), "{expected} not in {xml}");
+}

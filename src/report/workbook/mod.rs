@@ -15,6 +15,7 @@ use rust_xlsxwriter::{
     Worksheet, XlsxError,
 };
 
+use crate::checks::RowDiagnostics;
 use crate::results::{row_ranges, ModelResults, Results};
 
 mod forecast;
@@ -873,15 +874,12 @@ fn residuals(workbook: &mut Workbook, f: &Formats, results: &Results) -> Result<
             ]
         })
     });
-    let per_sheet = (SHEET_ROWS - 1) as usize;
-    let sheets = total.div_ceil(per_sheet).max(1);
-    for k in 1..=sheets {
-        let (name, range_name) = if k == 1 {
-            (RESIDUALS.to_string(), "Residual_table".to_string())
-        } else {
-            (format!("{RESIDUALS} {k}"), format!("Residual_table_{k}"))
-        };
-        let count = (total - (k - 1) * per_sheet).min(per_sheet);
+    for ResidualSheet {
+        name,
+        range_name,
+        count,
+    } in residual_sheets(total, (SHEET_ROWS - 1) as usize)
+    {
         let sheet = workbook
             .add_worksheet_with_constant_memory()?
             .set_name(&name)?;
@@ -906,6 +904,35 @@ fn residuals(workbook: &mut Workbook, f: &Formats, results: &Results) -> Result<
     Ok(())
 }
 
+/// One sheet of the residual table.
+#[derive(Debug, PartialEq)]
+struct ResidualSheet {
+    name: String,
+    range_name: String,
+    /// Data rows on it.
+    count: usize,
+}
+
+/// The sheets `total` residual rows fill at `per_sheet` rows a sheet: at
+/// least one, the first named `Residuals`, the next `Residuals 2`, ...
+fn residual_sheets(total: usize, per_sheet: usize) -> Vec<ResidualSheet> {
+    (1..=total.div_ceil(per_sheet).max(1))
+        .map(|k| ResidualSheet {
+            name: if k == 1 {
+                RESIDUALS.to_string()
+            } else {
+                format!("{RESIDUALS} {k}")
+            },
+            range_name: if k == 1 {
+                "Residual_table".to_string()
+            } else {
+                format!("Residual_table_{k}")
+            },
+            count: (total - (k - 1) * per_sheet).min(per_sheet),
+        })
+        .collect()
+}
+
 /// Points a scatter chart shows at most; the statistics use every row.
 const SCATTER_POINTS: usize = 2_000;
 
@@ -915,18 +942,18 @@ const SCATTER_EXTREMES: usize = 100;
 /// The residual rows (indices, ascending) a model's scatter charts show:
 /// all of them up to [`SCATTER_POINTS`]; past that, rows evenly spaced in
 /// sheet order and the [`SCATTER_EXTREMES`] largest absolute residuals.
-fn scatter_rows(m: &ModelResults) -> Vec<usize> {
-    let n = m.residuals.len();
+fn scatter_rows(residuals: &[RowDiagnostics]) -> Vec<usize> {
+    let n = residuals.len();
     if n <= SCATTER_POINTS {
         return (0..n).collect();
     }
     let spaced = SCATTER_POINTS - SCATTER_EXTREMES;
     let mut by_size: Vec<usize> = (0..n).collect();
     by_size.select_nth_unstable_by(SCATTER_EXTREMES, |&a, &b| {
-        m.residuals[b]
+        residuals[b]
             .residual
             .abs()
-            .total_cmp(&m.residuals[a].residual.abs())
+            .total_cmp(&residuals[a].residual.abs())
     });
     let mut rows: Vec<usize> = (0..spaced)
         .map(|k| k * n / spaced)
@@ -955,7 +982,7 @@ fn chart_points(
     let mut spans = Vec::new();
     for m in &results.models {
         let first = 1 + rows.len() as u32;
-        let shown = scatter_rows(m);
+        let shown = scatter_rows(&m.residuals);
         for &i in &shown {
             let d = &m.residuals[i];
             rows.push(vec![
@@ -1118,4 +1145,77 @@ fn charts(
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn rows(residuals: impl Iterator<Item = f64>) -> Vec<RowDiagnostics> {
+        residuals
+            .enumerate()
+            .map(|(i, residual)| RowDiagnostics {
+                row: i as u32 + 2,
+                period: None,
+                index: None,
+                actual: residual,
+                fitted: 0.0,
+                residual,
+                standardized_residual: None,
+                leverage: 0.0,
+                cooks_distance: None,
+                studentized_residual: None,
+                dffits: None,
+                flags: Vec::new(),
+            })
+            .collect()
+    }
+
+    #[test]
+    fn residual_rows_continue_on_numbered_sheets() {
+        assert_eq!(
+            residual_sheets(0, 10),
+            vec![ResidualSheet {
+                name: "Residuals".into(),
+                range_name: "Residual_table".into(),
+                count: 0
+            }]
+        );
+        let sheets = residual_sheets(25, 10);
+        let names: Vec<&str> = sheets.iter().map(|s| s.name.as_str()).collect();
+        assert_eq!(names, ["Residuals", "Residuals 2", "Residuals 3"]);
+        assert_eq!(sheets[2].range_name, "Residual_table_3");
+        let counts: Vec<usize> = sheets.iter().map(|s| s.count).collect();
+        assert_eq!(counts, [10, 10, 5]);
+    }
+
+    #[test]
+    fn small_models_chart_every_row() {
+        let small = rows((0..SCATTER_POINTS).map(|i| i as f64));
+        assert_eq!(
+            scatter_rows(&small),
+            (0..SCATTER_POINTS).collect::<Vec<_>>()
+        );
+    }
+
+    #[test]
+    fn large_models_chart_a_spread_sample_with_the_largest_residuals() {
+        // 50,000 rows, all small residuals but for three far out.
+        let mut residuals: Vec<f64> = (0..50_000).map(|i| ((i % 7) as f64 - 3.0) * 0.1).collect();
+        for (i, v) in [(17, 90.0), (20_011, -95.0), (49_999, 99.0)] {
+            residuals[i] = v;
+        }
+        let shown = scatter_rows(&rows(residuals.into_iter()));
+        assert!(shown.len() <= SCATTER_POINTS, "{}", shown.len());
+        assert!(shown.len() > SCATTER_POINTS - SCATTER_EXTREMES);
+        assert!(
+            shown.windows(2).all(|w| w[0] < w[1]),
+            "ascending, no repeats"
+        );
+        for far_out in [17, 20_011, 49_999] {
+            assert!(shown.contains(&far_out), "row {far_out} missing");
+        }
+        // Evenly spaced: the first and the middle of the sheet are there.
+        assert!(shown.contains(&0) && shown.contains(&25_000));
+    }
 }
