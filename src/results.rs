@@ -11,8 +11,8 @@ use crate::changes::RunChanges;
 use crate::checks::{
     assumption_checks,
     collinearity::{collinearity, TermCollinearity},
-    collinearity_checks, condition_check, each_term_last_anova, influence_check, row_diagnostics,
-    sequential_anova, AnovaRow, Check, RowDiagnostics,
+    collinearity_checks, condition_check, each_term_last_anova, influence_check, sequential_anova,
+    AnovaRow, Check, RowTable,
 };
 use crate::compare::{Comparison, DroppedTerm};
 use crate::design::{Design, TermKind};
@@ -153,7 +153,7 @@ pub struct ModelResults {
     /// (Generalized) variance inflation factor of each term.
     pub collinearity: Vec<TermCollinearity>,
     /// Per-row residuals and influence.
-    pub residuals: Vec<RowDiagnostics>,
+    pub residuals: RowTable,
     /// The standardized residuals, sorted, against their normal quantiles;
     /// past [`NORMAL_PLOT_POINTS`] residuals, the points of a fixed set of
     /// ranks (see [`plotted_ranks`]).
@@ -198,8 +198,8 @@ pub fn analyse(
     forecast: Vec<ForecastRow>,
     backtest: Option<Backtest>,
 ) -> ModelResults {
-    let residuals = row_diagnostics(design, fit);
-    let normal_plot = normal_plot(&residuals);
+    let residuals = RowTable::of(design, fit);
+    let normal_plot = normal_plot(residuals.iter().filter_map(|d| d.standardized_residual));
     let collinearity = collinearity(design, &fit.solution.kept);
     let baselines = design
         .terms
@@ -314,11 +314,8 @@ pub fn plotted_ranks(n: usize, limit: usize, tail: usize) -> Vec<usize> {
 
 /// The standardized residuals sorted against Blom's normal scores
 /// Φ⁻¹((i − 3/8)/(n + 1/4)) (Blom 1958), at the ranks of [`plotted_ranks`].
-fn normal_plot(rows: &[RowDiagnostics]) -> Vec<NormalPoint> {
-    let mut r: Vec<f64> = rows
-        .iter()
-        .filter_map(|d| d.standardized_residual)
-        .collect();
+fn normal_plot(standardized: impl Iterator<Item = f64>) -> Vec<NormalPoint> {
+    let mut r: Vec<f64> = standardized.collect();
     r.sort_by(f64::total_cmp);
     let n = r.len() as f64;
     let Ok(normal) = statrs::distribution::Normal::new(0.0, 1.0) else {
@@ -503,24 +500,7 @@ mod tests {
     fn normal_plot_uses_blom_scores() {
         // Φ⁻¹((i − 3/8)/(n + 1/4)) for n = 5 from scipy 1.17.1
         // (scipy.stats.norm.ppf): ±1.1797611176118612, ±0.49720057068155404, 0.
-        let rows: Vec<RowDiagnostics> = [0.3, -1.0, 2.0, 0.0, -0.2]
-            .iter()
-            .map(|&r| RowDiagnostics {
-                row: 2,
-                period: None,
-                index: None,
-                actual: 0.0,
-                fitted: 0.0,
-                residual: 0.0,
-                standardized_residual: Some(r),
-                leverage: 0.0,
-                cooks_distance: None,
-                studentized_residual: None,
-                dffits: None,
-                flags: vec![],
-            })
-            .collect();
-        let plot = normal_plot(&rows);
+        let plot = normal_plot([0.3, -1.0, 2.0, 0.0, -0.2].into_iter());
         let expected = [
             -1.1797611176118612,
             -0.49720057068155404,

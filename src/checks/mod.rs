@@ -13,6 +13,7 @@ use assumptions::{
 
 use crate::design::{Design, Term, TermKind};
 use crate::fit::{f_sf, least_squares, Fit, Precision, EXTENDED_ABOVE};
+use crate::period::Period;
 
 /// One row of an ANOVA table: a term's sum of squares and its F test
 /// against the full model's residual mean square.
@@ -371,56 +372,125 @@ pub const INFLUENCE_RULES: [(&str, &str); 3] = [
 
 /// Residuals, leverage and Cook's distance for every used row (Cook, R. D.
 /// 1977, "Detection of influential observation in linear regression",
-/// Technometrics 19(1)).
-pub fn row_diagnostics(design: &Design, fit: &Fit) -> Vec<RowDiagnostics> {
-    let s = fit.quality.sigma;
-    let p = fit.solution.kept.len() as f64;
-    let n = design.rows.len() as f64;
-    let df = fit.df_resid as f64;
-    design
-        .rows
-        .iter()
-        .enumerate()
-        .map(|(i, &row)| {
-            let residual = fit.solution.residuals[i];
-            let h = fit.solution.leverage[i];
-            let standardized = (s > 0.0 && s.is_finite() && h < 1.0 - 1e-12)
-                .then(|| residual / (s * (1.0 - h).sqrt()));
-            let period = design.timing.as_ref().map(|t| t.periods[i]);
-            let cook = standardized.map(|r| r * r * h / (p * (1.0 - h)));
-            let studentized = standardized
-                .filter(|r| df - r * r > 0.0)
-                .map(|r| r * ((df - 1.0) / (df - r * r)).sqrt());
-            let mut flags = Vec::new();
-            if cook.is_some_and(|d| d > 4.0 / n) {
-                flags.push(INFLUENCE_RULES[0].0);
-            }
-            if studentized.is_some_and(|t| t.abs() > 3.0) {
-                flags.push(INFLUENCE_RULES[1].0);
-            }
-            if h > 2.0 * p / n {
-                flags.push(INFLUENCE_RULES[2].0);
-            }
-            RowDiagnostics {
-                row,
-                period,
-                index: period.zip(design.timing.as_ref()).map(|(p, t)| t.index(p)),
-                actual: design.y[i],
-                fitted: fit.fitted[i],
-                residual,
-                standardized_residual: standardized,
-                leverage: h,
-                cooks_distance: cook,
-                studentized_residual: studentized,
-                dffits: studentized.map(|t| t * (h / (1.0 - h)).sqrt()),
-                flags,
-            }
-        })
-        .collect()
+/// Technometrics 19(1)), kept as compact columns: sheet row, period,
+/// actual, fitted, residual and leverage, with the few constants of the fit
+/// the formulas need. Each row's [`RowDiagnostics`] is formed when it is
+/// asked for ([`RowTable::get`], [`RowTable::iter`]), so a model holds
+/// about 52 bytes a row rather than 160; the JSON writes the rows as
+/// objects, the same as a list of [`RowDiagnostics`].
+#[derive(Debug, Clone, Default)]
+pub struct RowTable {
+    rows: Vec<u32>,
+    /// One per row when the model has a date column, else empty.
+    periods: Vec<Period>,
+    /// The first period, where the trend index is 1.
+    first: Option<Period>,
+    actual: Vec<f64>,
+    fitted: Vec<f64>,
+    residuals: Vec<f64>,
+    leverage: Vec<f64>,
+    /// Residual standard error s.
+    sigma: f64,
+    /// Estimable coefficients p.
+    rank: f64,
+    /// Residual degrees of freedom n − p.
+    df_resid: f64,
+}
+
+impl RowTable {
+    /// The per-row columns of `design` and `fit`.
+    pub fn of(design: &Design, fit: &Fit) -> Self {
+        RowTable {
+            rows: design.rows.clone(),
+            periods: design
+                .timing
+                .as_ref()
+                .map_or_else(Vec::new, |t| t.periods.clone()),
+            first: design.timing.as_ref().map(|t| t.first),
+            actual: design.y.iter().copied().collect(),
+            fitted: fit.fitted.to_vec(),
+            residuals: fit.solution.residuals.iter().copied().collect(),
+            leverage: fit.solution.leverage.clone(),
+            sigma: fit.quality.sigma,
+            rank: fit.solution.kept.len() as f64,
+            df_resid: fit.df_resid as f64,
+        }
+    }
+
+    /// Rows in the table.
+    pub fn len(&self) -> usize {
+        self.rows.len()
+    }
+
+    /// Whether the table has no rows.
+    pub fn is_empty(&self) -> bool {
+        self.rows.is_empty()
+    }
+
+    /// The residual e = actual − fitted of every row, in order.
+    pub fn residuals(&self) -> &[f64] {
+        &self.residuals
+    }
+
+    /// Row `i` with its diagnostics: the standardized residual
+    /// e / (s·√(1 − h)), Cook's distance r²·h / (p·(1 − h)), the externally
+    /// studentized residual r·√((n − p − 1)/(n − p − r²)) and DFFITS
+    /// t·√(h/(1 − h)) (Belsley, Kuh & Welsch 1980), and the rules of thumb
+    /// it breaks.
+    pub fn get(&self, i: usize) -> RowDiagnostics {
+        let (s, p, df) = (self.sigma, self.rank, self.df_resid);
+        let n = self.rows.len() as f64;
+        let residual = self.residuals[i];
+        let h = self.leverage[i];
+        let standardized = (s > 0.0 && s.is_finite() && h < 1.0 - 1e-12)
+            .then(|| residual / (s * (1.0 - h).sqrt()));
+        let period = self.periods.get(i).copied();
+        let cook = standardized.map(|r| r * r * h / (p * (1.0 - h)));
+        let studentized = standardized
+            .filter(|r| df - r * r > 0.0)
+            .map(|r| r * ((df - 1.0) / (df - r * r)).sqrt());
+        let mut flags = Vec::new();
+        if cook.is_some_and(|d| d > 4.0 / n) {
+            flags.push(INFLUENCE_RULES[0].0);
+        }
+        if studentized.is_some_and(|t| t.abs() > 3.0) {
+            flags.push(INFLUENCE_RULES[1].0);
+        }
+        if h > 2.0 * p / n {
+            flags.push(INFLUENCE_RULES[2].0);
+        }
+        RowDiagnostics {
+            row: self.rows[i],
+            period,
+            index: period
+                .zip(self.first)
+                .map(|(p, first)| p.ordinal - first.ordinal + 1),
+            actual: self.actual[i],
+            fitted: self.fitted[i],
+            residual,
+            standardized_residual: standardized,
+            leverage: h,
+            cooks_distance: cook,
+            studentized_residual: studentized,
+            dffits: studentized.map(|t| t * (h / (1.0 - h)).sqrt()),
+            flags,
+        }
+    }
+
+    /// Every row with its diagnostics, in order.
+    pub fn iter(&self) -> impl ExactSizeIterator<Item = RowDiagnostics> + '_ {
+        (0..self.len()).map(|i| self.get(i))
+    }
+}
+
+impl serde::Serialize for RowTable {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        serializer.collect_seq(self.iter())
+    }
 }
 
 /// A check that counts the rows flagged by the influence rules.
-pub fn influence_check(rows: &[RowDiagnostics]) -> Check {
+pub fn influence_check(rows: &RowTable) -> Check {
     let flagged: Vec<u32> = rows
         .iter()
         .filter(|r| !r.flags.is_empty())
@@ -538,10 +608,11 @@ mod tests {
     #[test]
     fn cooks_distance_follows_its_definition() {
         let (design, fit) = one_way();
-        let rows = row_diagnostics(&design, &fit);
+        let rows = RowTable::of(&design, &fit);
         // Each group has two rows, so h = 1/2 everywhere; residuals are ±1,
         // s² = 6/3 = 2; r = 1/(√2·√½) = 1; D = 1·½/(3·½) = 1/3.
-        for r in &rows {
+        assert_eq!(rows.len(), 6);
+        for r in rows.iter() {
             assert!((r.leverage - 0.5).abs() < 1e-12);
             assert!((r.standardized_residual.unwrap().abs() - 1.0).abs() < 1e-12);
             assert!((r.cooks_distance.unwrap() - 1.0 / 3.0).abs() < 1e-12);

@@ -15,7 +15,6 @@ use rust_xlsxwriter::{
     Worksheet, XlsxError,
 };
 
-use crate::checks::RowDiagnostics;
 use crate::results::{row_ranges, ModelResults, Results};
 
 mod forecast;
@@ -939,10 +938,11 @@ const SCATTER_POINTS: usize = 2_000;
 /// Of those, the rows with the largest absolute residuals, always shown.
 const SCATTER_EXTREMES: usize = 100;
 
-/// The residual rows (indices, ascending) a model's scatter charts show:
-/// all of them up to [`SCATTER_POINTS`]; past that, rows evenly spaced in
-/// sheet order and the [`SCATTER_EXTREMES`] largest absolute residuals.
-fn scatter_rows(residuals: &[RowDiagnostics]) -> Vec<usize> {
+/// The rows (indices, ascending) of a model's `residuals` its scatter
+/// charts show: all of them up to [`SCATTER_POINTS`]; past that, rows
+/// evenly spaced in sheet order and the [`SCATTER_EXTREMES`] largest
+/// absolute residuals.
+fn scatter_rows(residuals: &[f64]) -> Vec<usize> {
     let n = residuals.len();
     if n <= SCATTER_POINTS {
         return (0..n).collect();
@@ -950,10 +950,7 @@ fn scatter_rows(residuals: &[RowDiagnostics]) -> Vec<usize> {
     let spaced = SCATTER_POINTS - SCATTER_EXTREMES;
     let mut by_size: Vec<usize> = (0..n).collect();
     by_size.select_nth_unstable_by(SCATTER_EXTREMES, |&a, &b| {
-        residuals[b]
-            .residual
-            .abs()
-            .total_cmp(&residuals[a].residual.abs())
+        residuals[b].abs().total_cmp(&residuals[a].abs())
     });
     let mut rows: Vec<usize> = (0..spaced)
         .map(|k| k * n / spaced)
@@ -982,9 +979,9 @@ fn chart_points(
     let mut spans = Vec::new();
     for m in &results.models {
         let first = 1 + rows.len() as u32;
-        let shown = scatter_rows(&m.residuals);
+        let shown = scatter_rows(m.residuals.residuals());
         for &i in &shown {
-            let d = &m.residuals[i];
+            let d = m.residuals.get(i);
             rows.push(vec![
                 text(&m.name),
                 num(f64::from(d.row), Style::Count),
@@ -1151,26 +1148,6 @@ fn charts(
 mod tests {
     use super::*;
 
-    fn rows(residuals: impl Iterator<Item = f64>) -> Vec<RowDiagnostics> {
-        residuals
-            .enumerate()
-            .map(|(i, residual)| RowDiagnostics {
-                row: i as u32 + 2,
-                period: None,
-                index: None,
-                actual: residual,
-                fitted: 0.0,
-                residual,
-                standardized_residual: None,
-                leverage: 0.0,
-                cooks_distance: None,
-                studentized_residual: None,
-                dffits: None,
-                flags: Vec::new(),
-            })
-            .collect()
-    }
-
     #[test]
     fn residual_rows_continue_on_numbered_sheets() {
         assert_eq!(
@@ -1191,7 +1168,7 @@ mod tests {
 
     #[test]
     fn small_models_chart_every_row() {
-        let small = rows((0..SCATTER_POINTS).map(|i| i as f64));
+        let small: Vec<f64> = (0..SCATTER_POINTS).map(|i| i as f64).collect();
         assert_eq!(
             scatter_rows(&small),
             (0..SCATTER_POINTS).collect::<Vec<_>>()
@@ -1205,7 +1182,7 @@ mod tests {
         for (i, v) in [(17, 90.0), (20_011, -95.0), (49_999, 99.0)] {
             residuals[i] = v;
         }
-        let shown = scatter_rows(&rows(residuals.into_iter()));
+        let shown = scatter_rows(&residuals);
         assert!(shown.len() <= SCATTER_POINTS, "{}", shown.len());
         assert!(shown.len() > SCATTER_POINTS - SCATTER_EXTREMES);
         assert!(
