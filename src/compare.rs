@@ -10,6 +10,8 @@
 //! remaining interaction (backward elimination; a convenience for the
 //! reader, not a replacement for judgement about which drivers belong).
 
+use std::borrow::Cow;
+
 use serde::Serialize;
 
 use crate::checks::each_term_last_anova;
@@ -180,8 +182,10 @@ pub fn suggest(
     full: &Fit,
     threshold: f64,
 ) -> Result<Option<(Design, Fit, Vec<DroppedTerm>)>, FitError> {
-    let mut current = design.clone();
-    let mut current_fit = full.clone();
+    // Borrowed until a term goes, so a model that keeps every term costs
+    // no copy of its design.
+    let mut current = Cow::Borrowed(design);
+    let mut current_fit = Cow::Borrowed(full);
     let mut dropped = Vec::new();
     loop {
         let tests = each_term_last_anova(&current, &current_fit);
@@ -210,9 +214,9 @@ pub fn suggest(
         if current.terms.len() <= 1 + usize::from(current.intercept) {
             break;
         }
-        current = current.without_term(k);
-        current_fit = fit(name, &current, full.confidence)?;
+        current = Cow::Owned(current.without_term(k));
+        current_fit = Cow::Owned(fit(name, &current, full.confidence)?);
         dropped.push(DroppedTerm { term, p_value });
     }
-    Ok((!dropped.is_empty()).then_some((current, current_fit, dropped)))
+    Ok((!dropped.is_empty()).then(|| (current.into_owned(), current_fit.into_owned(), dropped)))
 }

@@ -20,7 +20,7 @@ use nalgebra::{DMatrix, DVector, SymmetricEigen};
 use statrs::distribution::{ChiSquared, ContinuousCDF, Normal};
 
 use crate::fit::{
-    auxiliary_least_squares, auxiliary_least_squares_with, f_sf, LeastSquares, ALIAS_TOLERANCE,
+    auxiliary_least_squares, auxiliary_least_squares_with, f_sf, Auxiliary, ALIAS_TOLERANCE,
 };
 
 /// Result of one test.
@@ -757,7 +757,7 @@ pub fn reset(y: &[f64], x: &DMatrix<f64>, fitted: &[f64]) -> Option<TestResult> 
         return None;
     }
     let df2 = n - ls.kept.len();
-    let sse = ls.residuals.norm_squared();
+    let sse = ls.sse;
     let total: f64 = y.iter().map(|v| v * v).sum();
     if !is_positive(sse - (ALIAS_TOLERANCE * ALIAS_TOLERANCE) * total) {
         return None;
@@ -785,7 +785,7 @@ fn result(
 
 /// Explained sum of squares Σ ŷ² of a least-squares solution: the sum of
 /// its squared effects.
-fn explained(ls: &LeastSquares) -> f64 {
+fn explained(ls: &Auxiliary) -> f64 {
     ls.effects.iter().map(|e| e * e).sum()
 }
 

@@ -470,18 +470,29 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             }
         }),
     );
-    let x = DMatrix::from_fn(rows, parts.columns.len(), |r, c| parts.columns[c].hi[r]);
-    let x_lo = parts.columns.iter().any(|c| c.lo.is_some()).then(|| {
-        DMatrix::from_fn(rows, parts.columns.len(), |r, c| {
-            parts.columns[c].lo.as_ref().map_or(0.0, |lo| lo[r])
-        })
-    });
+    // Each column moves into the matrix and is let go at once, so the
+    // design is never held twice.
+    let width = parts.columns.len();
+    let mut x = DMatrix::zeros(rows, width);
+    let mut x_lo = parts
+        .columns
+        .iter()
+        .any(|c| c.lo.is_some())
+        .then(|| DMatrix::zeros(rows, width));
+    let mut names = Vec::with_capacity(width);
+    for (j, column) in parts.columns.into_iter().enumerate() {
+        x.column_mut(j).copy_from_slice(&column.hi);
+        if let (Some(matrix), Some(lo)) = (x_lo.as_mut(), &column.lo) {
+            matrix.column_mut(j).copy_from_slice(lo);
+        }
+        names.push(column.name);
+    }
     Ok(Design {
         response: model.response.clone(),
         y,
         x,
         x_lo,
-        names: parts.columns.into_iter().map(|c| c.name).collect(),
+        names,
         terms: parts.terms,
         intercept: model.intercept,
         rows: keep.iter().map(|&i| table.rows[i]).collect(),

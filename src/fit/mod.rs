@@ -113,24 +113,75 @@ pub fn least_squares(
     }
 }
 
-/// The least-squares solution of an auxiliary regression, one that only
-/// feeds a test statistic (Breusch-Godfrey, Breusch-Pagan, RESET, ...):
-/// double precision at any condition number, and no leverage. A test
-/// statistic needs far fewer digits than a reported coefficient, and these
-/// regressions run on every row of every model.
-pub fn auxiliary_least_squares(x: &DMatrix<f64>, y: &DVector<f64>) -> LeastSquares {
+/// What a check needs of an auxiliary regression: which columns were
+/// estimable, their effects, the residual sum of squares and R.
+#[derive(Debug, Clone)]
+pub struct Auxiliary {
+    /// Indices of the estimable columns, in order.
+    pub kept: Vec<usize>,
+    /// The first `kept.len()` entries of Qᵀy; their squares sum to the
+    /// explained sum of squares.
+    pub effects: Vec<f64>,
+    /// Residual sum of squares ‖y − Xb‖².
+    pub sse: f64,
+    /// The triangular factor of the kept columns scaled to unit length.
+    pub r: DMatrix<f64>,
+}
+
+/// Rows taken at a time by [`auxiliary_least_squares_with`].
+const AUXILIARY_BLOCK: usize = 2048;
+
+/// An auxiliary regression, one that only feeds a test statistic
+/// (Breusch-Godfrey, Breusch-Pagan, RESET, ...): double precision at any
+/// condition number, with aliased columns set aside by the same rule as the
+/// model's own fit.
+pub fn auxiliary_least_squares(x: &DMatrix<f64>, y: &DVector<f64>) -> Auxiliary {
     auxiliary_least_squares_with(x, &[], y)
 }
 
-/// [`auxiliary_least_squares`] on the columns of `x` followed by `extra`,
-/// without copying them into one matrix.
+/// [`auxiliary_least_squares`] on the columns of `x` followed by `extra`.
+///
+/// The rows are taken in blocks of [`AUXILIARY_BLOCK`]: each block is
+/// stacked under the triangular factor so far of [X y] and factored again
+/// (a tall-skinny QR, Demmel, Grigori, Hoemmen & Langou 2012), so memory
+/// stays at a block whatever n is. The final (p + 1)-row factor has the
+/// column norms and cross products of [X y], and the usual solve on it (unit
+/// length columns, aliasing, effects) gives what the full solve would; its
+/// residual is the model's (QR is orthogonally invariant).
 pub fn auxiliary_least_squares_with(
     x: &DMatrix<f64>,
     extra: &[Vec<f64>],
     y: &DVector<f64>,
-) -> LeastSquares {
-    let solved = qr::solve::<f64>(Columns::with_extra(x, extra), None, y, Leverage::Skipped);
-    LeastSquares::from_solved(solved, Precision::Double)
+) -> Auxiliary {
+    let columns = Columns::with_extra(x, extra);
+    let (n, k) = (x.nrows(), x.ncols() + extra.len());
+    let width = k + 1;
+    let mut r = DMatrix::<f64>::zeros(0, width);
+    for start in (0..n).step_by(AUXILIARY_BLOCK) {
+        let end = (start + AUXILIARY_BLOCK).min(n);
+        let top = r.nrows();
+        let mut stacked = DMatrix::<f64>::zeros(top + end - start, width);
+        stacked.rows_mut(0, top).copy_from(&r);
+        for j in 0..k {
+            let column = &columns.column(j)[start..end];
+            for (i, &v) in column.iter().enumerate() {
+                stacked[(top + i, j)] = v;
+            }
+        }
+        for i in start..end {
+            stacked[(top + i - start, k)] = y[i];
+        }
+        r = stacked.qr().r();
+    }
+    let small_x = r.columns(0, k).into_owned();
+    let small_y = r.column(k).into_owned();
+    let solved = qr::solve::<f64>(Columns::of(&small_x), None, &small_y, Leverage::Skipped);
+    Auxiliary {
+        sse: solved.residuals.norm_squared(),
+        kept: solved.kept,
+        effects: solved.effects,
+        r: solved.r,
+    }
 }
 
 impl LeastSquares {
@@ -474,6 +525,44 @@ mod tests {
         let ls = least_squares(&x, None, &y);
         assert_eq!(ls.kept, vec![0, 1]);
         assert_eq!(ls.aliased, vec![2]);
+    }
+
+    #[test]
+    fn blocked_auxiliary_solve_matches_the_full_solve() {
+        // 5,000 rows: three blocks, the last one short; an extra column
+        // that repeats a base column must be set aside as aliased.
+        let n = 5_000;
+        let x = DMatrix::from_fn(n, 3, |i, j| match j {
+            0 => 1.0,
+            1 => (i as f64 * 0.37).sin() * 10.0,
+            _ => (i % 13) as f64,
+        });
+        let extra = vec![
+            (0..n).map(|i| ((i * i) % 17) as f64).collect::<Vec<_>>(),
+            x.column(1).iter().map(|v| 2.0 * v).collect(),
+        ];
+        let y = DVector::from_fn(n, |i, _| 3.0 + (i as f64 * 0.011).cos() + (i % 5) as f64);
+        let blocked = auxiliary_least_squares_with(&x, &extra, &y);
+        let mut full_x = x.clone().resize_horizontally(5, 0.0);
+        for (k, column) in extra.iter().enumerate() {
+            full_x.set_column(3 + k, &DVector::from_column_slice(column));
+        }
+        let full = least_squares(&full_x, None, &y);
+        assert_eq!(blocked.kept, full.kept);
+        assert_eq!(blocked.kept, vec![0, 1, 2, 3]);
+        let sse = full.residuals.norm_squared();
+        assert!(
+            (blocked.sse - sse).abs() < 1e-10 * sse,
+            "{} vs {sse}",
+            blocked.sse
+        );
+        let explained = |e: &[f64]| e.iter().map(|v| v * v).sum::<f64>();
+        let expected = explained(&full.effects);
+        let got = explained(&blocked.effects);
+        assert!(
+            (got - expected).abs() < 1e-10 * expected,
+            "{got} vs {expected}"
+        );
     }
 
     #[test]

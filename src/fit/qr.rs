@@ -133,7 +133,8 @@ impl<'a> Columns<'a> {
         self.base.ncols() + self.extra.len()
     }
 
-    fn column(&self, j: usize) -> &'a [f64] {
+    /// Column `j`.
+    pub fn column(&self, j: usize) -> &'a [f64] {
         let own = self.base.ncols();
         if j < own {
             &self.base.as_slice()[j * self.base.nrows()..(j + 1) * self.base.nrows()]
