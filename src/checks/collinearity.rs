@@ -16,9 +16,10 @@
 //! * Golub, G. H. & Van Loan, C. F. (2013). *Matrix Computations*, 4th ed.,
 //!   §5.2 (Householder QR) — how the determinants are computed.
 
-use nalgebra::DMatrix;
+use nalgebra::{DMatrix, DVector};
 
 use crate::design::{Design, TermKind};
+use crate::fit::auxiliary_least_squares;
 
 /// Collinearity of one term.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
@@ -109,13 +110,9 @@ pub fn collinearity(design: &Design, kept: &[usize]) -> Vec<TermCollinearity> {
     if terms.len() < 2 || n <= m {
         return Vec::new();
     }
-    let Some(z) = standardized(x, &columns) else {
+    let Some(r) = centred_factor(design, kept, &columns) else {
         return Vec::new();
     };
-    // Z = QR, so every block of Z's Gram matrix is the same block of R'R:
-    // the determinants come from small QR factors of R's columns, and the
-    // n-row matrix is factored once.
-    let r = z.qr().r();
     terms
         .into_iter()
         .map(|(name, own)| {
@@ -129,6 +126,40 @@ pub fn collinearity(design: &Design, kept: &[usize]) -> Vec<TermCollinearity> {
             }
         })
         .collect()
+}
+
+/// A triangular factor R whose Gram matrix R'R is that of the columns
+/// `columns` of `design.x` centred on their means (up to the scaling of
+/// each column, which GVIF does not see); `None` when a value is not finite
+/// or a column does not vary.
+///
+/// When the intercept is the first of the `kept` columns (as the design
+/// builds it) and a blocked double-precision solve keeps the same columns,
+/// R is the trailing block of the factor of [1 X]: for X = QR with the
+/// intercept first, that block's Gram matrix is X'(I − 11'/n)X, the centred
+/// one. The design is then read in blocks and never copied. Otherwise the
+/// centred, unit-length columns are formed and factored directly.
+fn centred_factor(design: &Design, kept: &[usize], columns: &[usize]) -> Option<DMatrix<f64>> {
+    let x = &design.x;
+    for &j in columns {
+        let column = x.column(j);
+        if column.iter().any(|v| !v.is_finite()) || column.iter().all(|&v| v == column[0]) {
+            return None;
+        }
+    }
+    let intercept_first = design
+        .terms
+        .iter()
+        .find(|t| t.kind == TermKind::Intercept)
+        .is_some_and(|t| kept.first().is_some_and(|j| t.columns.contains(j)));
+    if intercept_first {
+        let solved = auxiliary_least_squares(x, &DVector::zeros(x.nrows()));
+        if solved.kept == kept && solved.kept.len() == columns.len() + 1 {
+            let m = columns.len();
+            return Some(solved.r.view((1, 1), (m, m)).into_owned());
+        }
+    }
+    Some(standardized(x, columns)?.qr().r())
 }
 
 /// The columns `columns` of `x`, each centred on its mean and scaled to

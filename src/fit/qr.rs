@@ -173,20 +173,41 @@ pub fn solve<T: Real>(
         None => T::of(hi.column(j)[i]),
         Some(l) => T::of(hi.column(j)[i]) + T::of(l[i]),
     };
-    let scale: Vec<T> = (0..p).map(|j| norm_of(column(j))).collect();
+    // [X y] reduced block by block to at most p + 1 rows; orthogonal steps
+    // keep every column's length and every inner product, so the column
+    // by column factorization below, on this small problem, finds what it
+    // would on the n rows, and no n-row factor is ever stored.
+    let small = reduce_rows::<T>(n, p + 1, |j, start, end, out| {
+        if j < p {
+            let low = low(j);
+            out.extend(
+                hi.column(j)[start..end]
+                    .iter()
+                    .enumerate()
+                    .map(|(i, &h)| match low {
+                        None => T::of(h),
+                        Some(l) => T::of(h) + T::of(l[start + i]),
+                    }),
+            );
+        } else {
+            out.extend(y.as_slice()[start..end].iter().map(|&v| T::of(v)));
+        }
+    });
+    let m = small[p].len();
+    let scale: Vec<T> = small[..p].iter().map(|c| norm(c)).collect();
 
     let mut kept = Vec::with_capacity(p);
     let mut aliased = Vec::new();
-    let mut reflectors: Vec<(Vec<T>, T)> = Vec::with_capacity(p.min(n));
+    let mut reflectors: Vec<(Vec<T>, T)> = Vec::with_capacity(p.min(m));
     let mut r_cols: Vec<Vec<T>> = Vec::with_capacity(p);
     for (j, &length) in scale.iter().enumerate() {
         let k = kept.len();
-        if length == zero || k >= n {
+        if length == zero || k >= m {
             aliased.push(j);
             continue;
         }
         let inverse = T::of(1.0) / length;
-        let mut col: Vec<T> = column(j).map(|v| v * inverse).collect();
+        let mut col: Vec<T> = small[j].iter().map(|&v| v * inverse).collect();
         for (i, (v, tau)) in reflectors.iter().enumerate() {
             reflect(v, *tau, &mut col[i..]);
         }
@@ -203,7 +224,7 @@ pub fn solve<T: Real>(
     }
     let rank = kept.len();
 
-    let mut qty: Vec<T> = y.iter().map(|&v| T::of(v)).collect();
+    let mut qty: Vec<T> = small[p].clone();
     for (i, (v, tau)) in reflectors.iter().enumerate() {
         reflect(v, *tau, &mut qty[i..]);
     }
@@ -269,6 +290,51 @@ pub fn solve<T: Real>(
         r: DMatrix::from_fn(rank, rank, |i, j| r(i, j).value()),
         kept,
     }
+}
+
+/// Rows of [X y] taken at a time by [`reduce_rows`].
+const BLOCK: usize = 4096;
+
+/// The triangular factor of the `width` columns that `fill(j, start, end,
+/// out)` supplies over rows `start..end` of `n`, as columns of at most
+/// `width` rows: each block of rows is stacked under the factor so far and
+/// reduced by Householder reflections (a tall-skinny QR; Demmel, Grigori,
+/// Hoemmen & Langou 2012, "Communication-optimal parallel and sequential
+/// QR and LU factorizations", SIAM J. Sci. Comput. 34(1)). Memory is one
+/// block of rows.
+fn reduce_rows<T: Real>(
+    n: usize,
+    width: usize,
+    fill: impl Fn(usize, usize, usize, &mut Vec<T>),
+) -> Vec<Vec<T>> {
+    let zero = T::of(0.0);
+    let mut factor: Vec<Vec<T>> = vec![Vec::new(); width];
+    for start in (0..n).step_by(BLOCK) {
+        let end = (start + BLOCK).min(n);
+        let mut stacked = factor;
+        for (j, column) in stacked.iter_mut().enumerate() {
+            fill(j, start, end, column);
+        }
+        let rows = stacked[0].len();
+        for k in 0..width.min(rows) {
+            let (left, right) = stacked.split_at_mut(k + 1);
+            let column = &mut left[k];
+            let (v, tau, alpha) = householder(&column[k..]);
+            column[k] = alpha;
+            for value in &mut column[k + 1..] {
+                *value = zero;
+            }
+            for later in right.iter_mut() {
+                reflect(&v, tau, &mut later[k..]);
+            }
+        }
+        let kept_rows = width.min(rows);
+        for column in &mut stacked {
+            column.truncate(kept_rows);
+        }
+        factor = stacked;
+    }
+    factor
 }
 
 /// Euclidean norm, scaled by the largest entry so that neither tiny nor
