@@ -166,7 +166,7 @@ pub fn forecast(
                 .map(|(column, v)| {
                     let value = match v {
                         HoldValue::Number(x) => Value::Number(*x),
-                        HoldValue::Level(l) => Value::Text(l.as_str().into()),
+                        HoldValue::Level(l) => Value::text(l),
                     };
                     (column.clone(), value)
                 })

@@ -393,7 +393,7 @@ fn describe_columns(table: &Table) -> String {
             .values
             .iter()
             .filter_map(|v| match v {
-                Value::Text(s) => Some(&**s),
+                Value::Text(s) => Some(s.as_str()),
                 _ => None,
             })
             .collect();

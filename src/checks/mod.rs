@@ -543,9 +543,7 @@ mod tests {
                 Column {
                     name: "g".into(),
                     col: 1,
-                    values: ["a", "a", "b", "b", "c", "c"]
-                        .map(|s| Value::Text(s.into()))
-                        .to_vec(),
+                    values: ["a", "a", "b", "b", "c", "c"].map(Value::text).to_vec(),
                 },
             ],
         };

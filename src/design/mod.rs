@@ -946,7 +946,7 @@ mod tests {
             values,
         };
         let n = |x: f64| Value::Number(x);
-        let t = |s: &str| Value::Text(s.into());
+        let t = Value::text;
         Table {
             path: PathBuf::from("d.xlsx"),
             sheet: "records".into(),
