@@ -10,6 +10,11 @@ use std::time::{Duration, Instant};
 
 use nalgebra::{DMatrix, DVector};
 
+#[path = "../examples/support/splitmix.rs"]
+#[allow(dead_code)]
+mod splitmix;
+use splitmix::SplitMix64;
+
 /// Rows and columns of the test design.
 const SIZES: [(usize, usize); 2] = [(200_000, 10), (1_000_000, 20)];
 const REPEATS: usize = 3;
@@ -17,14 +22,8 @@ const REPEATS: usize = 3;
 /// A fixed pseudo-random design: an intercept and uniform columns, and a
 /// response linear in them plus noise (splitmix64, fixed seed).
 fn problem(n: usize, p: usize) -> (DMatrix<f64>, DVector<f64>) {
-    let mut state = 20261202u64;
-    let mut uniform = move || {
-        state = state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = state;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    };
+    let mut rng = SplitMix64::new(20261202);
+    let mut uniform = move || rng.uniform();
     let x = DMatrix::from_fn(n, p, |_, j| if j == 0 { 1.0 } else { uniform() });
     let beta = DVector::from_fn(p, |j, _| j as f64 + 1.0);
     let noise = DVector::from_fn(n, |_, _| uniform() - 0.5);

@@ -34,6 +34,10 @@ use std::time::{Duration, Instant};
 use calamine::{open_workbook_auto, DataType, Reader};
 use rust_xlsxwriter::{ExcelDateTime, Format, Workbook};
 
+#[path = "../examples/support/splitmix.rs"]
+mod splitmix;
+use splitmix::SplitMix64;
+
 /// Row counts of the three generated workbooks.
 const SIZES: [usize; 3] = [10_000, 100_000, 1_000_000];
 /// Fixed seed, so every run reads the same invented data.
@@ -96,36 +100,14 @@ horizon = 12
 hold = { distance_km = 40, stops = 60, depot = "Calder" }
 "#;
 
-/// splitmix64: a tiny, well-mixed 64-bit generator.
-struct SplitMix64(u64);
-
-impl SplitMix64 {
-    fn next_u64(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    fn uniform(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
-    }
-
-    fn normal(&mut self) -> f64 {
-        let u1 = 1.0 - self.uniform();
-        let u2 = self.uniform();
-        (-2.0 * u1.ln()).sqrt() * (2.0 * PI * u2).cos()
-    }
-
-    fn pick(&mut self, n: usize) -> usize {
-        (self.next_u64() % n as u64) as usize
-    }
+/// A draw among `n` choices.
+fn pick(rng: &mut SplitMix64, n: usize) -> usize {
+    (rng.next_u64() % n as u64) as usize
 }
 
 /// Writes `rows` invented delivery rounds to `path` (constant memory).
 fn generate(path: &Path, rows: usize) -> Result<(), Box<dyn Error>> {
-    let mut rng = SplitMix64(SEED);
+    let mut rng = SplitMix64::new(SEED);
     let mut workbook = Workbook::new();
     let date = Format::new().set_num_format("yyyy-mm-dd");
     let sheet = workbook.add_worksheet_with_constant_memory()?;
@@ -137,8 +119,8 @@ fn generate(path: &Path, rows: usize) -> Result<(), Box<dyn Error>> {
         let row = i as u32 + 1;
         let month = i * MONTHS / rows;
         let (year, month_of_year) = (2021 + month / 12, month % 12 + 1);
-        let depot = rng.pick(DEPOTS.len());
-        let vehicle = rng.pick(VEHICLES.len());
+        let depot = pick(&mut rng, DEPOTS.len());
+        let vehicle = pick(&mut rng, VEHICLES.len());
         let distance = (10.0 + 60.0 * rng.uniform()).round();
         let stops = (20.0 + 80.0 * rng.uniform()).round();
         let parcels = (stops * (1.2 + rng.uniform())).round();

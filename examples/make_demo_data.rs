@@ -45,6 +45,10 @@ use std::path::{Path, PathBuf};
 
 use rust_xlsxwriter::{DocProperties, ExcelDateTime, Format, Workbook};
 
+#[path = "support/splitmix.rs"]
+mod splitmix;
+use splitmix::SplitMix64;
+
 /// Fixed seed, so the demo workbooks are reproducible.
 const SEED: u64 = 20261202;
 
@@ -142,38 +146,6 @@ const COLUMNS: [(&str, f64); 8] = [
     ("promo", 7.0),
     ("revenue", 10.0),
 ];
-
-/// splitmix64: a tiny, well-mixed 64-bit generator.
-struct SplitMix64 {
-    state: u64,
-}
-
-impl SplitMix64 {
-    fn new(seed: u64) -> Self {
-        Self { state: seed }
-    }
-
-    fn next_u64(&mut self) -> u64 {
-        self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.state;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform in [0, 1), using the top 53 bits.
-    fn uniform(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
-    }
-
-    /// Standard normal via Box-Muller (one value per call, for simplicity).
-    fn normal(&mut self) -> f64 {
-        // 1 - u lies in (0, 1], so the logarithm is finite.
-        let u1 = 1.0 - self.uniform();
-        let u2 = self.uniform();
-        (-2.0 * u1.ln()).sqrt() * (2.0 * PI * u2).cos()
-    }
-}
 
 fn region_effect(region: &str) -> f64 {
     match region {
