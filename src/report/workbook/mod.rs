@@ -1104,7 +1104,9 @@ fn charts(
                     ChartMarker::new()
                         .set_type(ChartMarkerType::Circle)
                         .set_size(5),
-                );
+                )
+                // Points only: some programs join a scatter's points unless told not to.
+                .set_format(ChartFormat::new().set_no_line());
             chart.title().set_name(format!("{title}{sample}").as_str());
             // Labels at the foot of the plot, not on a zero line mid-chart.
             chart
