@@ -470,8 +470,10 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             }
         }),
     );
-    // Each column moves into the matrix and is let go at once, so the
-    // design is never held twice.
+    // The per-row readings of the table's columns are no longer needed;
+    // each design column then moves into the matrix and is let go at once,
+    // so the design is never held twice.
+    drop((response, numeric, poly, labels, dates));
     let width = parts.columns.len();
     let mut x = DMatrix::zeros(rows, width);
     let mut x_lo = parts
