@@ -197,7 +197,8 @@ enum Layout<'a> {
 /// widths, set last, follow the widest cell. Each numeric column takes the
 /// usual format of its first row's style as its column format, so only
 /// cells shown otherwise (scientific, for extreme values) carry a format
-/// of their own.
+/// of their own; since a column format covers the whole sheet column, a
+/// sheet holds one such table.
 fn write_table_rows<'a, R: AsRef<[Cell<'a>]>>(
     sheet: &mut Worksheet,
     formats: &Formats,
