@@ -17,26 +17,8 @@ use calamine::{open_workbook_auto, Data, Range, Reader};
 use serde_json::Value;
 use sha2::{Digest, Sha256};
 
-use common::{read_json, sheetfit, stderr, Cell, Scratch};
+use common::{read_json, sheetfit, stderr, Cell, Scratch, SHEETS};
 use Cell::{N, S, T};
-
-/// The sheets of a report without a comparison, in order.
-const SHEETS: [&str; 14] = [
-    "Overview",
-    "Coefficients",
-    "ANOVA",
-    "Fit quality",
-    "Comparison",
-    "Checks",
-    "Residuals",
-    "Forecast",
-    "Back-test",
-    "Back-test rows",
-    "Chart data",
-    "Normal plot",
-    "Chart points",
-    "Charts",
-];
 
 /// The fixed run time used by the reproducibility tests, and the same
 /// instant as seconds since 1970 for `SOURCE_DATE_EPOCH`.

@@ -8,7 +8,7 @@ use std::path::PathBuf;
 use calamine::{open_workbook_auto, Data, Range, Reader};
 use serde_json::Value;
 
-use common::{read_json, sheetfit, stderr, Cell, Scratch};
+use common::{read_json, sheetfit, stderr, Cell, Scratch, SHEETS};
 use Cell::{Blank, N, T};
 
 /// Relative tolerance for numbers that should be stored exactly.
@@ -137,25 +137,7 @@ fn header(range: &Range<Data>) -> Vec<String> {
 fn report_sheets_are_named_in_order() {
     let report = run_report();
     let wb = open_workbook_auto(&report.workbook).expect("open the report workbook");
-    assert_eq!(
-        wb.sheet_names(),
-        [
-            "Overview",
-            "Coefficients",
-            "ANOVA",
-            "Fit quality",
-            "Comparison",
-            "Checks",
-            "Residuals",
-            "Forecast",
-            "Back-test",
-            "Back-test rows",
-            "Chart data",
-            "Normal plot",
-            "Chart points",
-            "Charts"
-        ]
-    );
+    assert_eq!(wb.sheet_names(), SHEETS);
 }
 
 #[test]

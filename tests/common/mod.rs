@@ -7,6 +7,24 @@ use std::process::{Command, Output};
 
 use rust_xlsxwriter::Workbook;
 
+/// The sheets of a report without a comparison, in order.
+pub const SHEETS: [&str; 14] = [
+    "Overview",
+    "Coefficients",
+    "ANOVA",
+    "Fit quality",
+    "Comparison",
+    "Checks",
+    "Residuals",
+    "Forecast",
+    "Back-test",
+    "Back-test rows",
+    "Chart data",
+    "Normal plot",
+    "Chart points",
+    "Charts",
+];
+
 /// A cell to put in a fixture sheet.
 #[derive(Clone, Debug)]
 pub enum Cell {
