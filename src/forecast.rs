@@ -259,8 +259,8 @@ fn plan_rows(
         .map(|i| {
             let period = match date_column {
                 Some((timing, column)) => {
-                    let value = &column.values[i];
-                    let stamp = match value {
+                    let value = column.values.get(i);
+                    let stamp = match &value {
                         Value::Date(t) | Value::Text(t) => parse_stamp(t),
                         _ => None,
                     };
@@ -277,7 +277,7 @@ fn plan_rows(
             };
             let values = columns
                 .iter()
-                .map(|c| (c.name.clone(), c.values[i].clone()))
+                .map(|c| (c.name.clone(), c.values.get(i)))
                 .collect();
             let place = format!("row {} of plan sheet '{sheet}'", table.rows[i]);
             Ok((place, FutureRow { period, values }))

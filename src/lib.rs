@@ -22,6 +22,7 @@ pub mod source;
 
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 use std::time::Instant;
 
 use sha2::{Digest, Sha256};
@@ -378,7 +379,7 @@ fn describe_columns(table: &Table) -> String {
     let mut out = String::from("columns:\n");
     for column in &table.columns {
         let mut kinds: Vec<(&str, usize)> = Vec::new();
-        for v in &column.values {
+        for v in column.values.iter() {
             match kinds.iter_mut().find(|(k, _)| *k == v.kind()) {
                 Some((_, n)) => *n += 1,
                 None => kinds.push((v.kind(), 1)),
@@ -389,14 +390,15 @@ fn describe_columns(table: &Table) -> String {
             .map(|(k, n)| format!("{n} {k}"))
             .collect::<Vec<_>>()
             .join(", ");
-        let mut levels: Vec<&str> = column
+        let texts: Vec<Arc<String>> = column
             .values
             .iter()
             .filter_map(|v| match v {
-                Value::Text(s) => Some(s.as_str()),
+                Value::Text(s) => Some(s),
                 _ => None,
             })
             .collect();
+        let mut levels: Vec<&str> = texts.iter().map(|s| s.as_str()).collect();
         levels.sort_unstable();
         levels.dedup();
         let levels = match levels.len() {

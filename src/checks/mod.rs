@@ -538,12 +538,18 @@ mod tests {
                 Column {
                     name: "y".into(),
                     col: 0,
-                    values: [1.0, 3.0, 4.0, 6.0, 10.0, 12.0].map(Value::Number).to_vec(),
+                    values: [1.0, 3.0, 4.0, 6.0, 10.0, 12.0]
+                        .map(Value::Number)
+                        .into_iter()
+                        .collect(),
                 },
                 Column {
                     name: "g".into(),
                     col: 1,
-                    values: ["a", "a", "b", "b", "c", "c"].map(Value::text).to_vec(),
+                    values: ["a", "a", "b", "b", "c", "c"]
+                        .map(Value::text)
+                        .into_iter()
+                        .collect(),
                 },
             ],
         };

@@ -860,15 +860,15 @@ impl Context<'_> {
             .enumerate()
             .map(|(i, v)| match v {
                 Value::Blank => Ok(None),
-                Value::Number(x) if x.is_finite() => Ok(Some(*x)),
+                Value::Number(x) if x.is_finite() => Ok(Some(x)),
                 Value::Number(x) => Err(DesignError::NotFinite {
                     model: self.model.name.clone(),
                     place: self.table.place(),
                     column: column.name.clone(),
                     cell: self.table.cell(column, i),
-                    value: *x,
+                    value: x,
                 }),
-                Value::Error(e) => Err(self.error_cell(column, i, e)),
+                Value::Error(e) => Err(self.error_cell(column, i, &e)),
                 other => Err(DesignError::NotANumber {
                     model: self.model.name.clone(),
                     place: self.table.place(),
@@ -877,7 +877,7 @@ impl Context<'_> {
                     kind: other.kind(),
                     value: other.to_string(),
                     hint: match other {
-                        Value::Text(t) if looks_like_a_number(t) => " (it looks like a number stored as text, with separators, a sign in brackets, a percent or a currency sign: the tool does not guess what such text means; store the cell as a number)",
+                        Value::Text(ref t) if looks_like_a_number(t) => " (it looks like a number stored as text, with separators, a sign in brackets, a percent or a currency sign: the tool does not guess what such text means; store the cell as a number)",
                         Value::Date(_) => " (a date; dates belong in a `trend` or `season` column)",
                         _ => "",
                     },
@@ -895,7 +895,7 @@ impl Context<'_> {
             .enumerate()
             .map(|(i, v)| match v {
                 Value::Blank => Ok(None),
-                Value::Error(e) => Err(self.error_cell(column, i, e)),
+                Value::Error(e) => Err(self.error_cell(column, i, &e)),
                 other => Ok(Some(other.to_string())),
             })
             .collect()
@@ -945,7 +945,7 @@ mod tests {
         let col = |name: &str, col: u32, values: Vec<Value>| Column {
             name: name.into(),
             col,
-            values,
+            values: values.into_iter().collect(),
         };
         let n = |x: f64| Value::Number(x);
         let t = Value::text;
@@ -1033,7 +1033,7 @@ mod tests {
     #[test]
     fn no_usable_rows_names_the_columns() {
         let mut t = table();
-        t.columns[1].values = vec![Value::Blank; 5];
+        t.columns[1].values = vec![Value::Blank; 5].into_iter().collect();
         let err = build(&t, &spec(&["x"], &[])).unwrap_err();
         assert_eq!(
             err.to_string(),

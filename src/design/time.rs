@@ -45,11 +45,11 @@ impl Context<'_> {
             .enumerate()
             .map(|(i, v)| match v {
                 Value::Blank => Ok(None),
-                Value::Date(text) | Value::Text(text) => parse_stamp(text)
+                Value::Date(ref text) | Value::Text(ref text) => parse_stamp(text)
                     .map(Some)
-                    .ok_or_else(|| self.bad_date(column, i, v)),
-                Value::Error(e) => Err(self.error_cell(column, i, e)),
-                other => Err(self.bad_date(column, i, other)),
+                    .ok_or_else(|| self.bad_date(column, i, &v)),
+                Value::Error(e) => Err(self.error_cell(column, i, &e)),
+                other => Err(self.bad_date(column, i, &other)),
             })
             .collect()
     }
@@ -101,7 +101,7 @@ pub(super) fn timing(
                 place: ctx.table.place(),
                 column: column.name.clone(),
                 cell: ctx.table.cell(column, i),
-                value: column.values[i].to_string(),
+                value: column.values.get(i).to_string(),
                 frequency: frequency.name(),
             })?;
         periods.push(period);

@@ -157,6 +157,99 @@ impl fmt::Display for Value {
     }
 }
 
+/// The values of one column at 8 bytes a cell, whatever their kinds: a
+/// number is stored as itself, and any other value (blank, text, date,
+/// error, true/false) as a NaN whose payload indexes the column's list of
+/// distinct such values ("NaN-boxing"). A category or a month is thus
+/// stored once however many rows hold it, and a million-row column of
+/// numbers takes what its numbers take.
+#[derive(Debug, Clone, Default)]
+pub struct Cells {
+    words: Vec<u64>,
+    /// The distinct values other than numbers, in order of first use.
+    others: Vec<Value>,
+    /// The index in `others` of each, by kind and text.
+    index: std::collections::HashMap<(u8, Arc<String>), u64>,
+}
+
+/// High 16 bits of a word that holds an index into [`Cells::others`]: a
+/// signalling NaN, which a stored number never is (NaNs are stored as
+/// the one quiet NaN).
+const OTHER_TAG: u64 = 0x7ff4 << 48;
+const TAG_MASK: u64 = 0xffff << 48;
+
+impl Cells {
+    /// The number of cells.
+    pub fn len(&self) -> usize {
+        self.words.len()
+    }
+
+    /// Whether there are no cells.
+    pub fn is_empty(&self) -> bool {
+        self.words.is_empty()
+    }
+
+    /// Cell `i`.
+    ///
+    /// # Panics
+    /// When `i` is not below [`Cells::len`].
+    pub fn get(&self, i: usize) -> Value {
+        let word = self.words[i];
+        if word & TAG_MASK == OTHER_TAG {
+            self.others[(word & !TAG_MASK) as usize].clone()
+        } else {
+            Value::Number(f64::from_bits(word))
+        }
+    }
+
+    /// Every cell, in order.
+    pub fn iter(&self) -> impl Iterator<Item = Value> + '_ {
+        (0..self.words.len()).map(|i| self.get(i))
+    }
+
+    /// Appends `value`.
+    pub fn push(&mut self, value: Value) {
+        let word = self.word(value);
+        self.words.push(word);
+    }
+
+    /// Replaces cell `i` with `value`.
+    ///
+    /// # Panics
+    /// When `i` is not below [`Cells::len`].
+    pub fn set(&mut self, i: usize, value: Value) {
+        self.words[i] = self.word(value);
+    }
+
+    fn word(&mut self, value: Value) -> u64 {
+        let key = match &value {
+            Value::Number(x) if x.is_nan() => return f64::NAN.to_bits(),
+            Value::Number(x) => return x.to_bits(),
+            Value::Blank => (0, Arc::default()),
+            Value::Bool(b) => (1 + u8::from(*b), Arc::default()),
+            Value::Text(t) => (3, Arc::clone(t)),
+            Value::Date(t) => (4, Arc::clone(t)),
+            Value::Error(t) => (5, Arc::clone(t)),
+        };
+        let next = self.others.len() as u64;
+        let index = *self.index.entry(key).or_insert(next);
+        if index == next {
+            self.others.push(value);
+        }
+        OTHER_TAG | index
+    }
+}
+
+impl FromIterator<Value> for Cells {
+    fn from_iter<I: IntoIterator<Item = Value>>(values: I) -> Self {
+        let mut cells = Cells::default();
+        for value in values {
+            cells.push(value);
+        }
+        cells
+    }
+}
+
 /// One named column of the table.
 #[derive(Debug, Clone)]
 pub struct Column {
@@ -165,7 +258,7 @@ pub struct Column {
     /// Zero-based sheet column of this column.
     pub col: u32,
     /// One value per data row, in sheet order.
-    pub values: Vec<Value>,
+    pub values: Cells,
 }
 
 /// The data of one sheet: named columns of equal length, below a header row.
@@ -414,9 +507,6 @@ struct Builder {
     by_col: std::collections::HashMap<u32, usize>,
     header_done: bool,
     rows: Vec<u32>,
-    /// Every distinct text met so far, so repeated texts (a category, a
-    /// month) are stored once however many rows hold them.
-    texts: std::collections::HashSet<Arc<String>>,
 }
 
 impl Builder {
@@ -429,24 +519,6 @@ impl Builder {
             by_col: std::collections::HashMap::new(),
             header_done: false,
             rows: Vec::new(),
-            texts: std::collections::HashSet::new(),
-        }
-    }
-
-    /// `value` with its text replaced by the shared copy of an equal text.
-    fn shared(&mut self, value: Value) -> Value {
-        let mut share = |text: Arc<String>| match self.texts.get(&text) {
-            Some(known) => Arc::clone(known),
-            None => {
-                self.texts.insert(Arc::clone(&text));
-                text
-            }
-        };
-        match value {
-            Value::Text(t) => Value::Text(share(t)),
-            Value::Date(t) => Value::Date(share(t)),
-            Value::Error(t) => Value::Error(share(t)),
-            other => other,
         }
     }
 
@@ -459,7 +531,7 @@ impl Builder {
             self.columns.push(Column {
                 name: value.to_string(),
                 col,
-                values: Vec::new(),
+                values: Cells::default(),
             });
             return Ok(());
         }
@@ -474,7 +546,7 @@ impl Builder {
                 c.values.push(Value::Blank);
             }
         }
-        self.columns[j].values[index] = self.shared(value);
+        self.columns[j].values.set(index, value);
         Ok(())
     }
 
@@ -535,6 +607,39 @@ mod tests {
     }
 
     #[test]
+    fn cells_give_back_every_kind_of_value_at_eight_bytes_a_cell() {
+        let values = vec![
+            Value::Number(-0.0),
+            Value::Number(f64::INFINITY),
+            Value::Number(f64::NAN),
+            Value::Number(f64::from_bits(0x7ff4_0000_0000_0001)),
+            Value::Number(1e300),
+            Value::Blank,
+            Value::text("north"),
+            Value::Bool(true),
+            Value::Bool(false),
+            Value::Date(Arc::new("2026-01-01".into())),
+            Value::Error(Arc::new("#N/A".into())),
+            Value::text("north"),
+        ];
+        let cells: Cells = values.iter().cloned().collect();
+        assert_eq!(cells.len(), values.len());
+        for (i, want) in values.iter().enumerate() {
+            match (cells.get(i), want) {
+                (Value::Number(got), Value::Number(x)) if x.is_nan() => assert!(got.is_nan()),
+                (Value::Number(got), Value::Number(x)) => assert_eq!(got.to_bits(), x.to_bits()),
+                (got, want) => assert_eq!(&got, want, "cell {i}"),
+            }
+        }
+        // Equal texts share one entry.
+        assert_eq!(cells.others.len(), 6);
+        assert_eq!(
+            std::mem::size_of_val(cells.words.as_slice()),
+            8 * values.len()
+        );
+    }
+
+    #[test]
     fn column_letters_follow_the_sheet_convention() {
         assert_eq!(column_letters(0), "A");
         assert_eq!(column_letters(25), "Z");
@@ -587,7 +692,7 @@ mod tests {
         let t = b.finish().unwrap();
         assert_eq!(t.columns.len(), 1);
         assert_eq!(t.rows.len(), 1_048_575);
-        assert_eq!(t.columns[0].values[1_048_574], Value::Number(2.0));
+        assert_eq!(t.columns[0].values.get(1_048_574), Value::Number(2.0));
     }
 
     #[test]
