@@ -27,6 +27,7 @@ use serde_json::Value;
 use sheetfit::checks::assumptions::{
     breusch_godfrey, breusch_pagan, durbin_watson, jarque_bera, reset, shapiro_wilk, TestResult,
 };
+use sheetfit::design::DesignMatrix;
 use sheetfit::fit::least_squares;
 
 /// Relative tolerance for the statistics: the same small problems solved by
@@ -175,7 +176,7 @@ impl Ledger {
 /// The design with its intercept, the response, the residuals and the
 /// fitted values of one regression fixture.
 struct Case {
-    x: DMatrix<f64>,
+    x: DesignMatrix,
     y: Vec<f64>,
     residuals: Vec<f64>,
     fitted: Vec<f64>,
@@ -201,7 +202,8 @@ fn case(data: &Value) -> Case {
             x[(i, j + 1)] = *v;
         }
     }
-    let ls = least_squares(&x, None, &DVector::from_column_slice(&y));
+    let x = DesignMatrix::from_dense(&x, None);
+    let ls = least_squares(&x, &DVector::from_column_slice(&y));
     assert!(ls.aliased.is_empty());
     let residuals: Vec<f64> = ls.residuals.iter().copied().collect();
     let fitted = y.iter().zip(&residuals).map(|(y, e)| y - e).collect();

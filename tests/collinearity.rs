@@ -121,7 +121,7 @@ fn build(case: &Value) -> (Design, LeastSquares) {
     let table = sheetfit::source::read_table(&job.input, job.sheet.as_deref(), job.header_row)
         .expect("data.csv reads");
     let design = sheetfit::design::build(&table, &job.models[0]).expect("design builds");
-    let ls = least_squares(&design.x, design.x_lo.as_ref(), &design.y);
+    let ls = least_squares(&design.x, &design.y);
     (design, ls)
 }
 

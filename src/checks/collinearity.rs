@@ -16,6 +16,7 @@
 //! * Golub, G. H. & Van Loan, C. F. (2013). *Matrix Computations*, 4th ed.,
 //!   §5.2 (Householder QR) — how the determinants are computed.
 
+use crate::design::DesignMatrix;
 use nalgebra::{DMatrix, DVector};
 
 use crate::design::{Design, TermKind};
@@ -77,7 +78,7 @@ pub struct TermCollinearity {
 /// others determine exactly (to working precision) gets an infinite GVIF.
 pub fn collinearity(design: &Design, kept: &[usize]) -> Vec<TermCollinearity> {
     let x = &design.x;
-    let (n, ncols) = x.shape();
+    let (n, ncols) = (x.nrows(), x.ncols());
     if kept.iter().any(|&j| j >= ncols) {
         return Vec::new();
     }
@@ -164,7 +165,7 @@ fn centred_factor(design: &Design, kept: &[usize], columns: &[usize]) -> Option<
 
 /// The columns `columns` of `x`, each centred on its mean and scaled to
 /// unit length; `None` when a value is not finite or a column does not vary.
-fn standardized(x: &DMatrix<f64>, columns: &[usize]) -> Option<DMatrix<f64>> {
+fn standardized(x: &DesignMatrix, columns: &[usize]) -> Option<DMatrix<f64>> {
     let n = x.nrows();
     let mut z = DMatrix::zeros(n, columns.len());
     for (k, &j) in columns.iter().enumerate() {
@@ -174,7 +175,7 @@ fn standardized(x: &DMatrix<f64>, columns: &[usize]) -> Option<DMatrix<f64>> {
         }
         // Two passes: the mean, then the mean of what is left, so that
         // centring loses no more than rounding.
-        let mean = column.sum() / n as f64;
+        let mean = column.iter().sum::<f64>() / n as f64;
         let correction = column.iter().map(|v| v - mean).sum::<f64>() / n as f64;
         let mean = mean + correction;
         let mut out = z.column_mut(k);
@@ -227,8 +228,7 @@ mod tests {
             response: "y".into(),
             y: DVector::zeros(x.nrows()),
             names: (0..x.ncols()).map(|j| format!("c{j}")).collect(),
-            x,
-            x_lo: None,
+            x: DesignMatrix::from_dense(&x, None),
             terms: terms
                 .into_iter()
                 .map(|(name, kind, columns)| Term {
@@ -321,7 +321,9 @@ mod tests {
         assert!(collinearity(&constant, &[0, 1, 2]).is_empty());
         // A value that is not finite.
         let mut nan = d.clone();
-        nan.x[(2, 1)] = f64::NAN;
+        let mut x = nan.x.to_dense();
+        x[(2, 1)] = f64::NAN;
+        nan.x = DesignMatrix::from_dense(&x, None);
         assert!(collinearity(&nan, &[0, 1, 2]).is_empty());
         // As many columns as rows.
         let short = design(

@@ -81,8 +81,7 @@ pub fn each_term_last_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
             let without = |drop: &dyn Fn(usize) -> bool| {
                 fit.solution.sse_rise_without(drop).unwrap_or_else(|| {
                     let cols: Vec<usize> = (0..design.x.ncols()).filter(|&j| !drop(j)).collect();
-                    let lo = design.x_lo.as_ref().map(|l| l.select_columns(&cols));
-                    let refit = least_squares(&design.x.select_columns(&cols), lo.as_ref(), &design.y);
+                    let refit = least_squares(&design.x.select_columns(&cols), &design.y);
                     (refit.kept.len(), refit.residuals.norm_squared() - fit.quality.sse)
                 })
             };

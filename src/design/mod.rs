@@ -13,17 +13,20 @@
 // so their size does not matter.
 #![allow(clippy::result_large_err)]
 
+mod matrix;
 mod time;
 
-use std::collections::{BTreeSet, HashMap};
+use std::collections::HashMap;
+use std::sync::Arc;
 
-use nalgebra::{DMatrix, DVector};
+use nalgebra::DVector;
 
 use crate::fit::ddouble::DoubleDouble;
 use crate::job::{Baseline, CategoricalSpec, ModelSpec};
 use crate::period::{Period, SeasonBy};
 use crate::source::{CellRef, Column, Table, Value};
 
+pub use matrix::{DesignColumn, DesignMatrix, BLOCK_ROWS};
 pub use time::Timing;
 
 /// An error that stops one model: its columns do not fit its roles.
@@ -267,10 +270,7 @@ pub struct Design {
     /// Response values, one per used row.
     pub y: DVector<f64>,
     /// Design matrix: one row per used row, one column per coefficient.
-    pub x: DMatrix<f64>,
-    /// Low parts of columns formed in double-double (polynomial powers):
-    /// the design is `x + x_lo`. `None` when every column is exact.
-    pub x_lo: Option<DMatrix<f64>>,
+    pub x: DesignMatrix,
     /// Coefficient names, one per column of `x`: `Intercept`, the numeric
     /// column's name, or `column[level]` for an indicator.
     pub names: Vec<String>,
@@ -296,22 +296,32 @@ pub struct Design {
 /// column's role, a baseline that is not a level, or a one-level factor.
 pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
     let ctx = Context { table, model };
-    let response = ctx.numbers(ctx.column(&model.response)?)?;
+    // Every used column is checked in full, in model order, and marks its
+    // blank rows; values are read again only for the rows kept.
+    let mut usable = vec![true; table.rows.len()];
+    let response = ctx.column(&model.response)?;
+    ctx.check_numbers(response, &mut usable)?;
     let numeric = model
         .numeric
         .iter()
-        .map(|name| ctx.numbers(ctx.column(name)?))
+        .map(|name| ctx.column(name))
         .collect::<Result<Vec<_>, _>>()?;
     let poly = model
         .poly
         .iter()
-        .map(|p| ctx.numbers(ctx.column(&p.column)?))
+        .map(|p| ctx.column(&p.column))
         .collect::<Result<Vec<_>, _>>()?;
+    for column in numeric.iter().chain(&poly) {
+        ctx.check_numbers(column, &mut usable)?;
+    }
     let labels = model
         .categorical
         .iter()
-        .map(|c| ctx.labels(ctx.column(&c.column)?))
+        .map(|c| ctx.column(&c.column))
         .collect::<Result<Vec<_>, _>>()?;
+    for column in &labels {
+        ctx.check_labels(column, &mut usable)?;
+    }
     let dates = model
         .date_column()
         .map(|name| {
@@ -321,13 +331,9 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .transpose()?;
 
     let keep: Vec<usize> = (0..table.rows.len())
-        .filter(|&i| {
-            response[i].is_some()
-                && numeric.iter().chain(&poly).all(|c| c[i].is_some())
-                && labels.iter().all(|c| c[i].is_some())
-                && dates.as_ref().is_none_or(|(_, d)| d[i].is_some())
-        })
+        .filter(|&i| usable[i] && dates.as_ref().is_none_or(|(_, d)| d[i].is_some()))
         .collect();
+    drop(usable);
     if keep.is_empty() {
         return Err(DesignError::NoUsableRows {
             model: model.name.clone(),
@@ -353,18 +359,16 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         }
         None => None,
     };
+    let used = |column: &Column| -> Vec<f64> { keep.iter().map(|&i| number(column, i)).collect() };
+    let y = used(response);
     if model.log_response {
-        let column = ctx.column(&model.response)?;
-        if let Some(&i) = keep
-            .iter()
-            .find(|&&i| response[i].is_some_and(|v| v <= 0.0))
-        {
+        if let Some((&i, &value)) = keep.iter().zip(&y).find(|(_, &v)| v <= 0.0) {
             return Err(DesignError::NotPositive {
                 model: model.name.clone(),
                 place: table.place(),
-                column: column.name.clone(),
-                cell: table.cell(column, i),
-                value: response[i].unwrap_or(f64::NAN),
+                column: response.name.clone(),
+                cell: table.cell(response, i),
+                value,
             });
         }
     }
@@ -375,32 +379,28 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             "",
             "Intercept",
             TermKind::Intercept,
-            vec![DesignColumn::exact("Intercept", vec![1.0; keep.len()])],
+            vec![NamedColumn::new("Intercept", DesignColumn::Ones)],
         );
     }
-    let used = |values: &[Option<f64>]| -> Vec<f64> {
-        keep.iter()
-            .map(|&i| values[i].unwrap_or(f64::NAN))
-            .collect()
-    };
-    for (name, values) in model.numeric.iter().zip(&numeric) {
+    for (name, column) in model.numeric.iter().zip(&numeric) {
         parts.push(
             name,
             name,
             TermKind::Numeric,
-            vec![DesignColumn::exact(name, used(values))],
+            vec![NamedColumn::new(name, DesignColumn::values(used(column)))],
         );
     }
-    for (spec, values) in model.poly.iter().zip(&poly) {
+    for (spec, column) in model.poly.iter().zip(&poly) {
         parts.push(
             &spec.column,
             &format!("{} (degree {})", spec.column, spec.degree),
             TermKind::Polynomial {
                 degree: spec.degree,
             },
-            powers(&spec.column, &used(values), spec.degree),
+            powers(&spec.column, &used(column), spec.degree),
         );
     }
+    drop(dates);
     if let Some(t) = &timing {
         if model.trend.is_some() {
             let index = t.periods.iter().map(|&p| t.index(p) as f64).collect();
@@ -408,7 +408,7 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
                 &t.column,
                 "trend",
                 TermKind::Trend,
-                vec![DesignColumn::exact("trend", index)],
+                vec![NamedColumn::new("trend", DesignColumn::values(index))],
             );
         }
         if let Some(season) = &model.season {
@@ -421,13 +421,12 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
                     baseline: season.baseline,
                     given: season.baseline_given,
                 },
-                time::season_columns(season.by, season.baseline, &seasons),
+                time::season_columns(season.by, season.baseline, seasons),
             );
         }
     }
-    for (spec, values) in model.categorical.iter().zip(&labels) {
-        let used: Vec<&str> = keep.iter().filter_map(|&i| values[i].as_deref()).collect();
-        let (kind, indicators) = indicators(&ctx, spec, &used)?;
+    for (spec, column) in model.categorical.iter().zip(&labels) {
+        let (kind, indicators) = indicators(&ctx, spec, column, &keep)?;
         parts.push(&spec.column, &spec.column, kind, indicators);
     }
     for (a, b) in &model.interactions {
@@ -444,9 +443,9 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         for i in parts.terms[left].columns.clone() {
             for j in parts.terms[right].columns.clone() {
                 let (ci, cj) = (&parts.columns[i], &parts.columns[j]);
-                products.push(DesignColumn::exact(
+                products.push(NamedColumn::new(
                     &format!("{}:{}", ci.name, cj.name),
-                    ci.hi.iter().zip(&cj.hi).map(|(x, y)| x * y).collect(),
+                    DesignColumn::Product(Box::new(ci.column.clone()), Box::new(cj.column.clone())),
                 ));
             }
         }
@@ -459,41 +458,20 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
     }
 
     let rows = keep.len();
-    let y = DVector::from_iterator(
-        rows,
-        keep.iter().map(|&i| {
-            let v = response[i].unwrap_or(f64::NAN);
-            if model.log_response {
-                v.ln()
-            } else {
-                v
-            }
-        }),
-    );
-    // The per-row readings of the table's columns are no longer needed;
-    // each design column then moves into the matrix and is let go at once,
-    // so the design is never held twice.
-    drop((response, numeric, poly, labels, dates));
-    let width = parts.columns.len();
-    let mut x = DMatrix::zeros(rows, width);
-    let mut x_lo = parts
+    let y = if model.log_response {
+        y.iter().map(|v| v.ln()).collect()
+    } else {
+        y
+    };
+    let (names, columns) = parts
         .columns
-        .iter()
-        .any(|c| c.lo.is_some())
-        .then(|| DMatrix::zeros(rows, width));
-    let mut names = Vec::with_capacity(width);
-    for (j, column) in parts.columns.into_iter().enumerate() {
-        x.column_mut(j).copy_from_slice(&column.hi);
-        if let (Some(matrix), Some(lo)) = (x_lo.as_mut(), &column.lo) {
-            matrix.column_mut(j).copy_from_slice(lo);
-        }
-        names.push(column.name);
-    }
+        .into_iter()
+        .map(|c| (c.name, c.column))
+        .unzip();
     Ok(Design {
         response: model.response.clone(),
-        y,
-        x,
-        x_lo,
+        y: DVector::from_vec(y),
+        x: DesignMatrix::new(rows, columns),
         names,
         terms: parts.terms,
         intercept: model.intercept,
@@ -502,6 +480,14 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         timing,
         log_response: model.log_response,
     })
+}
+
+/// Cell `i` of a checked numeric column: its number (NaN if blank).
+fn number(column: &Column, i: usize) -> f64 {
+    match column.values.get(i) {
+        Value::Number(x) => x,
+        _ => f64::NAN,
+    }
 }
 
 /// A row to predict: its period (for trend and season) and its predictor
@@ -551,9 +537,7 @@ pub enum EncodeError {
 impl Design {
     /// Row `i` of the design matrix, low parts included.
     pub fn row(&self, i: usize) -> Vec<f64> {
-        (0..self.x.ncols())
-            .map(|j| self.x[(i, j)] + self.x_lo.as_ref().map_or(0.0, |lo| lo[(i, j)]))
-            .collect()
+        self.x.row(i)
     }
 
     /// The design restricted to the rows `keep` (indices into this design),
@@ -563,7 +547,6 @@ impl Design {
             response: self.response.clone(),
             y: self.y.select_rows(keep),
             x: self.x.select_rows(keep),
-            x_lo: self.x_lo.as_ref().map(|lo| lo.select_rows(keep)),
             names: self.names.clone(),
             terms: self.terms.clone(),
             intercept: self.intercept,
@@ -611,7 +594,6 @@ impl Design {
             .collect();
         Design {
             x: self.x.select_columns(&keep),
-            x_lo: self.x_lo.as_ref().map(|lo| lo.select_columns(&keep)),
             names: keep.iter().map(|&j| self.names[j].clone()).collect(),
             terms,
             intercept: self.intercept && self.terms[k].kind != TermKind::Intercept,
@@ -650,7 +632,7 @@ impl Design {
                     out.extend(
                         powers(&term.column, &[x], *degree)
                             .iter()
-                            .map(|c| c.hi[0] + c.lo.as_ref().map_or(0.0, |lo| lo[0])),
+                            .map(|c| c.column.get(0) + c.column.low(0)),
                     );
                 }
                 TermKind::Trend => {
@@ -708,21 +690,18 @@ impl Design {
     }
 }
 
-/// One design-matrix column while the design is assembled.
-struct DesignColumn {
+/// One design-matrix column and its coefficient's name, while the design
+/// is assembled.
+struct NamedColumn {
     name: String,
-    /// The values, rounded to double precision.
-    hi: Vec<f64>,
-    /// What rounding left over, for columns formed in double-double.
-    lo: Option<Vec<f64>>,
+    column: DesignColumn,
 }
 
-impl DesignColumn {
-    fn exact(name: &str, hi: Vec<f64>) -> Self {
-        DesignColumn {
+impl NamedColumn {
+    fn new(name: &str, column: DesignColumn) -> Self {
+        NamedColumn {
             name: name.to_string(),
-            hi,
-            lo: None,
+            column,
         }
     }
 }
@@ -731,11 +710,11 @@ impl DesignColumn {
 #[derive(Default)]
 struct Assembly {
     terms: Vec<Term>,
-    columns: Vec<DesignColumn>,
+    columns: Vec<NamedColumn>,
 }
 
 impl Assembly {
-    fn push(&mut self, column: &str, name: &str, kind: TermKind, columns: Vec<DesignColumn>) {
+    fn push(&mut self, column: &str, name: &str, kind: TermKind, columns: Vec<NamedColumn>) {
         let start = self.columns.len();
         self.columns.extend(columns);
         self.terms.push(Term {
@@ -751,38 +730,57 @@ impl Assembly {
 /// in double-double arithmetic and kept as a rounded value plus its
 /// remainder (an ill-conditioned polynomial fit such as NIST StRD Filip
 /// needs those digits).
-fn powers(column: &str, x: &[f64], degree: u32) -> Vec<DesignColumn> {
+fn powers(column: &str, x: &[f64], degree: u32) -> Vec<NamedColumn> {
     let mut current: Vec<DoubleDouble> = x.iter().map(|&v| DoubleDouble::from_f64(v)).collect();
-    let mut out = vec![DesignColumn::exact(column, x.to_vec())];
+    let mut out = vec![NamedColumn::new(column, DesignColumn::values(x.to_vec()))];
     for k in 2..=degree {
         for (c, &v) in current.iter_mut().zip(x) {
             *c = *c * v;
         }
-        out.push(DesignColumn {
-            name: format!("{column}^{k}"),
-            hi: current.iter().map(|d| d.hi()).collect(),
-            lo: Some(current.iter().map(|d| d.lo()).collect()),
-        });
+        out.push(NamedColumn::new(
+            &format!("{column}^{k}"),
+            DesignColumn::Values {
+                hi: current.iter().map(|d| d.hi()).collect(),
+                lo: Some(current.iter().map(|d| d.lo()).collect()),
+            },
+        ));
     }
     out
 }
 
-type Indicators = Vec<DesignColumn>;
-
-/// Treatment coding of one factor: levels sorted, one 0/1 column per level
-/// other than the baseline.
+/// Treatment coding of one factor over the rows `keep`: levels sorted,
+/// one 0/1 column per level other than the baseline, all reading one code
+/// per row.
 fn indicators(
     ctx: &Context<'_>,
     spec: &CategoricalSpec,
-    used: &[&str],
-) -> Result<(TermKind, Indicators), DesignError> {
-    let levels: Vec<String> = used
+    column: &Column,
+    keep: &[usize],
+) -> Result<(TermKind, Vec<NamedColumn>), DesignError> {
+    // Codes in order of first appearance, each cell's label formed once
+    // per distinct cell.
+    let mut by_cell: HashMap<u64, u32> = HashMap::new();
+    let mut by_label: HashMap<String, u32> = HashMap::new();
+    let mut found: Vec<String> = Vec::new();
+    let first_codes: Vec<u32> = keep
         .iter()
-        .copied()
-        .collect::<BTreeSet<_>>()
-        .into_iter()
-        .map(str::to_string)
+        .map(|&i| {
+            *by_cell.entry(column.values.key(i)).or_insert_with(|| {
+                let label = column.values.get(i).to_string();
+                *by_label.entry(label.clone()).or_insert_with(|| {
+                    found.push(label);
+                    (found.len() - 1) as u32
+                })
+            })
+        })
         .collect();
+    let mut order: Vec<u32> = (0..found.len() as u32).collect();
+    order.sort_by(|&a, &b| found[a as usize].cmp(&found[b as usize]));
+    let mut sorted_code = vec![0u32; found.len()];
+    for (k, &code) in order.iter().enumerate() {
+        sorted_code[code as usize] = k as u32;
+    }
+    let levels: Vec<String> = order.iter().map(|&c| found[c as usize].clone()).collect();
     let baseline = match &spec.baseline {
         Baseline::Given(level) if levels.contains(level) => level.clone(),
         Baseline::Given(level) => {
@@ -802,15 +800,22 @@ fn indicators(
             level: baseline,
         });
     }
+    let codes: Arc<[u32]> = first_codes
+        .iter()
+        .map(|&c| sorted_code[c as usize])
+        .collect();
     let cols = levels
         .iter()
-        .filter(|l| **l != baseline)
-        .map(|level| {
-            let col = used
-                .iter()
-                .map(|v| f64::from(u8::from(*v == level)))
-                .collect();
-            DesignColumn::exact(&format!("{}[{}]", spec.column, level), col)
+        .zip(0..)
+        .filter(|(l, _)| **l != baseline)
+        .map(|(level, code)| {
+            NamedColumn::new(
+                &format!("{}[{}]", spec.column, level),
+                DesignColumn::Indicator {
+                    codes: Arc::clone(&codes),
+                    code,
+                },
+            )
         })
         .collect();
     Ok((
@@ -852,24 +857,24 @@ impl Context<'_> {
         })
     }
 
-    /// The column as numbers; `None` where the cell is blank.
-    fn numbers(&self, column: &Column) -> Result<Vec<Option<f64>>, DesignError> {
-        column
-            .values
-            .iter()
-            .enumerate()
-            .map(|(i, v)| match v {
-                Value::Blank => Ok(None),
-                Value::Number(x) if x.is_finite() => Ok(Some(x)),
-                Value::Number(x) => Err(DesignError::NotFinite {
-                    model: self.model.name.clone(),
-                    place: self.table.place(),
-                    column: column.name.clone(),
-                    cell: self.table.cell(column, i),
-                    value: x,
-                }),
-                Value::Error(e) => Err(self.error_cell(column, i, &e)),
-                other => Err(DesignError::NotANumber {
+    /// Checks that the column holds numbers or blanks, and marks its blank
+    /// rows as not `usable`.
+    fn check_numbers(&self, column: &Column, usable: &mut [bool]) -> Result<(), DesignError> {
+        for (i, v) in column.values.iter().enumerate() {
+            match v {
+                Value::Blank => usable[i] = false,
+                Value::Number(x) if x.is_finite() => {}
+                Value::Number(x) => {
+                    return Err(DesignError::NotFinite {
+                        model: self.model.name.clone(),
+                        place: self.table.place(),
+                        column: column.name.clone(),
+                        cell: self.table.cell(column, i),
+                        value: x,
+                    })
+                }
+                Value::Error(e) => return Err(self.error_cell(column, i, &e)),
+                other => return Err(DesignError::NotANumber {
                     model: self.model.name.clone(),
                     place: self.table.place(),
                     column: column.name.clone(),
@@ -882,23 +887,23 @@ impl Context<'_> {
                         _ => "",
                     },
                 }),
-            })
-            .collect()
+            }
+        }
+        Ok(())
     }
 
-    /// The column as level labels; `None` where the cell is blank. Numbers
-    /// become their shortest decimal text ("3", "2.5").
-    fn labels(&self, column: &Column) -> Result<Vec<Option<String>>, DesignError> {
-        column
-            .values
-            .iter()
-            .enumerate()
-            .map(|(i, v)| match v {
-                Value::Blank => Ok(None),
-                Value::Error(e) => Err(self.error_cell(column, i, &e)),
-                other => Ok(Some(other.to_string())),
-            })
-            .collect()
+    /// Checks that the column holds no error cells, and marks its blank rows
+    /// as not `usable`. Its other cells are level labels; numbers become
+    /// their shortest decimal text ("3", "2.5").
+    fn check_labels(&self, column: &Column, usable: &mut [bool]) -> Result<(), DesignError> {
+        for (i, v) in column.values.iter().enumerate() {
+            match v {
+                Value::Blank => usable[i] = false,
+                Value::Error(e) => return Err(self.error_cell(column, i, &e)),
+                _ => {}
+            }
+        }
+        Ok(())
     }
 
     fn error_cell(&self, column: &Column, i: usize, value: &str) -> DesignError {

@@ -5,7 +5,9 @@ use crate::job::SeasonSpec;
 use crate::period::{detect_frequency, parse_stamp, Frequency, Period, SeasonBy, Stamp};
 use crate::source::{Column, Value};
 
-use super::{Context, DesignColumn, DesignError};
+use std::sync::Arc;
+
+use super::{Context, DesignColumn, DesignError, NamedColumn};
 
 /// The periods of a model's used rows.
 #[derive(Debug, Clone)]
@@ -159,19 +161,21 @@ pub(super) fn seasons(
 }
 
 /// One 0/1 column per season other than the baseline, named
-/// `season[Feb]`, `season[Q2]`, `season[Tue]`. A season with no rows gives
-/// a column of zeros, which the fit reports as aliased.
-pub(super) fn season_columns(by: SeasonBy, baseline: u32, seasons: &[u32]) -> Vec<DesignColumn> {
+/// `season[Feb]`, `season[Q2]`, `season[Tue]`, all reading the rows'
+/// `seasons`. A season with no rows gives a column of zeros, which the fit
+/// reports as aliased.
+pub(super) fn season_columns(by: SeasonBy, baseline: u32, seasons: Vec<u32>) -> Vec<NamedColumn> {
+    let codes: Arc<[u32]> = seasons.into();
     by.labels()
         .iter()
         .zip(1..)
         .filter(|(_, s)| *s != baseline)
-        .map(|(label, s)| {
-            let col = seasons
-                .iter()
-                .map(|&v| f64::from(u8::from(v == s)))
-                .collect();
-            DesignColumn::exact(&format!("season[{label}]"), col)
+        .map(|(label, s)| NamedColumn {
+            name: format!("season[{label}]"),
+            column: DesignColumn::Indicator {
+                codes: Arc::clone(&codes),
+                code: s,
+            },
         })
         .collect()
 }

@@ -19,7 +19,7 @@ use statrs::distribution::{Continuous, ContinuousCDF, FisherSnedecor, Normal, St
 use self::ddouble::DoubleDouble;
 use self::qr::{Columns, Leverage};
 use self::robust::{robust_covariance, Robust};
-use crate::design::Design;
+use crate::design::{Design, DesignMatrix};
 
 pub use qr::ALIAS_TOLERANCE;
 
@@ -94,19 +94,15 @@ pub struct LeastSquares {
     pub precision: Precision,
 }
 
-/// Solves `y ≈ X b`, X = `x` + `x_lo` (the low parts of columns formed in
-/// double-double; `None` when every column is exact in double precision),
-/// by Householder QR with aliased columns set aside, in double precision or,
-/// when needed, in double-double.
-pub fn least_squares(
-    x: &DMatrix<f64>,
-    x_lo: Option<&DMatrix<f64>>,
-    y: &DVector<f64>,
-) -> LeastSquares {
-    let double = qr::solve::<f64>(Columns::of(x), None, y, Leverage::Wanted);
+/// Solves `y ≈ X b` by Householder QR with aliased columns set aside, in
+/// double precision or, when needed, in double-double (which adds the low
+/// parts of columns formed in double-double).
+pub fn least_squares(x: &DesignMatrix, y: &DVector<f64>) -> LeastSquares {
+    let double = qr::solve::<f64>(Columns::of(x), y, Leverage::Wanted);
     let kappa = qr::condition_number(&double.r);
     if kappa > EXTENDED_ABOVE {
-        let extended = qr::solve::<DoubleDouble>(Columns::of(x), x_lo, y, Leverage::Wanted);
+        let extended =
+            qr::solve::<DoubleDouble>(Columns::of(x).with_low_parts(), y, Leverage::Wanted);
         LeastSquares::from_solved(extended, Precision::DoubleDouble)
     } else {
         LeastSquares::from_solved(double, Precision::Double)
@@ -135,7 +131,7 @@ const AUXILIARY_BLOCK: usize = 2048;
 /// (Breusch-Godfrey, Breusch-Pagan, RESET, ...): double precision at any
 /// condition number, with aliased columns set aside by the same rule as the
 /// model's own fit.
-pub fn auxiliary_least_squares(x: &DMatrix<f64>, y: &DVector<f64>) -> Auxiliary {
+pub fn auxiliary_least_squares(x: &DesignMatrix, y: &DVector<f64>) -> Auxiliary {
     auxiliary_least_squares_with(x, &[], y)
 }
 
@@ -149,11 +145,10 @@ pub fn auxiliary_least_squares(x: &DMatrix<f64>, y: &DVector<f64>) -> Auxiliary 
 /// length columns, aliasing, effects) gives what the full solve would; its
 /// residual is the model's (QR is orthogonally invariant).
 pub fn auxiliary_least_squares_with(
-    x: &DMatrix<f64>,
+    x: &DesignMatrix,
     extra: &[Vec<f64>],
     y: &DVector<f64>,
 ) -> Auxiliary {
-    let columns = Columns::with_extra(x, extra);
     let (n, k) = (x.nrows(), x.ncols() + extra.len());
     let width = k + 1;
     let mut r = DMatrix::<f64>::zeros(0, width);
@@ -162,8 +157,13 @@ pub fn auxiliary_least_squares_with(
         let top = r.nrows();
         let mut stacked = DMatrix::<f64>::zeros(top + end - start, width);
         stacked.rows_mut(0, top).copy_from(&r);
+        let mut column = Vec::with_capacity(end - start);
         for j in 0..k {
-            let column = &columns.column(j)[start..end];
+            column.clear();
+            match j.checked_sub(x.ncols()) {
+                None => x.fill(j, start..end, &mut column),
+                Some(e) => column.extend_from_slice(&extra[e][start..end]),
+            }
             for (i, &v) in column.iter().enumerate() {
                 stacked[(top + i, j)] = v;
             }
@@ -173,9 +173,9 @@ pub fn auxiliary_least_squares_with(
         }
         r = stacked.qr().r();
     }
-    let small_x = r.columns(0, k).into_owned();
+    let small_x = DesignMatrix::from_dense(&r.columns(0, k).into_owned(), None);
     let small_y = r.column(k).into_owned();
-    let solved = qr::solve::<f64>(Columns::of(&small_x), None, &small_y, Leverage::Skipped);
+    let solved = qr::solve::<f64>(Columns::of(&small_x), &small_y, Leverage::Skipped);
     Auxiliary {
         sse: solved.residuals.norm_squared(),
         kept: solved.kept,
@@ -220,9 +220,8 @@ impl LeastSquares {
         let rise = if keep.is_empty() {
             effects.norm_squared()
         } else {
-            let reduced_r = self.r.select_columns(&keep);
-            let reduced =
-                qr::solve::<f64>(Columns::of(&reduced_r), None, &effects, Leverage::Skipped);
+            let reduced_r = DesignMatrix::from_dense(&self.r.select_columns(&keep), None);
+            let reduced = qr::solve::<f64>(Columns::of(&reduced_r), &effects, Leverage::Skipped);
             if reduced.kept.len() < keep.len() {
                 return None;
             }
@@ -349,7 +348,7 @@ pub fn with_robust_errors(mut fit: Fit, design: &Design, kind: Robust) -> Fit {
 /// [`FitError::TooFewRows`] when there are not more usable rows than
 /// estimable coefficients.
 pub fn fit(model: &str, design: &Design, confidence: f64) -> Result<Fit, FitError> {
-    let solution = least_squares(&design.x, design.x_lo.as_ref(), &design.y);
+    let solution = least_squares(&design.x, &design.y);
     let n = design.y.len();
     let p = solution.kept.len();
     if n <= p {
@@ -522,7 +521,7 @@ mod tests {
             &[1.0, 1.0, 2.0, 1.0, 2.0, 4.0, 1.0, 3.0, 6.0, 1.0, 5.0, 10.0],
         );
         let y = DVector::from_vec(vec![1.0, 3.0, 2.0, 5.0]);
-        let ls = least_squares(&x, None, &y);
+        let ls = least_squares(&DesignMatrix::from_dense(&x, None), &y);
         assert_eq!(ls.kept, vec![0, 1]);
         assert_eq!(ls.aliased, vec![2]);
     }
@@ -542,12 +541,12 @@ mod tests {
             x.column(1).iter().map(|v| 2.0 * v).collect(),
         ];
         let y = DVector::from_fn(n, |i, _| 3.0 + (i as f64 * 0.011).cos() + (i % 5) as f64);
-        let blocked = auxiliary_least_squares_with(&x, &extra, &y);
+        let blocked = auxiliary_least_squares_with(&DesignMatrix::from_dense(&x, None), &extra, &y);
         let mut full_x = x.clone().resize_horizontally(5, 0.0);
         for (k, column) in extra.iter().enumerate() {
             full_x.set_column(3 + k, &DVector::from_column_slice(column));
         }
-        let full = least_squares(&full_x, None, &y);
+        let full = least_squares(&DesignMatrix::from_dense(&full_x, None), &y);
         assert_eq!(blocked.kept, full.kept);
         assert_eq!(blocked.kept, vec![0, 1, 2, 3]);
         let sse = full.residuals.norm_squared();
@@ -576,9 +575,12 @@ mod tests {
             }
         });
         let y = DVector::from_fn(12, |i, _| (i as f64 * 1.3).sin() * 4.0 + i as f64);
-        let full = least_squares(&x, None, &y);
+        let full = least_squares(&DesignMatrix::from_dense(&x, None), &y);
         let (rank, rise) = full.sse_rise_without(|j| j == 1 || j == 3).unwrap();
-        let refit = least_squares(&x.select_columns(&[0, 2, 4]), None, &y);
+        let refit = least_squares(
+            &DesignMatrix::from_dense(&x.select_columns(&[0, 2, 4]), None),
+            &y,
+        );
         let expected = refit.residuals.norm_squared() - full.residuals.norm_squared();
         assert_eq!(rank, 3);
         assert!(
@@ -588,7 +590,7 @@ mod tests {
         // A column set aside as aliased sends the caller to a refit.
         let mut aliased = x.clone().insert_column(5, 0.0);
         aliased.set_column(5, &(x.column(1) * 2.0));
-        assert!(least_squares(&aliased, None, &y)
+        assert!(least_squares(&DesignMatrix::from_dense(&aliased, None), &y)
             .sse_rise_without(|j| j == 1)
             .is_none());
     }
@@ -598,7 +600,7 @@ mod tests {
         // y = 1 + 2x exactly.
         let x = DMatrix::from_row_slice(3, 2, &[1.0, 0.0, 1.0, 1.0, 1.0, 2.0]);
         let y = DVector::from_vec(vec![1.0, 3.0, 5.0]);
-        let ls = least_squares(&x, None, &y);
+        let ls = least_squares(&DesignMatrix::from_dense(&x, None), &y);
         assert!((ls.beta[0] - 1.0).abs() < 1e-14);
         assert!((ls.beta[1] - 2.0).abs() < 1e-14);
         assert!(ls.residuals.norm() < 1e-14);

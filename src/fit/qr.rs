@@ -16,6 +16,7 @@ use std::ops::{Add, Div, Mul, Neg, Sub};
 use nalgebra::{DMatrix, DVector};
 
 use super::ddouble::DoubleDouble;
+use crate::design::DesignMatrix;
 
 /// A column is aliased when its part orthogonal to the earlier columns is
 /// below this fraction of its own length: within a few hundred rounding
@@ -105,24 +106,40 @@ pub enum Leverage {
     Skipped,
 }
 
-/// The columns of a design as `f64` slices: a matrix's own, optionally
-/// followed by extra columns (an auxiliary regression's lags or powers), so
-/// that no n-row matrix has to be copied to add them.
+/// The columns of a design: a [`DesignMatrix`]'s own, optionally followed
+/// by extra columns (an auxiliary regression's lags or powers), so that no
+/// n-row matrix has to be formed to add them.
 #[derive(Clone, Copy)]
 pub struct Columns<'a> {
-    base: &'a DMatrix<f64>,
+    base: &'a DesignMatrix,
     extra: &'a [Vec<f64>],
+    /// Whether the low parts of the base's columns are added.
+    low: bool,
 }
 
 impl<'a> Columns<'a> {
-    /// The columns of `base`.
-    pub fn of(base: &'a DMatrix<f64>) -> Self {
-        Columns { base, extra: &[] }
+    /// The columns of `base`, their double-precision parts.
+    pub fn of(base: &'a DesignMatrix) -> Self {
+        Columns {
+            base,
+            extra: &[],
+            low: false,
+        }
     }
 
     /// The columns of `base`, then `extra` (each as long as `base` is tall).
-    pub fn with_extra(base: &'a DMatrix<f64>, extra: &'a [Vec<f64>]) -> Self {
-        Columns { base, extra }
+    pub fn with_extra(base: &'a DesignMatrix, extra: &'a [Vec<f64>]) -> Self {
+        Columns {
+            base,
+            extra,
+            low: false,
+        }
+    }
+
+    /// The same columns with the base's low parts added, for a solve in
+    /// double-double.
+    pub fn with_low_parts(self) -> Self {
+        Columns { low: true, ..self }
     }
 
     fn rows(&self) -> usize {
@@ -133,62 +150,40 @@ impl<'a> Columns<'a> {
         self.base.ncols() + self.extra.len()
     }
 
-    /// Column `j`.
-    pub fn column(&self, j: usize) -> &'a [f64] {
+    /// Appends entries `rows` of column `j` to `out`, in the arithmetic `T`.
+    fn fill<T: Real>(&self, j: usize, rows: std::ops::Range<usize>, out: &mut Vec<T>) {
         let own = self.base.ncols();
-        if j < own {
-            &self.base.as_slice()[j * self.base.nrows()..(j + 1) * self.base.nrows()]
+        if j >= own {
+            out.extend(self.extra[j - own][rows].iter().map(|&v| T::of(v)));
+            return;
+        }
+        let mut hi = Vec::with_capacity(rows.len());
+        self.base.fill(j, rows.clone(), &mut hi);
+        if self.low && self.base.has_low(j) {
+            let mut lo = Vec::with_capacity(rows.len());
+            self.base.fill_low(j, rows, &mut lo);
+            out.extend(hi.iter().zip(&lo).map(|(&h, &l)| T::of(h) + T::of(l)));
         } else {
-            &self.extra[j - own]
+            out.extend(hi.iter().map(|&h| T::of(h)));
         }
     }
 }
 
-/// Solves least squares for the columns `hi` (each `hi + lo`, `lo` empty
-/// when the column is exact in double precision; `lo` covers the base
-/// matrix's columns only) and response `y`, in the arithmetic `T`. The
-/// columns are read where they lie, never copied whole.
-pub fn solve<T: Real>(
-    hi: Columns<'_>,
-    lo: Option<&DMatrix<f64>>,
-    y: &DVector<f64>,
-    leverage: Leverage,
-) -> Solved {
+/// Solves least squares for `columns` (their low parts included when
+/// [`Columns::with_low_parts`] asked for them) and response `y`, in the
+/// arithmetic `T`. The columns are read in blocks of rows, never formed
+/// whole.
+pub fn solve<T: Real>(columns: Columns<'_>, y: &DVector<f64>, leverage: Leverage) -> Solved {
     let want_leverage = leverage == Leverage::Wanted;
-    let (n, p) = (hi.rows(), hi.count());
+    let (n, p) = (columns.rows(), columns.count());
     let zero = T::of(0.0);
-    let low = |j: usize| lo.filter(|l| j < l.ncols()).map(|l| l.column(j));
-    // Column j of X in the working precision, value by value.
-    let column = |j: usize| {
-        let low = low(j);
-        hi.column(j)
-            .iter()
-            .enumerate()
-            .map(move |(i, &h)| match low {
-                None => T::of(h),
-                Some(l) => T::of(h) + T::of(l[i]),
-            })
-    };
-    let value = |i: usize, j: usize| match low(j) {
-        None => T::of(hi.column(j)[i]),
-        Some(l) => T::of(hi.column(j)[i]) + T::of(l[i]),
-    };
     // [X y] reduced block by block to at most p + 1 rows; orthogonal steps
     // keep every column's length and every inner product, so the column
     // by column factorization below, on this small problem, finds what it
     // would on the n rows, and no n-row factor is ever stored.
     let small = reduce_rows::<T>(n, p + 1, |j, start, end, out| {
         if j < p {
-            let low = low(j);
-            out.extend(
-                hi.column(j)[start..end]
-                    .iter()
-                    .enumerate()
-                    .map(|(i, &h)| match low {
-                        None => T::of(h),
-                        Some(l) => T::of(h) + T::of(l[start + i]),
-                    }),
-            );
+            columns.fill(j, start..end, out);
         } else {
             out.extend(y.as_slice()[start..end].iter().map(|&v| T::of(v)));
         }
@@ -255,29 +250,39 @@ pub fn solve<T: Real>(
     });
 
     // Leverage h_i = ‖row i of Q‖², with Q = X_s R⁻¹ (X_s the scaled kept
-    // columns): one forward substitution zR = x_i per row.
-    let mut leverage = vec![0.0; if want_leverage { n } else { 0 }];
+    // columns): one forward substitution zR = x_i per row; and the
+    // residuals y − Xb, the columns' terms taken in order. Both read the
+    // kept columns a block of rows at a time.
+    let mut leverage = Vec::with_capacity(if want_leverage { n } else { 0 });
+    let mut residuals: Vec<T> = Vec::with_capacity(n);
     let inverse_scale: Vec<T> = kept.iter().map(|&j| T::of(1.0) / scale[j]).collect();
     let inverse_diagonal: Vec<T> = r_cols.iter().map(|c| T::of(1.0) / c[c.len() - 1]).collect();
     let mut z = vec![zero; rank];
-    for (i, h) in leverage.iter_mut().enumerate() {
-        let mut sum = zero;
-        for c in 0..rank {
-            let r_col = &r_cols[c];
-            let mut v = value(i, kept[c]) * inverse_scale[c];
-            for (&zm, &rm) in z[..c].iter().zip(r_col) {
-                v = v - zm * rm;
-            }
-            z[c] = v * inverse_diagonal[c];
-            sum = sum + z[c] * z[c];
+    let mut block: Vec<Vec<T>> = vec![Vec::with_capacity(BLOCK); rank];
+    for start in (0..n).step_by(BLOCK) {
+        let end = (start + BLOCK).min(n);
+        for (values, &j) in block.iter_mut().zip(&kept) {
+            values.clear();
+            columns.fill(j, start..end, values);
         }
-        *h = sum.value();
-    }
-
-    let mut residuals: Vec<T> = y.iter().map(|&v| T::of(v)).collect();
-    for (&j, &b) in kept.iter().zip(&beta) {
-        for (res, x) in residuals.iter_mut().zip(column(j)) {
-            *res = *res - x * b;
+        for i in 0..end - start {
+            if want_leverage {
+                let mut sum = zero;
+                for c in 0..rank {
+                    let mut v = block[c][i] * inverse_scale[c];
+                    for (&zm, &rm) in z[..c].iter().zip(&r_cols[c]) {
+                        v = v - zm * rm;
+                    }
+                    z[c] = v * inverse_diagonal[c];
+                    sum = sum + z[c] * z[c];
+                }
+                leverage.push(sum.value());
+            }
+            let mut residual = T::of(y[start + i]);
+            for (values, &b) in block.iter().zip(&beta) {
+                residual = residual - values[i] * b;
+            }
+            residuals.push(residual);
         }
     }
     Solved {
@@ -445,9 +450,10 @@ mod tests {
         // y = 2 + 3x exactly.
         let x = DMatrix::from_row_slice(4, 2, &[1.0, 0.0, 1.0, 1.0, 1.0, 2.0, 1.0, 4.0]);
         let y = DVector::from_vec(vec![2.0, 5.0, 8.0, 14.0]);
+        let x = DesignMatrix::from_dense(&x, None);
         for s in [
-            solve::<f64>(Columns::of(&x), None, &y, Leverage::Wanted),
-            solve::<DoubleDouble>(Columns::of(&x), None, &y, Leverage::Wanted),
+            solve::<f64>(Columns::of(&x), &y, Leverage::Wanted),
+            solve::<DoubleDouble>(Columns::of(&x), &y, Leverage::Wanted),
         ] {
             assert!((s.beta[0] - 2.0).abs() < 1e-14);
             assert!((s.beta[1] - 3.0).abs() < 1e-14);
@@ -463,9 +469,14 @@ mod tests {
         let hi = DMatrix::from_row_slice(3, 2, &[1.0, 0.0, 1.0, 1.0, 1.0, 2.0]);
         let lo = DMatrix::from_row_slice(3, 2, &[0.0, 0.0, 0.0, 0.0, 0.0, 2f64.powi(-50)]);
         let y = DVector::from_vec(vec![0.0, 1.0, 2.0]);
-        let exact = solve::<DoubleDouble>(Columns::of(&hi), None, &y, Leverage::Wanted);
+        let exact = DesignMatrix::from_dense(&hi, None);
+        let exact =
+            solve::<DoubleDouble>(Columns::of(&exact).with_low_parts(), &y, Leverage::Wanted);
         assert_eq!(exact.beta[1], 1.0);
-        let shifted = solve::<DoubleDouble>(Columns::of(&hi), Some(&lo), &y, Leverage::Wanted);
+        let x = DesignMatrix::from_dense(&hi, Some(&lo));
+        let ignored = solve::<DoubleDouble>(Columns::of(&x), &y, Leverage::Wanted);
+        assert_eq!(ignored.beta[1], 1.0);
+        let shifted = solve::<DoubleDouble>(Columns::of(&x).with_low_parts(), &y, Leverage::Wanted);
         assert!(shifted.beta[1] < 1.0, "{}", shifted.beta[1]);
         assert!(shifted.residuals.amax() > 0.0);
     }

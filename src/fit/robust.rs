@@ -20,6 +20,7 @@
 //!   standard errors in the linear regression model. *The American
 //!   Statistician* 54(3), 217–224.
 
+use crate::design::DesignMatrix;
 use nalgebra::DMatrix;
 
 /// Which heteroscedasticity-consistent estimator.
@@ -95,7 +96,7 @@ pub fn unit_leverage_rows(leverage: &[f64]) -> Vec<usize> {
 /// or there are no more rows than coefficients, the variance is undefined
 /// and every entry is NaN.
 pub fn robust_covariance(
-    x: &DMatrix<f64>,
+    x: &DesignMatrix,
     kept: &[usize],
     xtx_inv: &DMatrix<f64>,
     residuals: &[f64],
@@ -111,30 +112,38 @@ pub fn robust_covariance(
     if !shapes_agree || n <= p {
         return DMatrix::from_element(p, p, f64::NAN);
     }
-    // Row i of c is cᵢ' = xᵢ'(X'X)⁻¹ ((X'X)⁻¹ is symmetric).
-    let mut w = x.select_columns(kept) * xtx_inv;
+    // Row i of W is √ωᵢ cᵢ', cᵢ' = xᵢ'(X'X)⁻¹ ((X'X)⁻¹ is symmetric); V =
+    // W'W, summed over blocks of rows.
     let hc1_scale = (n as f64 / (n - p) as f64).sqrt();
-    for (i, mut row) in w.row_iter_mut().enumerate() {
-        let e = residuals[i].abs();
-        let root_weight = match kind {
-            Robust::Hc1 => hc1_scale * e,
-            Robust::Hc3 => {
-                let room = 1.0 - leverage[i];
-                if room <= UNIT_LEVERAGE_TOLERANCE {
-                    0.0
-                } else {
-                    e / room
+    let mut v = DMatrix::zeros(p, p);
+    for rows in x.blocks() {
+        let start = rows.start;
+        let mut w = x.dense_block(rows, kept) * xtx_inv;
+        for (k, mut row) in w.row_iter_mut().enumerate() {
+            let i = start + k;
+            let e = residuals[i].abs();
+            let root_weight = match kind {
+                Robust::Hc1 => hc1_scale * e,
+                Robust::Hc3 => {
+                    let room = 1.0 - leverage[i];
+                    if room <= UNIT_LEVERAGE_TOLERANCE {
+                        0.0
+                    } else {
+                        e / room
+                    }
                 }
-            }
-        };
-        row *= root_weight;
+            };
+            row *= root_weight;
+        }
+        v += w.tr_mul(&w);
     }
-    w.tr_mul(&w)
+    v
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::design::DesignMatrix;
     use crate::fit::least_squares;
     use nalgebra::DVector;
 
@@ -152,7 +161,7 @@ mod tests {
         // (White 1980); HC1 scales it by n/(n − 2), HC3 divides each term
         // by (1 − hᵢ)².
         let (x, y) = line();
-        let ls = least_squares(&x, None, &y);
+        let ls = least_squares(&DesignMatrix::from_dense(&x, None), &y);
         let xs: Vec<f64> = x.column(1).iter().copied().collect();
         let mean = xs.iter().sum::<f64>() / 6.0;
         let sxx: f64 = xs.iter().map(|v| (v - mean).powi(2)).sum();
@@ -162,8 +171,22 @@ mod tests {
             .map(|i| term(i) / (1.0 - ls.leverage[i]).powi(2))
             .sum();
         let e = ls.residuals.as_slice();
-        let v1 = robust_covariance(&x, &ls.kept, &ls.xtx_inv, e, &ls.leverage, Robust::Hc1);
-        let v3 = robust_covariance(&x, &ls.kept, &ls.xtx_inv, e, &ls.leverage, Robust::Hc3);
+        let v1 = robust_covariance(
+            &DesignMatrix::from_dense(&x, None),
+            &ls.kept,
+            &ls.xtx_inv,
+            e,
+            &ls.leverage,
+            Robust::Hc1,
+        );
+        let v3 = robust_covariance(
+            &DesignMatrix::from_dense(&x, None),
+            &ls.kept,
+            &ls.xtx_inv,
+            e,
+            &ls.leverage,
+            Robust::Hc3,
+        );
         assert!(
             (v1[(1, 1)] / hc1 - 1.0).abs() < 1e-13,
             "{} vs {hc1}",
@@ -185,19 +208,33 @@ mod tests {
         let x = x.insert_column(2, 0.0);
         let mut x = x;
         x[(5, 2)] = 1.0;
-        let ls = least_squares(&x, None, &y);
+        let ls = least_squares(&DesignMatrix::from_dense(&x, None), &y);
         assert_eq!(unit_leverage_rows(&ls.leverage), vec![5]);
         let e = ls.residuals.as_slice();
-        let v = robust_covariance(&x, &ls.kept, &ls.xtx_inv, e, &ls.leverage, Robust::Hc3);
+        let v = robust_covariance(
+            &DesignMatrix::from_dense(&x, None),
+            &ls.kept,
+            &ls.xtx_inv,
+            e,
+            &ls.leverage,
+            Robust::Hc3,
+        );
         assert!(v.iter().all(|v| v.is_finite()), "{v}");
         // Intercept and slope: as from the first five rows alone.
         let (x5, y5) = (
             x.rows(0, 5).columns(0, 2).into_owned(),
             y.rows(0, 5).into_owned(),
         );
-        let ls5 = least_squares(&x5, None, &y5);
+        let ls5 = least_squares(&DesignMatrix::from_dense(&x5, None), &y5);
         let e5 = ls5.residuals.as_slice();
-        let v5 = robust_covariance(&x5, &ls5.kept, &ls5.xtx_inv, e5, &ls5.leverage, Robust::Hc3);
+        let v5 = robust_covariance(
+            &DesignMatrix::from_dense(&x5, None),
+            &ls5.kept,
+            &ls5.xtx_inv,
+            e5,
+            &ls5.leverage,
+            Robust::Hc3,
+        );
         for (j, k) in [(0, 0), (0, 1), (1, 1)] {
             assert!((v[(j, k)] / v5[(j, k)] - 1.0).abs() < 1e-10, "{j},{k}");
         }
@@ -206,25 +243,39 @@ mod tests {
     #[test]
     fn mismatched_or_too_short_inputs_give_nan_not_a_panic() {
         let (x, y) = line();
-        let ls = least_squares(&x, None, &y);
+        let ls = least_squares(&DesignMatrix::from_dense(&x, None), &y);
         let e = ls.residuals.as_slice();
         let h = &ls.leverage;
         let nan = |v: DMatrix<f64>| v.shape() == (2, 2) && v.iter().all(|v| v.is_nan());
         for kind in [Robust::Hc1, Robust::Hc3] {
             assert!(nan(robust_covariance(
-                &x,
+                &DesignMatrix::from_dense(&x, None),
                 &[0, 1],
                 &ls.xtx_inv,
                 &e[..5],
                 h,
                 kind
             )));
-            assert!(nan(robust_covariance(&x, &[0, 7], &ls.xtx_inv, e, h, kind)));
+            assert!(nan(robust_covariance(
+                &DesignMatrix::from_dense(&x, None),
+                &[0, 7],
+                &ls.xtx_inv,
+                e,
+                h,
+                kind
+            )));
             let wrong = DMatrix::zeros(3, 3);
-            assert!(nan(robust_covariance(&x, &[0, 1], &wrong, e, h, kind)));
+            assert!(nan(robust_covariance(
+                &DesignMatrix::from_dense(&x, None),
+                &[0, 1],
+                &wrong,
+                e,
+                h,
+                kind
+            )));
             let two = x.rows(0, 2).into_owned();
             assert!(nan(robust_covariance(
-                &two,
+                &DesignMatrix::from_dense(&two, None),
                 &[0, 1],
                 &ls.xtx_inv,
                 &e[..2],
@@ -233,7 +284,7 @@ mod tests {
             )));
         }
         assert!(nan(robust_covariance(
-            &x,
+            &DesignMatrix::from_dense(&x, None),
             &[0, 1],
             &ls.xtx_inv,
             e,
@@ -241,10 +292,24 @@ mod tests {
             Robust::Hc3
         )));
         // HC1 does not read the leverages.
-        let v = robust_covariance(&x, &[0, 1], &ls.xtx_inv, e, &[], Robust::Hc1);
+        let v = robust_covariance(
+            &DesignMatrix::from_dense(&x, None),
+            &[0, 1],
+            &ls.xtx_inv,
+            e,
+            &[],
+            Robust::Hc1,
+        );
         assert!(v.iter().all(|v| v.is_finite()));
         // No coefficients: an empty matrix.
-        let v = robust_covariance(&x, &[], &DMatrix::zeros(0, 0), e, h, Robust::Hc3);
+        let v = robust_covariance(
+            &DesignMatrix::from_dense(&x, None),
+            &[],
+            &DMatrix::zeros(0, 0),
+            e,
+            h,
+            Robust::Hc3,
+        );
         assert_eq!(v.shape(), (0, 0));
     }
 }

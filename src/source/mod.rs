@@ -202,6 +202,16 @@ impl Cells {
         }
     }
 
+    /// A key for cell `i`: equal cells of one column have equal keys, so
+    /// work per distinct value (a level's label, a date's period) can be
+    /// done once.
+    ///
+    /// # Panics
+    /// When `i` is not below [`Cells::len`].
+    pub fn key(&self, i: usize) -> u64 {
+        self.words[i]
+    }
+
     /// Every cell, in order.
     pub fn iter(&self) -> impl Iterator<Item = Value> + '_ {
         (0..self.words.len()).map(|i| self.get(i))
