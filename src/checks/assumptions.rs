@@ -16,10 +16,12 @@
 //! are read from the QR effects (the squared entries of Qᵀy), which keeps
 //! their digits when they are small.
 
-use crate::design::DesignMatrix;
+use std::sync::Arc;
+
 use nalgebra::{DMatrix, DVector, SymmetricEigen};
 use statrs::distribution::{ChiSquared, ContinuousCDF, Normal};
 
+use crate::design::{DesignColumn, DesignMatrix};
 use crate::fit::{
     auxiliary_least_squares, auxiliary_least_squares_with, f_sf, Auxiliary, ALIAS_TOLERANCE,
 };
@@ -465,13 +467,16 @@ pub fn breusch_godfrey(residuals: &[f64], x: &DesignMatrix, order: usize) -> Opt
         return None;
     }
     let p = x.ncols();
-    let lags: Vec<Vec<f64>> = (1..=order)
-        .map(|lag| {
-            let mut column = vec![0.0; n];
-            column[lag.min(n)..].copy_from_slice(&residuals[..n.saturating_sub(lag)]);
-            column
-        })
-        .collect();
+    let shared: Arc<[f64]> = residuals.into();
+    let lags = DesignMatrix::new(
+        n,
+        (1..=order)
+            .map(|lag| DesignColumn::Lagged {
+                values: Arc::clone(&shared),
+                lag,
+            })
+            .collect(),
+    );
     let e = DVector::from_column_slice(residuals);
     let ls = auxiliary_least_squares_with(x, &lags, &e);
     let df = ls.kept.iter().filter(|&&j| j >= p).count();
@@ -747,10 +752,13 @@ pub fn reset(y: &[f64], x: &DesignMatrix, fitted: &[f64]) -> Option<TestResult> 
         return None;
     }
     let p = x.ncols();
-    let powers = [
-        fitted.iter().map(|f| f * f).collect(),
-        fitted.iter().map(|f| f * f * f).collect(),
-    ];
+    let powers = DesignMatrix::new(
+        n,
+        vec![
+            DesignColumn::values(fitted.iter().map(|f| f * f).collect()),
+            DesignColumn::values(fitted.iter().map(|f| f * f * f).collect()),
+        ],
+    );
     let ls = auxiliary_least_squares_with(x, &powers, &DVector::from_column_slice(y));
     let added: f64 = ls
         .kept

@@ -16,10 +16,9 @@
 //! * Golub, G. H. & Van Loan, C. F. (2013). *Matrix Computations*, 4th ed.,
 //!   §5.2 (Householder QR) — how the determinants are computed.
 
-use crate::design::DesignMatrix;
 use nalgebra::{DMatrix, DVector};
 
-use crate::design::{Design, TermKind};
+use crate::design::{Design, DesignMatrix, TermKind};
 use crate::fit::auxiliary_least_squares;
 
 /// Collinearity of one term.

@@ -220,8 +220,8 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
             verdict: "not computed: the model fits every row exactly (or the values are too large to square); check that the response is not a copy or a sum of the predictors".into(),
         }];
     }
-    let e: Vec<f64> = fit.solution.residuals.iter().copied().collect();
-    let y: Vec<f64> = design.y.iter().copied().collect();
+    let e = fit.solution.residuals.as_slice();
+    let y = design.y.as_slice();
     let order_words = if design.timing.is_some() {
         "rows in period order"
     } else {
@@ -229,7 +229,7 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
     };
     let mut checks = vec![test_check(
         "durbin-watson",
-        durbin_watson(&e, &design.x),
+        durbin_watson(e, &design.x),
         &format!("Durbin & Watson (1950, 1971); p for positive autocorrelation, exact below 100 rows, else normal approximation; {order_words}"),
         "residuals look independent from one row to the next",
         "residuals of neighbouring rows move together (positive autocorrelation): standard errors and p-values are too optimistic; consider a trend, seasons or fewer, longer periods",
@@ -245,7 +245,7 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
             .unwrap_or(2);
         checks.push(test_check(
             "breusch-godfrey",
-            breusch_godfrey(&e, &design.x, order),
+            breusch_godfrey(e, &design.x, order),
             &format!(
                 "Breusch (1978), Godfrey (1978): autocorrelation up to lag {order} ({} periods); chi-square LM form",
                 timing.frequency.name()
@@ -256,28 +256,28 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
     }
     checks.push(test_check(
         "breusch-pagan",
-        breusch_pagan(&e, &design.x),
+        breusch_pagan(e, &design.x),
         "Breusch & Pagan (1979), studentized by Koenker (1981): does the spread of the residuals change with the predictors?",
         "spread looks constant",
         "spread changes with the predictors: consider robust standard errors (standard_errors = \"HC3\") or a log response",
     ));
     checks.push(test_check(
         "jarque-bera",
-        jarque_bera(&e),
+        jarque_bera(e),
         "Jarque & Bera (1980): skewness and kurtosis of the residuals against the normal",
         "residuals look normal in shape",
         "residuals are skewed or heavy-tailed: p-values and intervals are approximate; look at the flagged rows and the normal plot",
     ));
     checks.push(test_check(
         "shapiro-wilk",
-        shapiro_wilk(&e),
+        shapiro_wilk(e),
         "Shapiro & Wilk (1965), Royston's (1995) algorithm, 3 to 5000 rows",
         "residuals look normal",
         "residuals depart from the normal: p-values and intervals are approximate; look at the normal plot",
     ));
     checks.push(test_check(
         "reset",
-        reset(&y, &design.x, &fit.fitted),
+        reset(y, &design.x, &fit.fitted),
         "Ramsey (1969) RESET: do the squared and cubed fitted values add anything?",
         "no sign of missing curvature",
         "the relation looks curved: consider a polynomial term, an interaction or a log response",

@@ -32,6 +32,14 @@ pub enum DesignColumn {
     },
     /// The entrywise product of two columns (an interaction).
     Product(Box<DesignColumn>, Box<DesignColumn>),
+    /// `values` moved down by `lag` rows, zeros above: a lagged residual
+    /// in an auxiliary regression, all lags sharing one copy.
+    Lagged {
+        /// The values before the shift.
+        values: Arc<[f64]>,
+        /// Rows to shift by.
+        lag: usize,
+    },
 }
 
 impl DesignColumn {
@@ -50,6 +58,7 @@ impl DesignColumn {
             DesignColumn::Values { hi, .. } => hi[i],
             DesignColumn::Indicator { codes, code } => f64::from(u8::from(codes[i] == *code)),
             DesignColumn::Product(a, b) => a.get(i) * b.get(i),
+            DesignColumn::Lagged { values, lag } => i.checked_sub(*lag).map_or(0.0, |k| values[k]),
         }
     }
 
@@ -82,6 +91,7 @@ impl DesignColumn {
                     *x *= y;
                 }
             }
+            DesignColumn::Lagged { .. } => out.extend(rows.map(|i| self.get(i))),
         }
     }
 
@@ -115,6 +125,9 @@ impl DesignColumn {
                 Box::new(a.gather(keep, codes)),
                 Box::new(b.gather(keep, codes)),
             ),
+            DesignColumn::Lagged { .. } => {
+                DesignColumn::values(keep.iter().map(|&i| self.get(i)).collect())
+            }
         }
     }
 }
@@ -277,6 +290,10 @@ mod tests {
                 b.clone(),
                 DesignColumn::Indicator { codes, code: 2 },
                 DesignColumn::Product(Box::new(x), Box::new(b)),
+                DesignColumn::Lagged {
+                    values: vec![7.0, 8.0, 9.0, 10.0, 11.0].into(),
+                    lag: 2,
+                },
             ],
         )
     }
@@ -287,18 +304,18 @@ mod tests {
         let dense = m.to_dense();
         let want = DMatrix::from_row_slice(
             5,
-            5,
+            6,
             &[
-                1.0, 1.0, 0.0, 0.0, 0.0, //
-                1.0, 2.0, 1.0, 0.0, 2.0, //
-                1.0, 3.0, 0.0, 1.0, 0.0, //
-                1.0, 4.0, 1.0, 0.0, 4.0, //
-                1.0, 5.0, 0.0, 0.0, 0.0,
+                1.0, 1.0, 0.0, 0.0, 0.0, 0.0, //
+                1.0, 2.0, 1.0, 0.0, 2.0, 0.0, //
+                1.0, 3.0, 0.0, 1.0, 0.0, 7.0, //
+                1.0, 4.0, 1.0, 0.0, 4.0, 8.0, //
+                1.0, 5.0, 0.0, 0.0, 0.0, 9.0,
             ],
         );
         assert_eq!(dense, want);
         for i in 0..5 {
-            for j in 0..5 {
+            for j in 0..6 {
                 assert_eq!(m.get(i, j), want[(i, j)]);
             }
         }

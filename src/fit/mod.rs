@@ -132,10 +132,12 @@ const AUXILIARY_BLOCK: usize = 2048;
 /// condition number, with aliased columns set aside by the same rule as the
 /// model's own fit.
 pub fn auxiliary_least_squares(x: &DesignMatrix, y: &DVector<f64>) -> Auxiliary {
-    auxiliary_least_squares_with(x, &[], y)
+    auxiliary_least_squares_with(x, &DesignMatrix::new(x.nrows(), Vec::new()), y)
 }
 
-/// [`auxiliary_least_squares`] on the columns of `x` followed by `extra`.
+/// [`auxiliary_least_squares`] on the columns of `x` followed by those of
+/// `extra` (as tall as `x`): an auxiliary regression's lags or powers, added
+/// without forming the combined matrix.
 ///
 /// The rows are taken in blocks of [`AUXILIARY_BLOCK`]: each block is
 /// stacked under the triangular factor so far of [X y] and factored again
@@ -146,10 +148,10 @@ pub fn auxiliary_least_squares(x: &DesignMatrix, y: &DVector<f64>) -> Auxiliary 
 /// residual is the model's (QR is orthogonally invariant).
 pub fn auxiliary_least_squares_with(
     x: &DesignMatrix,
-    extra: &[Vec<f64>],
+    extra: &DesignMatrix,
     y: &DVector<f64>,
 ) -> Auxiliary {
-    let (n, k) = (x.nrows(), x.ncols() + extra.len());
+    let (n, k) = (x.nrows(), x.ncols() + extra.ncols());
     let width = k + 1;
     let mut r = DMatrix::<f64>::zeros(0, width);
     for start in (0..n).step_by(AUXILIARY_BLOCK) {
@@ -162,7 +164,7 @@ pub fn auxiliary_least_squares_with(
             column.clear();
             match j.checked_sub(x.ncols()) {
                 None => x.fill(j, start..end, &mut column),
-                Some(e) => column.extend_from_slice(&extra[e][start..end]),
+                Some(e) => extra.fill(e, start..end, &mut column),
             }
             for (i, &v) in column.iter().enumerate() {
                 stacked[(top + i, j)] = v;
@@ -536,12 +538,22 @@ mod tests {
             1 => (i as f64 * 0.37).sin() * 10.0,
             _ => (i % 13) as f64,
         });
-        let extra = vec![
+        let extra = [
             (0..n).map(|i| ((i * i) % 17) as f64).collect::<Vec<_>>(),
             x.column(1).iter().map(|v| 2.0 * v).collect(),
         ];
         let y = DVector::from_fn(n, |i, _| 3.0 + (i as f64 * 0.011).cos() + (i % 5) as f64);
-        let blocked = auxiliary_least_squares_with(&DesignMatrix::from_dense(&x, None), &extra, &y);
+        let blocked = auxiliary_least_squares_with(
+            &DesignMatrix::from_dense(&x, None),
+            &DesignMatrix::new(
+                n,
+                extra
+                    .iter()
+                    .map(|c| crate::design::DesignColumn::values(c.clone()))
+                    .collect(),
+            ),
+            &y,
+        );
         let mut full_x = x.clone().resize_horizontally(5, 0.0);
         for (k, column) in extra.iter().enumerate() {
             full_x.set_column(3 + k, &DVector::from_column_slice(column));

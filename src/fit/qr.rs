@@ -106,34 +106,18 @@ pub enum Leverage {
     Skipped,
 }
 
-/// The columns of a design: a [`DesignMatrix`]'s own, optionally followed
-/// by extra columns (an auxiliary regression's lags or powers), so that no
-/// n-row matrix has to be formed to add them.
+/// The columns of a [`DesignMatrix`] as a solve reads them.
 #[derive(Clone, Copy)]
 pub struct Columns<'a> {
     base: &'a DesignMatrix,
-    extra: &'a [Vec<f64>],
-    /// Whether the low parts of the base's columns are added.
+    /// Whether the low parts of the columns are added.
     low: bool,
 }
 
 impl<'a> Columns<'a> {
     /// The columns of `base`, their double-precision parts.
     pub fn of(base: &'a DesignMatrix) -> Self {
-        Columns {
-            base,
-            extra: &[],
-            low: false,
-        }
-    }
-
-    /// The columns of `base`, then `extra` (each as long as `base` is tall).
-    pub fn with_extra(base: &'a DesignMatrix, extra: &'a [Vec<f64>]) -> Self {
-        Columns {
-            base,
-            extra,
-            low: false,
-        }
+        Columns { base, low: false }
     }
 
     /// The same columns with the base's low parts added, for a solve in
@@ -147,16 +131,11 @@ impl<'a> Columns<'a> {
     }
 
     fn count(&self) -> usize {
-        self.base.ncols() + self.extra.len()
+        self.base.ncols()
     }
 
     /// Appends entries `rows` of column `j` to `out`, in the arithmetic `T`.
     fn fill<T: Real>(&self, j: usize, rows: std::ops::Range<usize>, out: &mut Vec<T>) {
-        let own = self.base.ncols();
-        if j >= own {
-            out.extend(self.extra[j - own][rows].iter().map(|&v| T::of(v)));
-            return;
-        }
         let mut hi = Vec::with_capacity(rows.len());
         self.base.fill(j, rows.clone(), &mut hi);
         if self.low && self.base.has_low(j) {

@@ -20,8 +20,9 @@
 //!   standard errors in the linear regression model. *The American
 //!   Statistician* 54(3), 217–224.
 
-use crate::design::DesignMatrix;
 use nalgebra::DMatrix;
+
+use crate::design::DesignMatrix;
 
 /// Which heteroscedasticity-consistent estimator.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
