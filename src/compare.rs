@@ -13,6 +13,7 @@
 use std::borrow::Cow;
 
 use serde::Serialize;
+use sha2::{Digest, Sha256};
 
 use crate::checks::each_term_last_anova;
 use crate::design::{Design, TermKind};
@@ -28,8 +29,9 @@ pub struct Candidate {
     name: String,
     response: String,
     log_response: bool,
-    /// Sheet rows used, sorted.
-    rows: Vec<u32>,
+    /// SHA-256 of the sheet rows used, sorted: equal exactly when two
+    /// models use the same rows (to the digest's collision odds).
+    rows: [u8; 32],
     terms: Vec<String>,
     df_resid: usize,
     quality: FitQuality,
@@ -40,11 +42,15 @@ impl Candidate {
     pub fn new(name: &str, design: &Design, fit: &Fit) -> Self {
         let mut rows = design.rows.clone();
         rows.sort_unstable();
+        let mut digest = Sha256::new();
+        for row in rows {
+            digest.update(row.to_le_bytes());
+        }
         Candidate {
             name: name.to_string(),
             response: design.response.clone(),
             log_response: design.log_response,
-            rows,
+            rows: digest.finalize().into(),
             terms: fit.coefficients.iter().map(|k| k.term.clone()).collect(),
             df_resid: fit.df_resid,
             quality: fit.quality.clone(),

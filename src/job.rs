@@ -368,6 +368,12 @@ impl ModelSpec {
             .or(self.season.as_ref().map(|s| s.column.as_str()))
     }
 
+    /// Whether the model reads the column `name` (a predictor, the
+    /// response or the date column).
+    pub fn reads(&self, name: &str) -> bool {
+        self.columns().any(|c| c == name) || self.date_column() == Some(name)
+    }
+
     /// Every column the model reads: the response first, then predictors in
     /// job order.
     pub fn columns(&self) -> impl Iterator<Item = &str> {

@@ -100,15 +100,19 @@ impl Error {
 /// to describe them).
 fn model_results(
     job: &Job,
-    table: &Table,
+    mut table: Table,
     inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
 ) -> Result<(Vec<results::ModelResults>, Vec<compare::Comparison>), Error> {
     let mut models = Vec::with_capacity(job.models.len());
     let mut candidates = Vec::with_capacity(job.models.len());
     let mut suggestions = Vec::new();
     let mut suggested_candidates = Vec::new();
-    for spec in &job.models {
-        let design = design::build(table, spec)?;
+    for (k, spec) in job.models.iter().enumerate() {
+        let design = design::build(&table, spec)?;
+        // The columns no later model reads are let go before this model is
+        // fitted and checked.
+        let later = &job.models[k + 1..];
+        table.clear_columns(|name| later.iter().any(|m| m.reads(name)));
         let fit = fit::fit(&spec.name, &design, spec.confidence)?;
         let fit = match spec.standard_errors {
             Some(kind) => fit::with_robust_errors(fit, &design, kind),
@@ -184,7 +188,8 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
     })?;
     timings.push(("read input", clock.elapsed()));
     let clock = Instant::now();
-    let (models, comparisons) = model_results(job, &table, &mut |_, _, _| {})?;
+    let (sheet, rows_read) = (table.sheet.clone(), table.rows.len());
+    let (models, comparisons) = model_results(job, table, &mut |_, _, _| {})?;
     let changes = options
         .previous
         .as_ref()
@@ -200,8 +205,8 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         job_sha256: sha256_hex(job.text.as_bytes()),
         input_file: job.input.display().to_string(),
         input_sha256,
-        sheet: table.sheet.clone(),
-        rows_read: table.rows.len(),
+        sheet,
+        rows_read,
     };
     Ok((collect(job, run, models, comparisons, changes), timings))
 }
@@ -300,7 +305,7 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
     );
     out.push_str(&describe_columns(&table));
     // Everything a run computes, so check meets the errors run would.
-    let (models, _) = model_results(&job, &table, &mut |spec, design, fit| {
+    let (models, _) = model_results(&job, table, &mut |spec, design, fit| {
         describe_model(&mut out, spec, design, fit);
     })?;
     if let Some(previous) = &job.compare_with {

@@ -178,7 +178,7 @@ struct DwTraces {
 /// with no residual degrees of freedom or columns that cannot be scaled.
 fn dw_traces(x: &DesignMatrix) -> Option<DwTraces> {
     let n = x.nrows();
-    let ls = auxiliary_least_squares(x, &DVector::zeros(n));
+    let ls = auxiliary_least_squares(x, &vec![0.0; n]);
     let p = ls.kept.len();
     if p >= n {
         return None;
@@ -281,8 +281,7 @@ fn first_difference_times(b: &DMatrix<f64>) -> DMatrix<f64> {
 /// Householder QR. `None` when the columns cannot be scaled.
 fn column_basis(x: &DesignMatrix) -> Option<DMatrix<f64>> {
     let n = x.nrows();
-    let probe = DVector::zeros(n);
-    let kept = auxiliary_least_squares(x, &probe).kept;
+    let kept = auxiliary_least_squares(x, &vec![0.0; n]).kept;
     if kept.is_empty() {
         return Some(DMatrix::zeros(n, 0));
     }
@@ -477,8 +476,7 @@ pub fn breusch_godfrey(residuals: &[f64], x: &DesignMatrix, order: usize) -> Opt
             })
             .collect(),
     );
-    let e = DVector::from_column_slice(residuals);
-    let ls = auxiliary_least_squares_with(x, &lags, &e);
+    let ls = auxiliary_least_squares_with(x, &lags, residuals);
     let df = ls.kept.iter().filter(|&&j| j >= p).count();
     if df == 0 || ls.kept.len() >= n {
         return None;
@@ -520,7 +518,7 @@ pub fn breusch_pagan(residuals: &[f64], z: &DesignMatrix) -> Option<TestResult> 
     if !is_positive(total) {
         return None;
     }
-    let ls = auxiliary_least_squares(z, &w);
+    let ls = auxiliary_least_squares(z, w.as_slice());
     let k = ls.kept.len();
     if k < 2 || k >= n {
         return None;
@@ -759,7 +757,7 @@ pub fn reset(y: &[f64], x: &DesignMatrix, fitted: &[f64]) -> Option<TestResult> 
             DesignColumn::values(fitted.iter().map(|f| f * f * f).collect()),
         ],
     );
-    let ls = auxiliary_least_squares_with(x, &powers, &DVector::from_column_slice(y));
+    let ls = auxiliary_least_squares_with(x, &powers, y);
     let added: f64 = ls
         .kept
         .iter()

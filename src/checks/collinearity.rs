@@ -16,7 +16,7 @@
 //! * Golub, G. H. & Van Loan, C. F. (2013). *Matrix Computations*, 4th ed.,
 //!   §5.2 (Householder QR) — how the determinants are computed.
 
-use nalgebra::{DMatrix, DVector};
+use nalgebra::DMatrix;
 
 use crate::design::{Design, DesignMatrix, TermKind};
 use crate::fit::auxiliary_least_squares;
@@ -153,7 +153,7 @@ fn centred_factor(design: &Design, kept: &[usize], columns: &[usize]) -> Option<
         .find(|t| t.kind == TermKind::Intercept)
         .is_some_and(|t| kept.first().is_some_and(|j| t.columns.contains(j)));
     if intercept_first {
-        let solved = auxiliary_least_squares(x, &DVector::zeros(x.nrows()));
+        let solved = auxiliary_least_squares(x, &vec![0.0; x.nrows()]);
         if solved.kept == kept && solved.kept.len() == columns.len() + 1 {
             let m = columns.len();
             return Some(solved.r.view((1, 1), (m, m)).into_owned());

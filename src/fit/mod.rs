@@ -131,7 +131,7 @@ const AUXILIARY_BLOCK: usize = 2048;
 /// (Breusch-Godfrey, Breusch-Pagan, RESET, ...): double precision at any
 /// condition number, with aliased columns set aside by the same rule as the
 /// model's own fit.
-pub fn auxiliary_least_squares(x: &DesignMatrix, y: &DVector<f64>) -> Auxiliary {
+pub fn auxiliary_least_squares(x: &DesignMatrix, y: &[f64]) -> Auxiliary {
     auxiliary_least_squares_with(x, &DesignMatrix::new(x.nrows(), Vec::new()), y)
 }
 
@@ -149,7 +149,7 @@ pub fn auxiliary_least_squares(x: &DesignMatrix, y: &DVector<f64>) -> Auxiliary 
 pub fn auxiliary_least_squares_with(
     x: &DesignMatrix,
     extra: &DesignMatrix,
-    y: &DVector<f64>,
+    y: &[f64],
 ) -> Auxiliary {
     let (n, k) = (x.nrows(), x.ncols() + extra.ncols());
     let width = k + 1;
@@ -552,7 +552,7 @@ mod tests {
                     .map(|c| crate::design::DesignColumn::values(c.clone()))
                     .collect(),
             ),
-            &y,
+            y.as_slice(),
         );
         let mut full_x = x.clone().resize_horizontally(5, 0.0);
         for (k, column) in extra.iter().enumerate() {

@@ -298,6 +298,17 @@ impl Table {
         }
     }
 
+    /// Empties the cells of every column for which `wanted` is false,
+    /// keeping its name (for messages), so that its memory is given back
+    /// once no later stage reads it.
+    pub fn clear_columns(&mut self, wanted: impl Fn(&str) -> bool) {
+        for column in &mut self.columns {
+            if !wanted(&column.name) {
+                column.values = Cells::default();
+            }
+        }
+    }
+
     /// Where the data came from, for messages: "sheet 'records' of data.xlsx".
     pub fn place(&self) -> String {
         format!("sheet '{}' of {}", self.sheet, self.path.display())
@@ -703,6 +714,23 @@ mod tests {
         assert_eq!(t.columns.len(), 1);
         assert_eq!(t.rows.len(), 1_048_575);
         assert_eq!(t.columns[0].values.get(1_048_574), Value::Number(2.0));
+    }
+
+    #[test]
+    fn cleared_columns_keep_their_names_and_give_up_their_cells() {
+        let mut t = build(
+            vec![
+                vec![Value::text("y"), Value::text("x")],
+                vec![Value::Number(1.0), Value::Number(2.0)],
+            ],
+            (0, 0),
+            1,
+        )
+        .unwrap();
+        t.clear_columns(|name| name == "y");
+        assert_eq!(t.column("y").unwrap().values.get(0), Value::Number(1.0));
+        assert!(t.column("x").unwrap().values.is_empty());
+        assert_eq!(t.rows.len(), 1);
     }
 
     #[test]
