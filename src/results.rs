@@ -198,9 +198,14 @@ pub fn analyse(
     forecast: Vec<ForecastRow>,
     backtest: Option<Backtest>,
 ) -> ModelResults {
-    let residuals = RowTable::of(design, fit);
-    let normal_plot = normal_plot(residuals.iter().filter_map(|d| d.standardized_residual));
+    // The checks' auxiliary regressions come first, so that their working
+    // columns are let go before the per-row table is copied out.
     let collinearity = collinearity(design, &fit.solution.kept);
+    let mut checks = assumption_checks(design, fit);
+    let residuals = RowTable::of(design, fit);
+    checks.extend([condition_check(fit), influence_check(&residuals)]);
+    checks.extend(collinearity_checks(&collinearity));
+    let normal_plot = normal_plot(residuals.iter().filter_map(|d| d.standardized_residual));
     let baselines = design
         .terms
         .iter()
@@ -273,11 +278,7 @@ pub fn analyse(
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),
-        checks: assumption_checks(design, fit)
-            .into_iter()
-            .chain([condition_check(fit), influence_check(&residuals)])
-            .chain(collinearity_checks(&collinearity))
-            .collect(),
+        checks,
         collinearity,
         residuals,
         normal_plot,
