@@ -6,6 +6,7 @@
 //! untouched and never a half-written one, and neither file is ever held
 //! whole in memory.
 
+mod layout;
 pub mod workbook;
 
 use std::fs::File;
@@ -100,7 +101,9 @@ pub fn write(results: &Results, path: &Path, protected: &[&Path]) -> Result<Writ
             source,
         };
         let mut out = BufWriter::new(file);
-        serde_json::to_writer_pretty(&mut out, results).map_err(json_error)?;
+        let mut serializer =
+            serde_json::Serializer::with_formatter(&mut out, layout::RecordLayout::default());
+        serde::Serialize::serialize(results, &mut serializer).map_err(json_error)?;
         out.write_all(b"\n")
             .and_then(|()| out.flush())
             .map_err(|source| ReportError::Io {
