@@ -170,6 +170,9 @@ pub struct Cells {
     others: Vec<Value>,
     /// The index in `others` of each, by kind and text.
     index: std::collections::HashMap<(u8, Arc<String>), u64>,
+    /// The index of the last such value stored: runs of one value (a
+    /// month's rows) are stored without a lookup.
+    last: Option<u64>,
 }
 
 /// High 16 bits of a word that holds an index into [`Cells::others`]: a
@@ -241,11 +244,15 @@ impl Cells {
             Value::Date(t) => (4, Arc::clone(t)),
             Value::Error(t) => (5, Arc::clone(t)),
         };
+        if let Some(last) = self.last.filter(|&last| self.others[last as usize] == value) {
+            return OTHER_TAG | last;
+        }
         let next = self.others.len() as u64;
         let index = *self.index.entry(key).or_insert(next);
         if index == next {
             self.others.push(value);
         }
+        self.last = Some(index);
         OTHER_TAG | index
     }
 }
@@ -417,9 +424,14 @@ fn read_workbook(path: &Path, sheet: Option<&str>, header_row: u32) -> Result<Ta
             let mut cells = xlsx
                 .worksheet_cells_reader(&name)
                 .map_err(|e| sheet_error(&e))?;
+            let mut last_dates = LastDates::default();
             while let Some(cell) = cells.next_cell().map_err(|e| sheet_error(&e))? {
                 let (row, col) = cell.get_position();
-                builder.push(row, col, value_from_ref(cell.get_value()))?;
+                let value = match cell.get_value() {
+                    DataRef::DateTime(dt) => last_dates.value(col, dt),
+                    other => value_from_ref(other),
+                };
+                builder.push(row, col, value)?;
             }
         }
         other => {
@@ -444,6 +456,29 @@ fn value_from_ref(cell: &DataRef<'_>) -> Value {
         DataRef::DateTime(dt) => date_value(dt),
         DataRef::DateTimeIso(s) | DataRef::DurationIso(s) => Value::Date(s.clone().into()),
         DataRef::Error(e) => Value::Error(e.to_string().into()),
+    }
+}
+
+/// The last date read in each sheet column with its value: a date column
+/// often repeats a date row after row (a month's rows), and forming a
+/// date's text is the slowest step of reading a cell.
+#[derive(Default)]
+struct LastDates(Vec<Option<(calamine::ExcelDateTime, Value)>>);
+
+impl LastDates {
+    fn value(&mut self, col: u32, dt: &calamine::ExcelDateTime) -> Value {
+        let col = col as usize;
+        if self.0.len() <= col {
+            self.0.resize(col + 1, None);
+        }
+        match &self.0[col] {
+            Some((last, value)) if last == dt => value.clone(),
+            _ => {
+                let value = date_value(dt);
+                self.0[col] = Some((*dt, value.clone()));
+                value
+            }
+        }
     }
 }
 
