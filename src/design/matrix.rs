@@ -269,7 +269,7 @@ impl DesignMatrix {
 }
 
 /// Rows a reader takes at a time through [`DesignMatrix::blocks`].
-pub const BLOCK_ROWS: usize = 4096;
+const BLOCK_ROWS: usize = 4096;
 
 #[cfg(test)]
 mod tests {

@@ -26,7 +26,7 @@ use crate::job::{Baseline, CategoricalSpec, ModelSpec};
 use crate::period::{Period, SeasonBy};
 use crate::source::{CellRef, Column, Table, Value};
 
-pub use matrix::{DesignColumn, DesignMatrix, BLOCK_ROWS};
+pub use matrix::{DesignColumn, DesignMatrix};
 pub use time::Timing;
 
 /// An error that stops one model: its columns do not fit its roles.
