@@ -6,8 +6,8 @@
 mod common;
 
 use common::{
-    assert_files, assert_run_and_check_fail, assert_status, assert_stderr_has, read_json, sheetfit,
-    stderr, Cell, Scratch,
+    assert_command_fails, assert_files, assert_run_and_check_fail, assert_status,
+    assert_stderr_has, read_json, sheetfit, stderr, Cell, Scratch,
 };
 use Cell::{Blank, N, T};
 
@@ -625,6 +625,32 @@ fn output_path_that_is_a_folder_is_refused() {
         &["the output path out.xlsx is a folder"],
         &["data.xlsx", "job.toml", "out.xlsx/keep.txt"],
     );
+}
+
+/// `/sys` refuses new files even to the superuser, so this holds however
+/// the tests are run (a folder with its write permission removed does not
+/// stop root).
+#[cfg(target_os = "linux")]
+#[test]
+fn output_folder_without_write_permission_is_refused_and_nothing_is_left() {
+    let s = Scratch::new();
+    s.workbook("data.xlsx", &[("records", sales_rows())]);
+    s.write(
+        "job.toml",
+        &format!(
+            "[output]\nworkbook = \"/sys/sheetfit-report.xlsx\"\n{}",
+            job_with("response = \"y\"\nnumeric = [\"price\"]")
+        ),
+    );
+    // `check` writes nothing, so it cannot know; `run` must refuse.
+    assert_command_fails(
+        &s,
+        "run",
+        1,
+        &["cannot write /sys: permission denied; set `output.workbook` to a folder this user may write to"],
+        &["data.xlsx", "job.toml"],
+    );
+    assert!(!std::path::Path::new("/sys/sheetfit-report.xlsx").exists());
 }
 
 #[test]

@@ -33,7 +33,7 @@ pub enum ReportError {
         path: PathBuf,
     },
     /// A file or folder could not be written.
-    #[error("cannot write {path}: {source}")]
+    #[error("cannot write {path}: {}", write_failure(source))]
     Io {
         /// The file or folder.
         path: PathBuf,
@@ -56,6 +56,17 @@ pub enum ReportError {
         /// The serializer's error.
         source: serde_json::Error,
     },
+}
+
+/// Why a write failed, and what to do for the failures a user can fix.
+fn write_failure(error: &std::io::Error) -> String {
+    use std::io::ErrorKind;
+    match error.kind() {
+        ErrorKind::PermissionDenied => "permission denied; set `output.workbook` to a folder this user may write to, or ask for write access to this one".into(),
+        ErrorKind::ReadOnlyFilesystem => "the disk is read-only; set `output.workbook` to a folder on a writable disk".into(),
+        ErrorKind::StorageFull | ErrorKind::QuotaExceeded => "the disk is full; free some space or set `output.workbook` to another disk".into(),
+        _ => error.to_string(),
+    }
 }
 
 /// The files a run wrote.

@@ -244,7 +244,10 @@ impl Cells {
             Value::Date(t) => (4, Arc::clone(t)),
             Value::Error(t) => (5, Arc::clone(t)),
         };
-        if let Some(last) = self.last.filter(|&last| self.others[last as usize] == value) {
+        if let Some(last) = self
+            .last
+            .filter(|&last| self.others[last as usize] == value)
+        {
             return OTHER_TAG | last;
         }
         let next = self.others.len() as u64;
