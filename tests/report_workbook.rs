@@ -8,6 +8,10 @@ use std::path::PathBuf;
 use calamine::{open_workbook_auto, Data, Range, Reader};
 use serde_json::Value;
 
+use common::grid::{
+    assert_anova, assert_chart_points, assert_coefficients, assert_fit_quality, assert_residuals,
+    Grid,
+};
 use common::{read_json, sheetfit, stderr, Cell, Scratch, SHEETS};
 use Cell::{Blank, N, T};
 
@@ -26,6 +30,10 @@ impl Report {
         let mut wb = open_workbook_auto(&self.workbook).expect("open the report workbook");
         wb.worksheet_range(name)
             .unwrap_or_else(|e| panic!("sheet {name}: {e}"))
+    }
+
+    fn grid(&self, name: &str) -> Grid {
+        Grid::of_range(name, &self.sheet(name))
     }
 
     fn models(&self) -> &Vec<Value> {
@@ -99,40 +107,6 @@ fn text_at(range: &Range<Data>, row: u32, col: u32) -> String {
     }
 }
 
-/// Asserts that the cell holds a number equal to `expected` (a JSON number)
-/// to `TOL` relative; a JSON null must be an empty cell.
-fn assert_number(range: &Range<Data>, row: u32, col: u32, expected: &Value, what: &str) {
-    let found = cell(range, row, col);
-    match expected.as_f64() {
-        None => {
-            assert!(
-                expected.is_null(),
-                "{what}: JSON value {expected} is not a number"
-            );
-            assert_eq!(
-                found,
-                &Data::Empty,
-                "{what}: JSON null should be an empty cell"
-            );
-        }
-        Some(want) => match found {
-            Data::Float(got) => {
-                let err = (got - want).abs() / want.abs().max(f64::MIN_POSITIVE);
-                assert!(
-                    err <= TOL || got == &want,
-                    "{what}: cell ({row}, {col}) holds {got}, JSON has {want}"
-                );
-            }
-            other => panic!("{what}: cell ({row}, {col}) should be a number, found {other:?}"),
-        },
-    }
-}
-
-fn header(range: &Range<Data>) -> Vec<String> {
-    let width = range.end().expect("sheet not empty").1 + 1;
-    (0..width).map(|c| text_at(range, 0, c)).collect()
-}
-
 #[test]
 fn report_sheets_are_named_in_order() {
     let report = run_report();
@@ -143,47 +117,11 @@ fn report_sheets_are_named_in_order() {
 #[test]
 fn coefficients_sheet_holds_the_json_numbers() {
     let report = run_report();
-    let sheet = report.sheet("Coefficients");
-    assert_eq!(
-        header(&sheet),
-        [
-            "Model",
-            "Term",
-            "Estimate",
-            "Standard error",
-            "t",
-            "p-value",
-            "Lower limit",
-            "Upper limit",
-            "Confidence",
-            "Standard errors",
-            "Note"
-        ]
-    );
-    let mut row = 1;
-    let mut terms = Vec::new();
-    for model in report.models() {
-        let name = model["name"].as_str().unwrap();
-        for c in model["coefficients"].as_array().unwrap() {
-            let term = c["term"].as_str().unwrap();
-            terms.push(format!("{name}: {term}"));
-            assert_eq!(text_at(&sheet, row, 0), name);
-            assert_eq!(text_at(&sheet, row, 1), term);
-            for (col, key) in [
-                (2, "estimate"),
-                (3, "std_error"),
-                (4, "t_stat"),
-                (5, "p_value"),
-                (6, "ci_lower"),
-                (7, "ci_upper"),
-            ] {
-                assert_number(&sheet, row, col, &c[key], &format!("{name} {term} {key}"));
-            }
-            assert_number(&sheet, row, 8, &model["confidence"], "confidence");
-            assert_eq!(text_at(&sheet, row, 9), "classical");
-            row += 1;
-        }
-    }
+    let sheet = report.grid("Coefficients");
+    assert_eq!(assert_coefficients(&sheet, &report.json, TOL), 5);
+    let terms: Vec<String> = (1..=5)
+        .map(|row| format!("{}: {}", sheet.text(row, 0), sheet.text(row, 1)))
+        .collect();
     assert_eq!(
         terms,
         [
@@ -194,8 +132,10 @@ fn coefficients_sheet_holds_the_json_numbers() {
             "channel only: channel[shop]",
         ]
     );
-    // Nothing below the last coefficient.
-    assert_eq!(sheet.end().unwrap().0, row - 1);
+    for row in 1..=5 {
+        assert_eq!(sheet.text(row, 9), "classical");
+    }
+    sheet.assert_number(1, 8, &report.models()[0]["confidence"], TOL, "confidence");
     // The invented data has a slope of 0.8 and a shop effect of 4.5.
     let first = &report.models()[0]["coefficients"];
     assert!((first[1]["estimate"].as_f64().unwrap() - 0.8).abs() < 0.1);
@@ -206,58 +146,12 @@ fn coefficients_sheet_holds_the_json_numbers() {
 #[test]
 fn residuals_sheet_has_one_row_per_used_row() {
     let report = run_report();
-    let sheet = report.sheet("Residuals");
-    assert_eq!(
-        header(&sheet),
-        [
-            "Model",
-            "Sheet row",
-            "Actual",
-            "Fitted",
-            "Residual",
-            "Standardized residual",
-            "Leverage",
-            "Cook's distance",
-            "Studentized residual",
-            "DFFITS",
-            "Flags",
-            "Period"
-        ]
-    );
-    let mut row = 1;
+    let rows = assert_residuals(&report.grid("Residuals"), &report.json, TOL);
     for model in report.models() {
-        let name = model["name"].as_str().unwrap();
         let residuals = model["residuals"].as_array().unwrap();
         assert_eq!(residuals.len() as u64, model["n"].as_u64().unwrap());
-        for r in residuals {
-            assert_eq!(text_at(&sheet, row, 0), name);
-            for (col, key) in [
-                (1, "row"),
-                (2, "actual"),
-                (3, "fitted"),
-                (4, "residual"),
-                (5, "standardized_residual"),
-                (6, "leverage"),
-                (7, "cooks_distance"),
-                (8, "studentized_residual"),
-                (9, "dffits"),
-            ] {
-                assert_number(
-                    &sheet,
-                    row,
-                    col,
-                    &r[key],
-                    &format!("{name} row {row} {key}"),
-                );
-            }
-            row += 1;
-        }
     }
-    assert_eq!(
-        sheet.end().unwrap().0,
-        row - 1,
-        "rows below the last residual"
-    );
+    assert_eq!(rows, 11 + 12);
 
     // Sheet row 6 has a blank `visits`: left out of the first model only.
     let rows = |m: &Value| -> Vec<u64> {
@@ -290,14 +184,19 @@ fn overview_shows_cautions_and_fitted_equations() {
 
     let cautions = report.json["cautions"].as_array().unwrap();
     assert!(cautions.len() >= 3, "{cautions:?}");
-    for c in cautions {
-        let c = c.as_str().unwrap();
+    let cautions: Vec<&str> = cautions.iter().map(|c| c.as_str().unwrap()).collect();
+    for c in &cautions {
         assert!(
             c.contains("association") || c.contains("assume") || c.contains("judgement"),
             "unexpected caution {c}"
         );
-        assert!(texts.contains(&c), "caution missing from the overview: {c}");
     }
+    // The cautions follow their heading, one line a row.
+    let heading = texts
+        .iter()
+        .position(|t| *t == "Before you rely on these numbers")
+        .expect("cautions heading");
+    assert_eq!(texts[heading + 1..].join(" "), cautions.join(" "));
 
     for model in report.models() {
         let equation = model["equation"].as_str().unwrap();
@@ -324,34 +223,7 @@ fn overview_shows_cautions_and_fitted_equations() {
 #[test]
 fn fit_quality_sheet_matches_the_json() {
     let report = run_report();
-    let sheet = report.sheet("Fit quality");
-    assert_eq!(
-        header(&sheet)[..4],
-        ["Model", "n", "Model df", "Residual df"]
-    );
-    for (i, model) in report.models().iter().enumerate() {
-        let row = 1 + i as u32;
-        let q = &model["fit"];
-        assert_eq!(text_at(&sheet, row, 0), model["name"].as_str().unwrap());
-        assert_number(&sheet, row, 1, &model["n"], "n");
-        assert_number(&sheet, row, 2, &model["df_model"], "df_model");
-        assert_number(&sheet, row, 3, &model["df_resid"], "df_resid");
-        for (col, key) in [
-            (4, "r_squared"),
-            (5, "adj_r_squared"),
-            (6, "sigma"),
-            (7, "f_stat"),
-            (8, "f_p_value"),
-            (9, "log_likelihood"),
-            (10, "aic"),
-            (11, "bic"),
-            (12, "sse"),
-            (13, "ssr"),
-            (14, "sst"),
-        ] {
-            assert_number(&sheet, row, col, &q[key], key);
-        }
-    }
+    assert_fit_quality(&report.grid("Fit quality"), &report.json, TOL);
     assert_eq!(report.models()[0]["n"], 11);
     assert_eq!(report.models()[1]["n"], 12);
 }
@@ -359,24 +231,12 @@ fn fit_quality_sheet_matches_the_json() {
 #[test]
 fn anova_sheet_lists_both_tables_of_every_model() {
     let report = run_report();
-    let sheet = report.sheet("ANOVA");
-    assert_eq!(header(&sheet)[..3], ["Model", "Test", "Term"]);
-    let mut row = 1;
     for model in report.models() {
         for key in ["anova", "term_tests"] {
-            let table = model[key].as_array().unwrap();
-            assert!(!table.is_empty(), "{key} is empty");
-            for a in table {
-                assert_eq!(text_at(&sheet, row, 0), model["name"].as_str().unwrap());
-                assert_eq!(text_at(&sheet, row, 2), a["term"].as_str().unwrap());
-                assert_number(&sheet, row, 3, &a["df"], "df");
-                assert_number(&sheet, row, 4, &a["sum_sq"], "sum_sq");
-                assert_number(&sheet, row, 7, &a["p_value"], "p_value");
-                row += 1;
-            }
+            assert!(!model[key].as_array().unwrap().is_empty(), "{key} is empty");
         }
     }
-    assert_eq!(sheet.end().unwrap().0, row - 1);
+    assert_anova(&report.grid("ANOVA"), &report.json, TOL);
 }
 
 /// Entry names from the zip central directory of `bytes`, which stores
@@ -432,23 +292,10 @@ fn workbook_holds_two_chart_parts_per_model() {
 #[test]
 fn chart_points_of_a_small_model_are_all_its_rows() {
     let report = run_report();
-    let sheet = report.sheet("Chart points");
     assert_eq!(
-        header(&sheet),
-        ["Model", "Sheet row", "Actual", "Fitted", "Residual"]
+        assert_chart_points(&report.grid("Chart points"), &report.json, TOL),
+        11 + 12
     );
-    let mut row = 1;
-    for model in report.models() {
-        let name = model["name"].as_str().unwrap();
-        for r in model["residuals"].as_array().unwrap() {
-            assert_eq!(text_at(&sheet, row, 0), name);
-            for (col, key) in [(1, "row"), (2, "actual"), (3, "fitted"), (4, "residual")] {
-                assert_number(&sheet, row, col, &r[key], &format!("{name} {key}"));
-            }
-            row += 1;
-        }
-    }
-    assert_eq!(sheet.height() as u32, row, "no rows beyond the residuals");
 }
 
 #[test]

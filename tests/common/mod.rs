@@ -7,6 +7,8 @@ use std::process::{Command, Output};
 
 use rust_xlsxwriter::Workbook;
 
+pub mod grid;
+
 /// The sheets of a report without a comparison, in order.
 pub const SHEETS: [&str; 14] = [
     "Overview",

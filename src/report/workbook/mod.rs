@@ -71,7 +71,9 @@ enum Cell<'a> {
 enum Style {
     /// Estimates and sums: four decimals, scientific when very small or large.
     Value,
-    /// p-values: four decimals, "<0.0001" below that.
+    /// p-values: four decimals, scientific below 0.0001 (a plain format
+    /// per cell rather than a conditional one, which not every spreadsheet
+    /// program renders cleanly).
     PValue,
     /// Shares such as R²: four decimals.
     Ratio,
@@ -98,6 +100,7 @@ struct Formats {
     fixed: Format,
     scientific: Format,
     p_value: Format,
+    tiny_p_value: Format,
     ratio: Format,
     count: Format,
     date: Format,
@@ -113,7 +116,8 @@ impl Formats {
         Formats {
             fixed: Format::new().set_num_format("#,##0.0000"),
             scientific: Format::new().set_num_format("0.0000E+00"),
-            p_value: Format::new().set_num_format("[<0.0001]\"<0.0001\";0.0000"),
+            p_value: Format::new().set_num_format("0.0000"),
+            tiny_p_value: Format::new().set_num_format("0.00E+00"),
             ratio: Format::new().set_num_format("0.0000"),
             count: Format::new().set_num_format("0"),
             date: Format::new().set_num_format("yyyy-mm-dd"),
@@ -140,6 +144,7 @@ impl Formats {
     fn for_number(&self, x: f64, style: Style) -> &Format {
         match style {
             Style::Value if x != 0.0 && !(1e-4..1e10).contains(&x.abs()) => &self.scientific,
+            Style::PValue if x < 1e-4 => &self.tiny_p_value,
             style => self.usual(style),
         }
     }
@@ -571,12 +576,38 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
 
     r += 2;
     sheet.write_string_with_format(r, 0, "Before you rely on these numbers", &f.heading)?;
+    // One line a row, running across the empty cells to the right: merged
+    // cells with wrapped text are not drawn alike by every program.
     for caution in &results.cautions {
-        r += 1;
-        sheet.merge_range(r, 0, r, 6, caution, &f.wrap)?;
-        sheet.set_row_height(r, 32)?;
+        for line in lines(caution, CAUTION_LINE) {
+            r += 1;
+            sheet.write_string(r, 0, line)?;
+        }
     }
     Ok(())
+}
+
+/// Characters a caution line holds: about the width of the overview's
+/// first seven columns.
+const CAUTION_LINE: usize = 110;
+
+/// `text` broken at spaces into lines of at most `width` characters (a
+/// longer word gets a line of its own).
+fn lines(text: &str, width: usize) -> Vec<&str> {
+    let mut out = Vec::new();
+    let mut start = 0;
+    let mut end = 0;
+    for (at, _) in text.match_indices(' ').chain([(text.len(), "")]) {
+        if text[start..at].chars().count() > width && end > start {
+            out.push(&text[start..end]);
+            start = end + 1;
+        }
+        end = at;
+    }
+    if start < text.len() {
+        out.push(&text[start..]);
+    }
+    out
 }
 
 /// Plain sentences on how a model was set up: baselines, aliased terms,
@@ -1150,6 +1181,23 @@ fn charts(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn cautions_break_at_spaces_within_the_line_width() {
+        assert_eq!(
+            lines("one two three four", 9),
+            vec!["one two", "three", "four"]
+        );
+        assert_eq!(lines("short", 9), vec!["short"]);
+        assert_eq!(
+            lines("a longerthanwidth b", 5),
+            vec!["a", "longerthanwidth", "b"]
+        );
+        let caution = "A regression shows association between the response and the predictors in this data, not that one causes the other.";
+        let broken = lines(caution, CAUTION_LINE);
+        assert!(broken.iter().all(|l| l.chars().count() <= CAUTION_LINE));
+        assert_eq!(broken.join(" "), caution);
+    }
 
     #[test]
     fn residual_rows_continue_on_numbered_sheets() {

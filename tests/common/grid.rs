@@ -1,0 +1,410 @@
+//! A report sheet as some reader saw it (calamine, or a spreadsheet
+//! program's CSV export), and the checks that its numbers are the numbers
+//! of the results JSON. The same checks run on every reader, each with the
+//! tolerance its digits allow.
+
+use std::path::Path;
+
+use calamine::{Data, Range};
+use serde_json::Value;
+
+/// One cell as read back.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Seen {
+    /// Nothing in the cell.
+    Empty,
+    /// A number.
+    Number(f64),
+    /// Anything else, as text.
+    Text(String),
+}
+
+/// A sheet's cells from its top-left cell A1, row by row.
+#[derive(Debug, Clone)]
+pub struct Grid {
+    /// Where the sheet came from, for messages.
+    pub source: String,
+    rows: Vec<Vec<Seen>>,
+}
+
+impl Grid {
+    /// A sheet read by calamine.
+    pub fn of_range(source: &str, range: &Range<Data>) -> Grid {
+        let (top, left) = range.start().unwrap_or((0, 0));
+        let mut rows = vec![Vec::new(); top as usize];
+        for row in range.rows() {
+            let mut cells = vec![Seen::Empty; left as usize];
+            cells.extend(row.iter().map(|cell| match cell {
+                Data::Empty => Seen::Empty,
+                Data::Float(x) => Seen::Number(*x),
+                Data::Int(i) => Seen::Number(*i as f64),
+                other => Seen::Text(other.to_string()),
+            }));
+            rows.push(cells);
+        }
+        Grid {
+            source: source.to_string(),
+            rows,
+        }
+    }
+
+    /// A sheet exported as CSV: a field that reads as a number is one.
+    pub fn of_csv(path: &Path) -> Grid {
+        let mut reader = csv::ReaderBuilder::new()
+            .has_headers(false)
+            .flexible(true)
+            .from_path(path)
+            .unwrap_or_else(|e| panic!("read {}: {e}", path.display()));
+        let rows = reader
+            .records()
+            .map(|record| {
+                record
+                    .unwrap_or_else(|e| panic!("read {}: {e}", path.display()))
+                    .iter()
+                    .map(|field| match field.parse::<f64>() {
+                        _ if field.is_empty() => Seen::Empty,
+                        Ok(x) => Seen::Number(x),
+                        Err(_) => Seen::Text(field.to_string()),
+                    })
+                    .collect()
+            })
+            .collect();
+        Grid {
+            source: path.display().to_string(),
+            rows,
+        }
+    }
+
+    /// Rows down to the last one with a cell in it.
+    pub fn height(&self) -> usize {
+        self.rows
+            .iter()
+            .rposition(|r| r.iter().any(|c| *c != Seen::Empty))
+            .map_or(0, |last| last + 1)
+    }
+
+    /// The cell at zero-based (row, col).
+    pub fn at(&self, row: usize, col: usize) -> &Seen {
+        self.rows
+            .get(row)
+            .and_then(|r| r.get(col))
+            .unwrap_or(&Seen::Empty)
+    }
+
+    /// The text at (row, col); a number there fails the test.
+    pub fn text(&self, row: usize, col: usize) -> String {
+        match self.at(row, col) {
+            Seen::Text(s) => s.clone(),
+            Seen::Empty => String::new(),
+            Seen::Number(x) => panic!(
+                "{}: cell ({row}, {col}) should be text, found the number {x}",
+                self.source
+            ),
+        }
+    }
+
+    /// The header row.
+    pub fn header(&self) -> Vec<String> {
+        let width = self.rows.first().map_or(0, Vec::len);
+        (0..width).map(|c| self.text(0, c)).collect()
+    }
+
+    /// Asserts that (row, col) holds `expected` (a JSON number) to `tol`
+    /// relative, or is empty where the JSON has null.
+    pub fn assert_number(&self, row: usize, col: usize, expected: &Value, tol: f64, what: &str) {
+        let found = self.at(row, col);
+        match expected.as_f64() {
+            None => {
+                assert!(
+                    expected.is_null(),
+                    "{what}: JSON value {expected} is not a number"
+                );
+                assert_eq!(
+                    found,
+                    &Seen::Empty,
+                    "{}: {what}: JSON null should be an empty cell",
+                    self.source
+                );
+            }
+            Some(want) => match found {
+                Seen::Number(got) => {
+                    let err = (got - want).abs() / want.abs().max(f64::MIN_POSITIVE);
+                    assert!(
+                        err <= tol || *got == want,
+                        "{}: {what}: cell ({row}, {col}) holds {got}, JSON has {want}",
+                        self.source
+                    );
+                }
+                other => panic!(
+                    "{}: {what}: cell ({row}, {col}) should be a number, found {other:?}",
+                    self.source
+                ),
+            },
+        }
+    }
+}
+
+/// The models of a results JSON.
+fn models(json: &Value) -> &[Value] {
+    json["models"].as_array().expect("models array")
+}
+
+/// Checks one row of `grid` per item of each model's `list`: the model's
+/// name in the first column, `texts` (column, key) as text and `numbers`
+/// (column, key) to `tol`; nothing below the last row. Returns the rows
+/// checked.
+fn assert_rows(
+    grid: &Grid,
+    json: &Value,
+    list: &str,
+    texts: &[(usize, &str)],
+    numbers: &[(usize, &str)],
+    tol: f64,
+) -> usize {
+    let mut row = 1;
+    for model in models(json) {
+        let name = model["name"].as_str().expect("model name");
+        for item in model[list].as_array().into_iter().flatten() {
+            assert_eq!(grid.text(row, 0), name, "{}: row {row}", grid.source);
+            for &(col, key) in texts {
+                assert_eq!(
+                    grid.text(row, col),
+                    item[key].as_str().unwrap_or_default(),
+                    "{}: {name} {list} {key}",
+                    grid.source
+                );
+            }
+            for &(col, key) in numbers {
+                let what = format!("{name} {list} row {row} {key}");
+                grid.assert_number(row, col, &item[key], tol, &what);
+            }
+            row += 1;
+        }
+    }
+    assert_eq!(
+        grid.height(),
+        row,
+        "{}: rows beyond the {list}",
+        grid.source
+    );
+    row - 1
+}
+
+/// The Coefficients sheet against every model's coefficients.
+pub fn assert_coefficients(grid: &Grid, json: &Value, tol: f64) -> usize {
+    assert_eq!(
+        grid.header(),
+        [
+            "Model",
+            "Term",
+            "Estimate",
+            "Standard error",
+            "t",
+            "p-value",
+            "Lower limit",
+            "Upper limit",
+            "Confidence",
+            "Standard errors",
+            "Note"
+        ],
+        "{}",
+        grid.source
+    );
+    assert_rows(
+        grid,
+        json,
+        "coefficients",
+        &[(1, "term")],
+        &[
+            (2, "estimate"),
+            (3, "std_error"),
+            (4, "t_stat"),
+            (5, "p_value"),
+            (6, "ci_lower"),
+            (7, "ci_upper"),
+        ],
+        tol,
+    )
+}
+
+/// The Residuals sheet against every model's residual rows (all of them
+/// fit on the one sheet in the reports the tests write).
+pub fn assert_residuals(grid: &Grid, json: &Value, tol: f64) -> usize {
+    assert_eq!(
+        grid.header(),
+        [
+            "Model",
+            "Sheet row",
+            "Actual",
+            "Fitted",
+            "Residual",
+            "Standardized residual",
+            "Leverage",
+            "Cook's distance",
+            "Studentized residual",
+            "DFFITS",
+            "Flags",
+            "Period"
+        ],
+        "{}",
+        grid.source
+    );
+    assert_rows(
+        grid,
+        json,
+        "residuals",
+        &[],
+        &[
+            (1, "row"),
+            (2, "actual"),
+            (3, "fitted"),
+            (4, "residual"),
+            (5, "standardized_residual"),
+            (6, "leverage"),
+            (7, "cooks_distance"),
+            (8, "studentized_residual"),
+            (9, "dffits"),
+        ],
+        tol,
+    )
+}
+
+/// The Chart points sheet of reports small enough to plot every row.
+pub fn assert_chart_points(grid: &Grid, json: &Value, tol: f64) -> usize {
+    assert_eq!(
+        grid.header(),
+        ["Model", "Sheet row", "Actual", "Fitted", "Residual"],
+        "{}",
+        grid.source
+    );
+    assert_rows(
+        grid,
+        json,
+        "residuals",
+        &[],
+        &[(1, "row"), (2, "actual"), (3, "fitted"), (4, "residual")],
+        tol,
+    )
+}
+
+/// The Checks sheet against every model's checks.
+pub fn assert_checks(grid: &Grid, json: &Value, tol: f64) -> usize {
+    assert_eq!(
+        grid.header()[..4],
+        ["Model", "Check", "Statistic", "p-value"],
+        "{}",
+        grid.source
+    );
+    assert_rows(
+        grid,
+        json,
+        "checks",
+        &[(1, "name")],
+        &[(2, "statistic"), (3, "p_value")],
+        tol,
+    )
+}
+
+/// The Forecast sheet against every model's forecast rows.
+pub fn assert_forecast(grid: &Grid, json: &Value, tol: f64) -> usize {
+    assert_eq!(
+        grid.header()[..9],
+        [
+            "Model",
+            "Period",
+            "Period start",
+            "Trend index",
+            "Estimate",
+            "Mean lower",
+            "Mean upper",
+            "Prediction lower",
+            "Prediction upper"
+        ],
+        "{}",
+        grid.source
+    );
+    assert_rows(
+        grid,
+        json,
+        "forecast",
+        &[],
+        &[
+            (4, "estimate"),
+            (5, "mean_lower"),
+            (6, "mean_upper"),
+            (7, "pred_lower"),
+            (8, "pred_upper"),
+        ],
+        tol,
+    )
+}
+
+/// The Fit quality sheet: one row per model.
+pub fn assert_fit_quality(grid: &Grid, json: &Value, tol: f64) {
+    assert_eq!(
+        grid.header()[..4],
+        ["Model", "n", "Model df", "Residual df"],
+        "{}",
+        grid.source
+    );
+    for (i, model) in models(json).iter().enumerate() {
+        let row = 1 + i;
+        let q = &model["fit"];
+        assert_eq!(
+            grid.text(row, 0),
+            model["name"].as_str().unwrap_or_default()
+        );
+        for (col, value, key) in [
+            (1, &model["n"], "n"),
+            (2, &model["df_model"], "df_model"),
+            (3, &model["df_resid"], "df_resid"),
+        ] {
+            grid.assert_number(row, col, value, tol, key);
+        }
+        for (col, key) in [
+            (4, "r_squared"),
+            (5, "adj_r_squared"),
+            (6, "sigma"),
+            (7, "f_stat"),
+            (8, "f_p_value"),
+            (9, "log_likelihood"),
+            (10, "aic"),
+            (11, "bic"),
+            (12, "sse"),
+            (13, "ssr"),
+            (14, "sst"),
+        ] {
+            grid.assert_number(row, col, &q[key], tol, key);
+        }
+    }
+    assert_eq!(grid.height(), 1 + models(json).len(), "{}", grid.source);
+}
+
+/// The ANOVA sheet: each model's sequential table, then its each-term-last
+/// tests.
+pub fn assert_anova(grid: &Grid, json: &Value, tol: f64) -> usize {
+    assert_eq!(
+        grid.header()[..3],
+        ["Model", "Test", "Term"],
+        "{}",
+        grid.source
+    );
+    let mut row = 1;
+    for model in models(json) {
+        for key in ["anova", "term_tests"] {
+            for a in model[key].as_array().into_iter().flatten() {
+                assert_eq!(
+                    grid.text(row, 0),
+                    model["name"].as_str().unwrap_or_default()
+                );
+                assert_eq!(grid.text(row, 2), a["term"].as_str().unwrap_or_default());
+                for (col, field) in [(3, "df"), (4, "sum_sq"), (7, "p_value")] {
+                    grid.assert_number(row, col, &a[field], tol, field);
+                }
+                row += 1;
+            }
+        }
+    }
+    assert_eq!(grid.height(), row, "{}: rows beyond the ANOVA", grid.source);
+    row - 1
+}
