@@ -7,7 +7,8 @@ use rust_xlsxwriter::{
 };
 
 use super::{
-    num, opt, text, write_table, Cell, Formats, Style, BACKTEST, BACKTEST_ROWS, CHART_DATA,
+    axis_range, num, opt, text, write_table, Cell, Formats, Style, BACKTEST, BACKTEST_ROWS,
+    CHART_DATA,
 };
 use crate::results::{ModelResults, Results};
 
@@ -191,16 +192,27 @@ pub(super) fn chart_data(
             continue;
         }
         let first = 1 + rows.len() as u32;
-        for h in &m.history {
+        let last_history = m.history.len() - 1;
+        for (i, h) in m.history.iter().enumerate() {
+            // The last period of the history starts the forecast line and a
+            // band of no width at its fitted mean, so both grow out of the
+            // fitted line rather than up from the axis.
+            let start = |value: f64| {
+                if i == last_history {
+                    num(value, Style::Value)
+                } else {
+                    Cell::Empty
+                }
+            };
             rows.push(vec![
                 text(m.name.as_str()),
                 text(h.period.as_str()),
                 date(&h.date),
                 num(h.actual, Style::Value),
                 num(h.fitted, Style::Value),
-                Cell::Empty,
-                Cell::Empty,
-                Cell::Empty,
+                start(h.fitted),
+                start(h.fitted),
+                start(0.0),
             ]);
         }
         for r in &m.forecast {
@@ -306,7 +318,16 @@ pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
         .set_name("Period")
         .set_date_axis(true)
         .set_num_format("mmm yyyy");
-    band.y_axis().set_name(m.response.as_str());
+    let shown = m
+        .history
+        .iter()
+        .flat_map(|h| [h.actual, h.fitted])
+        .chain(m.forecast.iter().flat_map(|r| [r.pred_lower, r.pred_upper]));
+    let (low, high) = axis_range(shown);
+    band.y_axis()
+        .set_name(m.response.as_str())
+        .set_min(low)
+        .set_max(high);
     band.legend().delete_entries(&[0]);
     band.set_width(760).set_height(400);
     band

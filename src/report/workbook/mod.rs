@@ -1116,10 +1116,16 @@ fn charts(
     history: &[forecast::ChartBlock],
     normal: &[Span],
 ) -> Result<(), XlsxError> {
-    // Printed (or converted to PDF) one page wide, in landscape.
+    // Printed (or converted to PDF) one page wide, in landscape, three
+    // models' charts a page so that no chart is cut by a page break.
     sheet.set_landscape().set_print_fit_to_pages(1, 0);
+    let breaks: Vec<u32> = (CHART_ROWS_A_PAGE..results.models.len())
+        .step_by(CHART_ROWS_A_PAGE)
+        .map(|k| k as u32 * CHART_ROW_HEIGHT)
+        .collect();
+    sheet.set_page_breaks(&breaks)?;
     for (k, (m, &(span, shown))) in results.models.iter().zip(points).enumerate() {
-        let top = k as u32 * 22;
+        let top = k as u32 * CHART_ROW_HEIGHT;
         let fitted = (CHART_POINTS, span.first, FITTED_COL, span.last, FITTED_COL);
         let sample = if shown < m.residuals.len() {
             format!(" ({shown} of {} rows)", m.residuals.len())
@@ -1154,12 +1160,16 @@ fn charts(
             Some(t) => format!("{t}({})", m.response),
             None => m.response.clone(),
         };
-        let actual = scatter(
+        let mut actual = scatter(
             format!("{}: actual against fitted {scale}", m.name),
             format!("Fitted {scale}"),
             format!("Actual {scale}"),
             ACTUAL_COL,
         );
+        // One range on both axes, so that a good fit lies along the diagonal.
+        let (low, high) = axis_range(m.residuals.iter().flat_map(|r| [r.actual, r.fitted]));
+        actual.x_axis().set_min(low).set_max(high);
+        actual.y_axis().set_min(low).set_max(high);
         let resid = scatter(
             format!("{}: residuals against fitted values", m.name),
             format!("Fitted {scale}"),
@@ -1178,9 +1188,58 @@ fn charts(
     Ok(())
 }
 
+/// Sheet rows from one model's charts to the next's on the Charts sheet.
+const CHART_ROW_HEIGHT: u32 = 22;
+
+/// Models whose charts share a printed page.
+const CHART_ROWS_A_PAGE: usize = 3;
+
+/// An axis range that holds every finite value of `values`, widened by a
+/// twentieth of their spread on each side and rounded out to a step of 1,
+/// 2 or 5 times a power of ten (a tenth of the spread or less): a chart of
+/// values from 103 to 128 runs from 100 to 130, not from 0.
+fn axis_range(values: impl Iterator<Item = f64>) -> (f64, f64) {
+    let (low, high) = values
+        .filter(|v| v.is_finite())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+            (lo.min(v), hi.max(v))
+        });
+    if low > high {
+        return (0.0, 1.0);
+    }
+    let spread = if high > low {
+        high - low
+    } else {
+        low.abs().max(1.0)
+    };
+    let (low, high) = (low - spread / 20.0, high + spread / 20.0);
+    let magnitude = 10f64.powf((spread / 10.0).log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .into_iter()
+        .map(|m| m * magnitude)
+        .find(|s| (high - low) / s <= 10.0)
+        .unwrap_or(10.0 * magnitude);
+    ((low / step).floor() * step, (high / step).ceil() * step)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn axis_ranges_hug_the_values_at_round_numbers() {
+        assert_eq!(axis_range([103.0, 128.0].into_iter()), (100.0, 130.0));
+        assert_eq!(axis_range([-12.5, 17.3].into_iter()), (-15.0, 20.0));
+        let (low, high) = axis_range([0.52, 0.58].into_iter());
+        assert!(
+            (low - 0.51).abs() < 1e-12 && (high - 0.59).abs() < 1e-12,
+            "{low} {high}"
+        );
+        // One value: a range around it; none: a unit range.
+        let (low, high) = axis_range([5.0].into_iter());
+        assert!(low < 5.0 && high > 5.0);
+        assert_eq!(axis_range([f64::NAN].into_iter()), (0.0, 1.0));
+    }
 
     #[test]
     fn cautions_break_at_spaces_within_the_line_width() {
