@@ -88,14 +88,17 @@ fn main() -> Result<(), Box<dyn Error>> {
             prefix.as_os_str(),
         ],
     )?;
-    let mut pages: Vec<PathBuf> = std::fs::read_dir(&out)?
+    let pages = std::fs::read_dir(&out)?
         .filter_map(|e| e.ok().map(|e| e.path()))
         .filter(|p| p.extension().is_some_and(|e| e == "png"))
-        .collect();
-    pages.sort();
-    println!("{} pages of {}:", pages.len(), report.display());
-    for page in pages {
-        println!("  {}", page.display());
+        .count();
+    if pages == 0 {
+        return Err(format!("pdftoppm wrote no page from {}", pdf.display()).into());
     }
+    println!(
+        "{} rendered: {pages} pages as {}/page-N.png (the charts are on the last pages)",
+        report.display(),
+        out.display()
+    );
     Ok(())
 }
