@@ -306,13 +306,58 @@ fn residual_range_has_a_defined_name() {
         .iter()
         .map(|m| m["residuals"].as_array().unwrap().len())
         .sum();
-    let file = std::fs::File::open(&report.workbook).unwrap();
-    let mut zip = zip::ZipArchive::new(file).expect("the report is a zip");
-    let mut xml = String::new();
-    std::io::Read::read_to_string(&mut zip.by_name("xl/workbook.xml").unwrap(), &mut xml).unwrap();
+    let xml = zip_text(&report, "xl/workbook.xml");
     let expected = format!(
         "<definedName name=\"Residual_table\">Residuals!$A$1:$L${}</definedName>",
         rows + 1
     );
     assert!(xml.contains(&expected), "{expected} not in {xml}");
+}
+
+/// The text of the zip entry `name` of the report.
+fn zip_text(report: &Report, name: &str) -> String {
+    let file = std::fs::File::open(&report.workbook).unwrap();
+    let mut zip = zip::ZipArchive::new(file).expect("the report is a zip");
+    let mut xml = String::new();
+    std::io::Read::read_to_string(&mut zip.by_name(name).unwrap(), &mut xml).unwrap();
+    xml
+}
+
+#[test]
+fn document_properties_name_the_job_the_tool_and_the_run_time() {
+    let report = run_report();
+    let core = zip_text(&report, "docProps/core.xml");
+    let run = &report.json["run"];
+    for part in [
+        "<dc:title>Weekly sales</dc:title>".to_string(),
+        "<dc:subject>Linear regression report</dc:subject>".to_string(),
+        format!("<dc:creator>{}</dc:creator>", run["tool"].as_str().unwrap()),
+        format!(
+            "<dcterms:created xsi:type=\"dcterms:W3CDTF\">{}</dcterms:created>",
+            run["run_time"].as_str().unwrap()
+        ),
+    ] {
+        assert!(core.contains(&part), "{part} not in {core}");
+    }
+    assert!(run["tool"].as_str().unwrap().starts_with("sheetfit "));
+}
+
+#[test]
+fn table_sheets_keep_their_header_row_in_view() {
+    let report = run_report();
+    let workbook = zip_text(&report, "xl/workbook.xml");
+    for (k, sheet) in SHEETS.iter().enumerate() {
+        if matches!(
+            *sheet,
+            "Overview" | "Charts" | "Forecast" | "Back-test" | "Back-test rows" | "Chart data"
+        ) {
+            continue;
+        }
+        assert!(workbook.contains(&format!("name=\"{sheet}\" sheetId=\"{}\"", k + 1)));
+        let xml = zip_text(&report, &format!("xl/worksheets/sheet{}.xml", k + 1));
+        assert!(
+            xml.contains("<pane ySplit=\"1\" topLeftCell=\"A2\" activePane=\"bottomLeft\" state=\"frozen\"/>"),
+            "{sheet}: header row not frozen"
+        );
+    }
 }
