@@ -153,9 +153,13 @@ impl Grid {
 }
 
 /// A number as a cell shows it, with half the step of its last digit:
-/// thousands separators dropped, a mantissa's decimals and an exponent
-/// read. `None` for text that is not a number.
+/// thousands separators dropped, a mantissa's decimals, an exponent and a
+/// percent sign read. `None` for text that is not a number.
 fn shown_number(field: &str) -> Option<(f64, f64)> {
+    if let Some(percent) = field.strip_suffix('%') {
+        let (value, half_step) = shown_number(percent)?;
+        return Some((value / 100.0, half_step / 100.0));
+    }
     let plain = field.replace(',', "");
     let value: f64 = plain.parse().ok()?;
     let (mantissa, exponent) = match plain.split_once(['E', 'e']) {

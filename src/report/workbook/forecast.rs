@@ -69,7 +69,7 @@ pub(super) fn forecast_sheet(
                     num(r.pred_lower, Style::Value),
                     num(r.pred_upper, Style::Value),
                     opt(r.smeared_mean, Style::Value),
-                    num(m.confidence, Style::Ratio),
+                    num(m.confidence, Style::Share),
                     text(
                         r.inputs
                             .iter()
@@ -120,8 +120,8 @@ pub(super) fn backtest_sheets(
                 num(a.mae, Style::Value),
                 num(a.rmse, Style::Value),
                 opt(a.mape, Style::Value),
-                num(a.coverage, Style::Ratio),
-                num(m.confidence, Style::Ratio),
+                num(a.coverage, Style::Share),
+                num(m.confidence, Style::Share),
             ]);
             for p in &a.points {
                 points.push(vec![

@@ -77,6 +77,9 @@ enum Style {
     PValue,
     /// Shares such as R²: four decimals.
     Ratio,
+    /// Levels and shares read as percentages (a 95% interval, 93.8% of
+    /// the rows inside it): one decimal and a percent sign.
+    Share,
     /// Counts and row numbers.
     Count,
 }
@@ -102,6 +105,7 @@ struct Formats {
     p_value: Format,
     tiny_p_value: Format,
     ratio: Format,
+    share: Format,
     count: Format,
     date: Format,
     title: Format,
@@ -119,6 +123,7 @@ impl Formats {
             p_value: Format::new().set_num_format("0.0000"),
             tiny_p_value: Format::new().set_num_format("0.00E+00"),
             ratio: Format::new().set_num_format("0.0000"),
+            share: Format::new().set_num_format("0.0%"),
             count: Format::new().set_num_format("0"),
             date: Format::new().set_num_format("yyyy-mm-dd"),
             title: Format::new().set_bold().set_font_size(16),
@@ -137,6 +142,7 @@ impl Formats {
             Style::Value => &self.fixed,
             Style::PValue => &self.p_value,
             Style::Ratio => &self.ratio,
+            Style::Share => &self.share,
             Style::Count => &self.count,
         }
     }
@@ -494,7 +500,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
         }),
         ("AIC (lower is better)", |m| num(m.fit.aic, Style::Value)),
         ("BIC (lower is better)", |m| num(m.fit.bic, Style::Value)),
-        ("Confidence level", |m| num(m.confidence, Style::Ratio)),
+        ("Confidence level", |m| num(m.confidence, Style::Share)),
         ("Condition number", |m| {
             num(m.fit.condition_number, Style::Value)
         }),
@@ -697,7 +703,7 @@ fn coefficients(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result
                 opt(c.p_value, Style::PValue),
                 num(c.ci_lower, Style::Value),
                 num(c.ci_upper, Style::Value),
-                num(m.confidence, Style::Ratio),
+                num(m.confidence, Style::Share),
                 text(match &m.standard_errors {
                     Some(kind) => format!("{kind} (heteroscedasticity-consistent)"),
                     None => "classical".to_string(),
