@@ -244,6 +244,11 @@ fn write_table_rows<'a, R: AsRef<[Cell<'a>]>>(
         }
     }
     sheet.set_freeze_panes(top + 1, 0)?;
+    // Printed (or turned into a PDF) a page wide, the header on every page.
+    sheet
+        .set_landscape()
+        .set_print_fit_to_pages(1, 0)
+        .set_repeat_rows(top, top)?;
     let mut rows = rows.into_iter().take(count).peekable();
     let mut column_formats: Vec<Option<&Format>> = vec![None; headers.len()];
     if let Some(first) = rows.peek() {
@@ -463,6 +468,9 @@ fn changes_sheets(
 }
 
 fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
+    // Printed in landscape, so the cautions' lines fit a page's width (the
+    // fitted equations run on to the pages beside).
+    sheet.set_landscape();
     sheet.set_column_width(0, 28)?;
     for c in 1..=results.models.len() as u16 {
         sheet.set_column_width(c, 22)?;
