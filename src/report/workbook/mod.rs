@@ -471,7 +471,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
     // Printed in landscape, so the cautions' lines fit a page's width (the
     // fitted equations run on to the pages beside).
     sheet.set_landscape();
-    sheet.set_column_width(0, 28)?;
+    sheet.set_column_width(0, 36)?;
     for c in 1..=results.models.len() as u16 {
         sheet.set_column_width(c, 22)?;
     }
@@ -552,18 +552,14 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
     r += 2;
     sheet.write_string_with_format(r, 0, "Fitted equations", &f.heading)?;
     for m in &results.models {
-        r += 1;
-        sheet.write_string_with_format(r, 0, &m.name, &f.bold)?;
-        sheet.write_string(r, 1, &m.equation)?;
+        r = beside(sheet, f, r, &m.name, &m.equation)?;
     }
 
     r += 2;
     sheet.write_string_with_format(r, 0, "How each model was set up", &f.heading)?;
     for m in &results.models {
         for note in model_notes(m) {
-            r += 1;
-            sheet.write_string_with_format(r, 0, &m.name, &f.bold)?;
-            sheet.write_string(r, 1, note)?;
+            r = beside(sheet, f, r, &m.name, &note)?;
         }
     }
 
@@ -604,6 +600,30 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
 /// Characters a caution line holds: about the width of the overview's
 /// first seven columns.
 const CAUTION_LINE: usize = 110;
+
+/// Writes `words` beside `name` in the rows after `r`, over as many rows as
+/// they need so that a printed page holds them whole; returns the last row.
+fn beside(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    mut r: u32,
+    name: &str,
+    words: &str,
+) -> Result<u32, XlsxError> {
+    for (k, line) in lines(words, BESIDE_LINE).into_iter().enumerate() {
+        r += 1;
+        if k == 0 {
+            sheet.write_string_with_format(r, 0, name, &f.bold)?;
+        }
+        sheet.write_string(r, 1, line)?;
+    }
+    Ok(r)
+}
+
+/// Characters a line beside a model's name holds (an equation, a note):
+/// about the width of the overview's second to fifth columns, what a
+/// landscape page shows beside the first.
+const BESIDE_LINE: usize = 85;
 
 /// `text` broken at spaces into lines of at most `width` characters (a
 /// longer word gets a line of its own).
