@@ -10,9 +10,9 @@ use std::io::{Seek, Write};
 
 use chrono::Datelike;
 use rust_xlsxwriter::{
-    Chart, ChartAxisLabelPosition, ChartFormat, ChartLine, ChartMarker, ChartMarkerType, ChartType,
-    DocProperties, ExcelDateTime, Format, FormatAlign, Table, TableColumn, TableStyle, Workbook,
-    Worksheet, XlsxError,
+    Chart, ChartAxisLabelPosition, ChartFormat, ChartLegendPosition, ChartLine, ChartMarker,
+    ChartMarkerType, ChartType, DocProperties, ExcelDateTime, Format, FormatAlign, Table,
+    TableColumn, TableStyle, Workbook, Worksheet, XlsxError,
 };
 
 use crate::results::{row_ranges, ModelResults, Results};
@@ -1138,7 +1138,8 @@ fn normal_chart(m: &ModelResults, span: Span) -> Chart {
         .set_name("Normal quantile")
         .set_label_position(ChartAxisLabelPosition::Low);
     chart.y_axis().set_name("Standardized residual");
-    chart.legend().set_hidden();
+    // Two series, the points and the line: a legend says which is which.
+    chart.legend().set_position(ChartLegendPosition::Bottom);
     chart.set_width(560).set_height(400);
     chart
 }
