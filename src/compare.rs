@@ -118,13 +118,13 @@ fn pair(small: &Candidate, large: &Candidate) -> Comparison {
                 "'{}' is nested in '{}': the {df1} extra coefficients together matter (p = {})",
                 small.name,
                 large.name,
-                crate::results::significant(p, 2)
+                crate::text::significant(p, 2)
             ),
             Some(p) => format!(
                 "'{}' is nested in '{}': the {df1} extra coefficients add little (p = {}); the smaller model may do",
                 small.name,
                 large.name,
-                crate::results::significant(p, 2)
+                crate::text::significant(p, 2)
             ),
             None => format!("'{}' is nested in '{}'", small.name, large.name),
         };
@@ -149,8 +149,8 @@ fn pair(small: &Candidate, large: &Candidate) -> Comparison {
             None,
             format!(
                 "not nested ({why}): compare by AIC and BIC only (lower is better; AIC differs by {}, BIC by {})",
-                crate::results::significant(aic_difference, 3),
-                crate::results::significant(bic_difference, 3)
+                crate::text::significant(aic_difference, 3),
+                crate::text::significant(bic_difference, 3)
             ),
         )
     };

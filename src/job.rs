@@ -14,12 +14,58 @@ use std::path::{Path, PathBuf};
 use indexmap::IndexMap;
 use serde::Deserialize;
 
-use crate::fit::robust::Robust;
 use crate::period::{Frequency, SeasonBy};
-use crate::source::Limits;
 
 /// The confidence level used for intervals when a model does not set one.
 pub const DEFAULT_CONFIDENCE: f64 = 0.95;
+
+/// Which heteroscedasticity-consistent estimator.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+pub enum Robust {
+    /// HC1: ωᵢ = n/(n − p)·eᵢ², White's HC0 with the degrees-of-freedom
+    /// correction of MacKinnon & White (1985); n rows, p estimable
+    /// coefficients.
+    Hc1,
+    /// HC3: ωᵢ = eᵢ²/(1 − hᵢ)², hᵢ the leverage of row i (MacKinnon & White
+    /// 1985, their jackknife approximation); recommended by Long & Ervin
+    /// (2000), above all for samples under 250 rows.
+    Hc3,
+}
+
+impl Robust {
+    /// The estimator's usual short name, for the report: "HC1" or "HC3".
+    pub fn label(self) -> &'static str {
+        match self {
+            Robust::Hc1 => "HC1",
+            Robust::Hc3 => "HC3",
+        }
+    }
+}
+
+/// The limits of the pre-scan; each can be raised in the job's `[input]`
+/// table (`max_cells`, `max_shared_strings`, `max_uncompressed_mb`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Limits {
+    /// Cells a sheet's declared dimension may span (rows × columns).
+    pub cells: u64,
+    /// Shared strings the workbook may declare.
+    pub shared_strings: u64,
+    /// Total uncompressed size of the zip's parts, in MiB.
+    pub uncompressed_mb: u64,
+}
+
+impl Default for Limits {
+    /// 100 million cells (a full-height sheet of 95 columns), 20 million
+    /// shared strings, 4 GiB uncompressed: far beyond real business
+    /// workbooks, well below what would exhaust a 24 GiB machine.
+    fn default() -> Self {
+        Limits {
+            cells: 100_000_000,
+            shared_strings: 20_000_000,
+            uncompressed_mb: 4096,
+        }
+    }
+}
 
 /// An error in the job file itself: it could not be read, parsed or checked.
 #[derive(Debug, thiserror::Error)]
@@ -434,7 +480,7 @@ fn with_suggestion(message: &str) -> String {
         .step_by(2)
         .map(str::to_string)
         .collect();
-    match crate::design::closest(field, &known) {
+    match crate::suggest::closest(field, &known) {
         Some(best) => format!("{message}\ndid you mean `{best}`?"),
         None => message.to_string(),
     }

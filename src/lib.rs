@@ -3,14 +3,18 @@
 //! The pipeline runs one way, one module per stage:
 //! [`job`] (the checked job file) → [`source`] (the sheet as a typed table) →
 //! [`design`] (response and design matrix per model) → [`fit`] (least squares
-//! and inference) → [`checks`] (ANOVA, influence) → [`results`] (every
-//! reported number, once) → [`report`] (workbook and JSON, written
-//! atomically). [`run_job`] and [`check_job`] drive it for the binary.
+//! and inference) → [`checks`] (ANOVA, influence) → [`compare`] and
+//! [`forecast`] → [`results`] (every reported number, once) → [`report`]
+//! (workbook and JSON, written atomically). Under them sit four foundations
+//! that import nothing from the crate: [`text`], [`suggest`], [`ddouble`] and
+//! [`period`]. A module imports only from modules before it
+//! (tests/module_order.rs). [`run_job`] and [`check_job`] drive it for the
+//! binary.
 #![warn(missing_docs)]
 
-pub mod changes;
 pub mod checks;
 pub mod compare;
+pub mod ddouble;
 pub mod design;
 pub mod fit;
 pub mod forecast;
@@ -19,6 +23,8 @@ pub mod period;
 pub mod report;
 pub mod results;
 pub mod source;
+pub mod suggest;
+pub mod text;
 
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
@@ -28,8 +34,9 @@ use std::time::Instant;
 use sha2::{Digest, Sha256};
 
 use crate::job::Job;
-use crate::results::{analyse, collect, row_ranges, Results, RunStamp};
+use crate::results::{analyse, collect, Results, RunStamp};
 use crate::source::{column_letters, Table, Value};
+use crate::text::row_ranges;
 
 /// Any error that stops a job, by stage.
 #[derive(Debug, thiserror::Error)]
@@ -54,7 +61,7 @@ pub enum Error {
     Report(#[from] report::ReportError),
     /// Last run's results could not be read.
     #[error(transparent)]
-    Changes(#[from] changes::ChangesError),
+    Changes(#[from] results::changes::ChangesError),
     /// The report exists and the run may not replace it.
     #[error("{path} exists; run with --overwrite, or set `overwrite = true` under [output] in the job file, to replace it (or put {{period}} or {{date}} in `output.workbook` to keep every run)")]
     Exists {
@@ -194,7 +201,7 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         .previous
         .as_ref()
         .or(job.compare_with.as_ref())
-        .map(|path| changes::against(path, &models))
+        .map(|path| results::changes::against(path, &models))
         .transpose()?;
     timings.push(("fit and check", clock.elapsed()));
     let run_time = options.run_time.unwrap_or_else(chrono::Utc::now);
@@ -309,7 +316,7 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
         describe_model(&mut out, spec, design, fit);
     })?;
     if let Some(previous) = &job.compare_with {
-        changes::against(previous, &models)?;
+        results::changes::against(previous, &models)?;
     }
     Ok(out)
 }
@@ -373,7 +380,7 @@ fn describe_model(
          condition number {}, {} arithmetic",
         fit.coefficients.len(),
         fit.df_resid,
-        results::significant(fit.quality.condition_number, 4),
+        text::significant(fit.quality.condition_number, 4),
         fit.quality.precision.label()
     );
 }

@@ -17,8 +17,9 @@ use std::path::{Path, PathBuf};
 use serde_json::Value;
 use sheetfit::checks::collinearity::collinearity;
 use sheetfit::design::Design;
-use sheetfit::fit::robust::{robust_covariance, unit_leverage_rows, Robust};
+use sheetfit::fit::robust::{robust_covariance, unit_leverage_rows};
 use sheetfit::fit::{least_squares, LeastSquares};
+use sheetfit::job::Robust;
 
 /// Relative tolerance for the (generalized) variance inflation factors:
 /// both sides compute determinants of the same well-conditioned

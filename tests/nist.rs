@@ -2,7 +2,7 @@
 //! whole path (data in a workbook, a job file, the binary, the results JSON).
 //!
 //! Source of every expected value: the certified values inside the NIST
-//! StRD files in ../shared/reference/nist-strd/ (NIST Statistical Reference
+//! StRD files in tests/data/nist-strd/ (NIST Statistical Reference
 //! Datasets, Linear Least Squares Regression), parsed from the files here,
 //! never retyped. The measure is the log relative error (LRE), the number of
 //! correct significant digits (−log10 of the absolute value where the
@@ -37,11 +37,11 @@ struct Dataset {
     rows: Vec<Vec<f64>>,
 }
 
-/// The StRD files: `SHEETFIT_NIST_DIR` when set, else the project's shared
-/// reference folder beside the checkout.
+/// The StRD files: `SHEETFIT_NIST_DIR` when set, else the copy committed in
+/// tests/data/nist-strd/.
 fn nist_dir() -> PathBuf {
     std::env::var_os("SHEETFIT_NIST_DIR").map_or_else(
-        || PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../shared/reference/nist-strd"),
+        || PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/data/nist-strd"),
         PathBuf::from,
     )
 }
@@ -301,7 +301,7 @@ fn wampler5_meets_certified_values() {
 #[test]
 fn certified_files_are_parsed_completely() {
     // The parser itself, against the counts in the table of
-    // ../shared/reference/nist-strd/README.md (n and p per file).
+    // tests/data/nist-strd/README.md (n and p per file).
     for (name, n, p) in [
         ("Norris", 36, 2),
         ("Pontius", 40, 3),

@@ -304,7 +304,7 @@ pub fn collinearity_checks(terms: &[collinearity::TermCollinearity]) -> Vec<Chec
                 p_value: None,
                 rule: format!(
                     "GVIF^(1/(2 df)) above √{VIF_LIMIT} ≈ {limit:.2}, i.e. a VIF above {VIF_LIMIT} for a one-column term (Fox & Monette 1992; a rule of thumb); here {} on {} df",
-                    crate::results::significant(t.gvif_adjusted, 3),
+                    crate::text::significant(t.gvif_adjusted, 3),
                     t.df
                 ),
                 flagged,
@@ -518,7 +518,7 @@ pub fn influence_check(rows: &RowTable) -> Check {
             format!(
                 "{} rows stand out (sheet rows {}); check them in the source, and refit without them to see how much the estimates move",
                 flagged.len(),
-                crate::results::row_ranges(&flagged)
+                crate::text::row_ranges(&flagged)
             )
         },
     }

@@ -21,10 +21,11 @@ use std::sync::Arc;
 
 use nalgebra::DVector;
 
-use crate::fit::ddouble::DoubleDouble;
+use crate::ddouble::DoubleDouble;
 use crate::job::{Baseline, CategoricalSpec, ModelSpec};
 use crate::period::{Period, SeasonBy};
 use crate::source::{CellRef, Column, Table, Value};
+use crate::suggest::closest;
 
 pub use matrix::{DesignColumn, DesignMatrix};
 pub use time::Timing;
@@ -927,18 +928,6 @@ fn looks_like_a_number(text: &str) -> bool {
         .filter(|c| !matches!(c, ',' | ' ' | '$' | '€' | '£' | '%' | '(' | ')' | '\u{a0}'))
         .collect();
     !stripped.is_empty() && stripped != text && stripped.parse::<f64>().is_ok()
-}
-
-/// The name in `names` closest to `name` by Jaro-Winkler similarity, when it
-/// is close enough (similarity at least 0.8) to be worth suggesting.
-pub fn closest<'a>(name: &str, names: &'a [String]) -> Option<&'a str> {
-    let lower = name.to_lowercase();
-    names
-        .iter()
-        .map(|n| (strsim::jaro_winkler(&lower, &n.to_lowercase()), n))
-        .filter(|(score, _)| *score >= 0.8)
-        .max_by(|a, b| a.0.total_cmp(&b.0))
-        .map(|(_, n)| n.as_str())
 }
 
 #[cfg(test)]

@@ -9,17 +9,17 @@
 //! designs, where the rounding of a power to double precision cannot move
 //! the solution, stay on the fast path.
 
-pub mod ddouble;
 pub mod qr;
 pub mod robust;
 
 use nalgebra::{DMatrix, DVector};
 use statrs::distribution::{Continuous, ContinuousCDF, FisherSnedecor, Normal, StudentsT};
 
-use self::ddouble::DoubleDouble;
 use self::qr::{Columns, Leverage};
-use self::robust::{robust_covariance, Robust};
+use self::robust::robust_covariance;
+use crate::ddouble::DoubleDouble;
 use crate::design::{Design, DesignMatrix};
+use crate::job::Robust;
 
 pub use qr::ALIAS_TOLERANCE;
 
@@ -623,8 +623,8 @@ mod tests {
         }
     }
 
-    // Reference values: scipy 1.17.1 and mpmath at 50 digits, as recorded in
-    // the project's crate notes (../shared/CRATES.md, section 4).
+    // Reference values: scipy 1.17.1, as recorded in
+    // tests/fixtures/distributions.json (tests/reference/make_distribution_reference.py).
     #[test]
     fn t_quantile_matches_reference_values() {
         let q = t_quantile(0.975, 10.0);

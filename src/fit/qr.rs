@@ -15,7 +15,7 @@ use std::ops::{Add, Div, Mul, Neg, Sub};
 
 use nalgebra::{DMatrix, DVector};
 
-use super::ddouble::DoubleDouble;
+use crate::ddouble::DoubleDouble;
 use crate::design::DesignMatrix;
 
 /// A column is aliased when its part orthogonal to the earlier columns is

@@ -23,29 +23,7 @@
 use nalgebra::DMatrix;
 
 use crate::design::DesignMatrix;
-
-/// Which heteroscedasticity-consistent estimator.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
-pub enum Robust {
-    /// HC1: ωᵢ = n/(n − p)·eᵢ², White's HC0 with the degrees-of-freedom
-    /// correction of MacKinnon & White (1985); n rows, p estimable
-    /// coefficients.
-    Hc1,
-    /// HC3: ωᵢ = eᵢ²/(1 − hᵢ)², hᵢ the leverage of row i (MacKinnon & White
-    /// 1985, their jackknife approximation); recommended by Long & Ervin
-    /// (2000), above all for samples under 250 rows.
-    Hc3,
-}
-
-impl Robust {
-    /// The estimator's usual short name, for the report: "HC1" or "HC3".
-    pub fn label(self) -> &'static str {
-        match self {
-            Robust::Hc1 => "HC1",
-            Robust::Hc3 => "HC3",
-        }
-    }
-}
+use crate::job::Robust;
 
 /// Rows whose leverage is within this of 1 are taken to have leverage 1:
 /// leverages are computed to about 10⁻¹⁵, so 1 − hᵢ below 10⁻¹⁰ is rounding,

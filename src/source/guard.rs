@@ -11,30 +11,7 @@
 use std::io::Read;
 use std::path::Path;
 
-/// The limits of the pre-scan; each can be raised in the job's `[input]`
-/// table (`max_cells`, `max_shared_strings`, `max_uncompressed_mb`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub struct Limits {
-    /// Cells a sheet's declared dimension may span (rows × columns).
-    pub cells: u64,
-    /// Shared strings the workbook may declare.
-    pub shared_strings: u64,
-    /// Total uncompressed size of the zip's parts, in MiB.
-    pub uncompressed_mb: u64,
-}
-
-impl Default for Limits {
-    /// 100 million cells (a full-height sheet of 95 columns), 20 million
-    /// shared strings, 4 GiB uncompressed: far beyond real business
-    /// workbooks, well below what would exhaust a 24 GiB machine.
-    fn default() -> Self {
-        Limits {
-            cells: 100_000_000,
-            shared_strings: 20_000_000,
-            uncompressed_mb: 4096,
-        }
-    }
-}
+use crate::job::Limits;
 
 /// Why a workbook was refused, in words; the caller adds the file.
 pub type Refusal = String;

@@ -9,11 +9,11 @@ use std::fmt;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
-mod guard;
-
-pub use guard::Limits;
-
 use calamine::{open_workbook_auto, Data, DataRef, Reader, Sheets};
+
+use crate::job::Limits;
+
+mod guard;
 
 /// An error while opening or reading the input.
 #[derive(Debug, thiserror::Error)]

@@ -3,7 +3,7 @@
 What it produces
 ----------------
 tests/fixtures/nist-condition.json -- for each of the eleven NIST StRD
-linear-regression datasets in ../shared/reference/nist-strd/, the 2-norm
+linear-regression datasets in tests/data/nist-strd/, the 2-norm
 condition number (largest over smallest singular value) of its design
 matrix after each column is scaled to unit Euclidean length, the column of
 ones included when the model has an intercept. This is what sheetfit
@@ -36,7 +36,7 @@ script is kept so the fixture can be audited and regenerated.
 How to rerun
 ------------
 From the project root, with the NIST StRD files in
-../shared/reference/nist-strd/ (or in the folder named by SHEETFIT_NIST_DIR):
+tests/data/nist-strd/ (or in the folder named by SHEETFIT_NIST_DIR):
 
     pip install mpmath
     python3 tests/reference/make_condition_reference.py
@@ -70,7 +70,7 @@ MODELS = {
     "Wampler5": (True, [("x", k) for k in range(1, 6)]),
 }
 
-# Rows per file, from the table in ../shared/reference/nist-strd/README.md.
+# Rows per file, from the table in tests/data/nist-strd/README.md.
 ROWS = {
     "Norris": 36,
     "Pontius": 40,
@@ -90,7 +90,7 @@ def nist_dir():
     env = os.environ.get("SHEETFIT_NIST_DIR")
     if env:
         return env
-    return os.path.join("..", "shared", "reference", "nist-strd")
+    return os.path.join("tests", "data", "nist-strd")
 
 
 def line_range(line):

@@ -15,7 +15,8 @@ use rust_xlsxwriter::{
     TableColumn, TableStyle, Workbook, Worksheet, XlsxError,
 };
 
-use crate::results::{row_ranges, ModelResults, Results};
+use crate::results::{ModelResults, Results};
+use crate::text::row_ranges;
 
 mod forecast;
 
@@ -392,7 +393,7 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
 fn changes_sheets(
     workbook: &mut Workbook,
     f: &Formats,
-    changes: &crate::changes::RunChanges,
+    changes: &crate::results::RunChanges,
 ) -> Result<(), XlsxError> {
     let sheet = workbook.add_worksheet().set_name(CHANGES)?;
     let headers = [

@@ -1,53 +1,21 @@
-//! The results of one job: every number the report shows, computed once.
-//!
-//! [`Results`] is what the report stage lays out in the workbook and what is
-//! serialized, field for field, as the results JSON (see DESIGN.md for the
-//! contract). It is built by [`analyse`] from the job, the table and the
-//! fitted models, and is not changed afterwards.
+//! One model's results: coefficients, tests, checks, per-row diagnostics,
+//! forecast and back-test, as the report shows them.
 
 use serde::Serialize;
 
-use crate::changes::RunChanges;
 use crate::checks::{
     assumption_checks,
     collinearity::{collinearity, TermCollinearity},
     collinearity_checks, condition_check, each_term_last_anova, influence_check, sequential_anova,
     AnovaRow, Check, RowTable,
 };
-use crate::compare::{Comparison, DroppedTerm};
+use crate::compare::DroppedTerm;
 use crate::design::{Design, TermKind};
 use crate::fit::{Coefficient, Fit, FitQuality};
 use crate::forecast::{Backtest, ForecastRow};
-use crate::job::{Baseline, Job, ModelSpec};
+use crate::job::{Baseline, ModelSpec};
 use crate::period::Frequency;
-
-/// The cautions printed on the overview sheet and carried in the JSON.
-pub const CAUTIONS: [&str; 3] = [
-    "A regression shows association between the response and the predictors in this data, not that one causes the other.",
-    "Estimates and any projection from them assume the pattern in the data used here holds; a change in conditions can break it.",
-    "This report supports, but does not replace, the judgement of qualified finance professionals and the organisation's own review and controls; decisions rest with the reader.",
-];
-
-/// Where the numbers came from, so a reader can trace and repeat the run.
-#[derive(Debug, Clone, Serialize)]
-pub struct RunStamp {
-    /// `sheetfit` and its version.
-    pub tool: String,
-    /// Time of the run, UTC, RFC 3339.
-    pub run_time: String,
-    /// The job file as given.
-    pub job_file: String,
-    /// SHA-256 of the job file's text, hex.
-    pub job_sha256: String,
-    /// The input file as resolved from the job.
-    pub input_file: String,
-    /// SHA-256 of the input file's bytes, hex.
-    pub input_sha256: String,
-    /// The sheet read.
-    pub sheet: String,
-    /// Data rows read below the header.
-    pub rows_read: usize,
-}
+use crate::text::significant;
 
 /// How a categorical predictor's baseline was chosen, for the report.
 #[derive(Debug, Clone, Serialize)]
@@ -169,24 +137,6 @@ pub struct ModelResults {
     pub suggested_from: Option<String>,
     /// For a suggested model: the terms dropped, in order.
     pub dropped_terms: Vec<DroppedTerm>,
-}
-
-/// All results of one job.
-#[derive(Debug, Clone, Serialize)]
-pub struct Results {
-    /// The job's title.
-    pub title: String,
-    /// Run stamp and input fingerprint.
-    pub run: RunStamp,
-    /// The cautions shown with the report.
-    pub cautions: Vec<String>,
-    /// One entry per model, in job order, then the suggested models.
-    pub models: Vec<ModelResults>,
-    /// Every pair of models, nested pairs with their partial F test.
-    pub comparisons: Vec<Comparison>,
-    /// What changed since last run, when the job compares with one.
-    #[serde(flatten)]
-    pub changes: Option<RunChanges>,
 }
 
 /// Computes every reported number for one fitted model, with its forecast
@@ -362,24 +312,6 @@ fn history(design: &Design, fit: &Fit) -> Vec<HistoryPoint> {
     out
 }
 
-/// Builds the job's results from its analysed models and their comparisons.
-pub fn collect(
-    job: &Job,
-    run: RunStamp,
-    models: Vec<ModelResults>,
-    comparisons: Vec<Comparison>,
-    changes: Option<RunChanges>,
-) -> Results {
-    Results {
-        title: job.title.clone(),
-        run,
-        cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
-        models,
-        comparisons,
-        changes,
-    }
-}
-
 /// "revenue = 12.3 + 0.0451 × floor_area − 4.2 × region[East]", numbers to
 /// four significant digits.
 pub fn equation(response: &str, coefficients: &[Coefficient]) -> String {
@@ -403,50 +335,6 @@ pub fn equation(response: &str, coefficients: &[Coefficient]) -> String {
         out.push_str(" 0");
     }
     out
-}
-
-/// `x` rounded to `digits` significant digits, in plain or scientific
-/// notation, whichever reads better.
-pub fn significant(x: f64, digits: usize) -> String {
-    if x == 0.0 || !x.is_finite() {
-        return format!("{x}");
-    }
-    let exponent = x.abs().log10().floor() as i32;
-    if !(-4..=9).contains(&exponent) {
-        return format!("{:.*e}", digits.saturating_sub(1), x);
-    }
-    let decimals = (digits as i32 - 1 - exponent).max(0) as usize;
-    format!("{x:.decimals$}")
-}
-
-/// Ranges [`row_ranges`] spells out before it summarises the rest.
-const MAX_RANGES: usize = 30;
-
-/// Sheet rows as compact ranges: `[4, 9, 10, 11, 20]` → "4, 9–11, 20".
-/// Past [`MAX_RANGES`] ranges the rest is counted ("… and 812 more rows"),
-/// so a message stays readable and fits in one cell.
-pub fn row_ranges(rows: &[u32]) -> String {
-    let mut parts = Vec::new();
-    let mut i = 0;
-    while i < rows.len() {
-        if parts.len() == MAX_RANGES {
-            parts.push(format!("… and {} more rows", rows.len() - i));
-            break;
-        }
-        let start = rows[i];
-        let mut end = start;
-        while i + 1 < rows.len() && rows[i + 1] == end + 1 {
-            i += 1;
-            end = rows[i];
-        }
-        parts.push(if start == end {
-            start.to_string()
-        } else {
-            format!("{start}–{end}")
-        });
-        i += 1;
-    }
-    parts.join(", ")
 }
 
 #[cfg(test)]
@@ -483,13 +371,6 @@ mod tests {
     }
 
     #[test]
-    fn significant_switches_to_scientific_for_extremes() {
-        assert_eq!(significant(3.16081871345e-15, 4), "3.161e-15");
-        assert_eq!(significant(1829.15146, 4), "1829");
-        assert_eq!(significant(0.00073206, 4), "0.0007321");
-    }
-
-    #[test]
     fn plotted_ranks_keep_both_tails_and_space_the_middle() {
         assert_eq!(plotted_ranks(5, 10, 2), vec![0, 1, 2, 3, 4]);
         // Two ranks at each end, then 6 spaced 996/6 = 166 apart from rank 2.
@@ -518,15 +399,5 @@ mod tests {
         }
         let sorted: Vec<f64> = plot.iter().map(|p| p.standardized_residual).collect();
         assert_eq!(sorted, vec![-1.0, -0.2, 0.0, 0.3, 2.0]);
-    }
-
-    #[test]
-    fn rows_are_listed_as_ranges() {
-        assert_eq!(row_ranges(&[4, 9, 10, 11, 20]), "4, 9–11, 20");
-        assert_eq!(row_ranges(&[]), "");
-        let every_other: Vec<u32> = (0..100).map(|i| 2 * i).collect();
-        let summary = row_ranges(&every_other);
-        assert!(summary.starts_with("0, 2, 4"), "{summary}");
-        assert!(summary.ends_with("58, … and 70 more rows"), "{summary}");
     }
 }

@@ -9,7 +9,7 @@ use std::path::{Path, PathBuf};
 
 use serde::{Deserialize, Serialize};
 
-use crate::results::ModelResults;
+use super::model::ModelResults;
 
 /// A move in a coefficient is *notable* when it exceeds this many combined
 /// standard errors (the two-sided 5% point of the normal; a rough guide,

@@ -1,0 +1,82 @@
+//! The results of one job: every number the report shows, computed once.
+//!
+//! [`Results`] is what the report stage lays out in the workbook and what is
+//! serialized, field for field, as the results JSON (see DESIGN.md for the
+//! contract). Each model's numbers are computed by [`analyse`] ([`model`]),
+//! the comparison with last run's results by [`changes::against`], and the
+//! whole is put together by [`collect`]; it is not changed afterwards.
+
+use serde::Serialize;
+
+use crate::compare::Comparison;
+use crate::job::Job;
+
+pub mod changes;
+pub mod model;
+
+pub use changes::RunChanges;
+pub use model::{analyse, equation, ModelResults};
+
+/// The cautions printed on the overview sheet and carried in the JSON.
+pub const CAUTIONS: [&str; 3] = [
+    "A regression shows association between the response and the predictors in this data, not that one causes the other.",
+    "Estimates and any projection from them assume the pattern in the data used here holds; a change in conditions can break it.",
+    "This report supports, but does not replace, the judgement of qualified finance professionals and the organisation's own review and controls; decisions rest with the reader.",
+];
+
+/// Where the numbers came from, so a reader can trace and repeat the run.
+#[derive(Debug, Clone, Serialize)]
+pub struct RunStamp {
+    /// `sheetfit` and its version.
+    pub tool: String,
+    /// Time of the run, UTC, RFC 3339.
+    pub run_time: String,
+    /// The job file as given.
+    pub job_file: String,
+    /// SHA-256 of the job file's text, hex.
+    pub job_sha256: String,
+    /// The input file as resolved from the job.
+    pub input_file: String,
+    /// SHA-256 of the input file's bytes, hex.
+    pub input_sha256: String,
+    /// The sheet read.
+    pub sheet: String,
+    /// Data rows read below the header.
+    pub rows_read: usize,
+}
+
+/// All results of one job.
+#[derive(Debug, Clone, Serialize)]
+pub struct Results {
+    /// The job's title.
+    pub title: String,
+    /// Run stamp and input fingerprint.
+    pub run: RunStamp,
+    /// The cautions shown with the report.
+    pub cautions: Vec<String>,
+    /// One entry per model, in job order, then the suggested models.
+    pub models: Vec<ModelResults>,
+    /// Every pair of models, nested pairs with their partial F test.
+    pub comparisons: Vec<Comparison>,
+    /// What changed since last run, when the job compares with one.
+    #[serde(flatten)]
+    pub changes: Option<RunChanges>,
+}
+
+/// Builds the job's results from its analysed models and their comparisons.
+pub fn collect(
+    job: &Job,
+    run: RunStamp,
+    models: Vec<ModelResults>,
+    comparisons: Vec<Comparison>,
+    changes: Option<RunChanges>,
+) -> Results {
+    Results {
+        title: job.title.clone(),
+        run,
+        cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
+        models,
+        comparisons,
+        changes,
+    }
+}
