@@ -62,12 +62,6 @@ pub enum Error {
     /// Last run's results could not be read.
     #[error(transparent)]
     Changes(#[from] results::changes::ChangesError),
-    /// The report exists and the run may not replace it.
-    #[error("{path} exists; run with --overwrite, or set `overwrite = true` under [output] in the job file, to replace it (or put {{period}} or {{date}} in `output.workbook` to keep every run)")]
-    Exists {
-        /// The existing file.
-        path: PathBuf,
-    },
     /// `{period}` in the output path without any periods.
     #[error("`output.workbook` ({path}) uses {{period}}, but no model has a date column (`trend` or `season`)")]
     NoPeriod {
@@ -205,11 +199,16 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         .transpose()?;
     timings.push(("fit and check", clock.elapsed()));
     let run_time = options.run_time.unwrap_or_else(chrono::Utc::now);
+    let tool = format!("sheetfit {}", env!("CARGO_PKG_VERSION"));
+    let run_time = run_time.to_rfc3339_opts(chrono::SecondsFormat::Secs, true);
+    let job_sha256 = sha256_hex(job.text.as_bytes());
+    let compared = changes.as_ref().map(|c| c.previous.as_str()).unwrap_or("");
     let run = RunStamp {
-        tool: format!("sheetfit {}", env!("CARGO_PKG_VERSION")),
-        run_time: run_time.to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
+        run_id: results::run_id(&[&tool, &run_time, &job_sha256, &input_sha256, compared]),
+        tool,
+        run_time,
         job_file: job.path.display().to_string(),
-        job_sha256: sha256_hex(job.text.as_bytes()),
+        job_sha256,
         input_file: job.input.display().to_string(),
         input_sha256,
         sheet,
@@ -272,16 +271,12 @@ pub fn run_job(path: &Path, options: &RunOptions) -> Result<RunReport, Error> {
     let (results, mut timings) = analyse_job(&job, options)?;
     let clock = Instant::now();
     let output = output_path(&job, &results)?;
-    let json = report::json_path(&output);
-    report::check_targets(&output, &[&job.input, &job.path])?;
-    if !(options.overwrite || job.overwrite) {
-        if let Some(existing) = [&output, &json].into_iter().find(|p| p.is_file()) {
-            return Err(Error::Exists {
-                path: existing.clone(),
-            });
-        }
-    }
-    let written = report::write(&results, &output, &[&job.input, &job.path])?;
+    let written = report::write(
+        &results,
+        &output,
+        &[&job.input, &job.path],
+        options.overwrite || job.overwrite,
+    )?;
     timings.push(("write report", clock.elapsed()));
     Ok(RunReport { written, timings })
 }

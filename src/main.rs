@@ -106,6 +106,8 @@ struct Outcome {
     workbook: Option<String>,
     json: Option<String>,
     error: Option<String>,
+    /// What the run repaired of an earlier, interrupted run of its report.
+    note: Option<String>,
     #[serde(skip)]
     code: u8,
     #[serde(skip)]
@@ -156,6 +158,9 @@ fn run(args: &RunArgs) -> u8 {
         bar.finish_and_clear();
     }
     for o in &outcomes {
+        if let Some(note) = &o.note {
+            eprintln!("sheetfit: note: {}: {note}", o.job);
+        }
         if let Some(e) = &o.error {
             eprintln!("sheetfit: error: {e}");
         }
@@ -186,6 +191,7 @@ fn run_one(job: &Path, options: &sheetfit::RunOptions) -> Outcome {
             workbook: Some(report.written.workbook.display().to_string()),
             json: Some(report.written.json.display().to_string()),
             error: None,
+            note: report.written.repaired.clone(),
             code: 0,
             timings: report.timings,
         },
@@ -195,6 +201,7 @@ fn run_one(job: &Path, options: &sheetfit::RunOptions) -> Outcome {
             workbook: None,
             json: None,
             error: Some(e.to_string()),
+            note: None,
             code: exit_code(&e),
             timings: Vec::new(),
         },

@@ -1,7 +1,8 @@
 //! Monthly runs: several jobs in one `run` (a failing job never stops the
 //! others), the run summary, the rules that keep an existing report, the
-//! input workbook and the job file from being written over, what a report
-//! path holds when a run is killed part-way, byte-identical reruns with a
+//! input workbook and the job file from being written over (what a report
+//! pair holds when a run is killed part-way is in report_pair.rs),
+//! byte-identical reruns with a
 //! fixed run time, output path placeholders, and the comparison of a run
 //! with the previous one (the Changes sheet, `changes` and
 //! `forecast_tracking`) on the two-month demo.
@@ -10,12 +11,11 @@ mod common;
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output, Stdio};
-use std::time::{Duration, Instant};
+use std::process::{Command, Output};
+use std::time::Duration;
 
 use calamine::{open_workbook_auto, Data, Range, Reader};
 use serde_json::Value;
-use sha2::{Digest, Sha256};
 
 use common::{read_json, sheetfit, stderr, Cell, Scratch, SHEETS};
 use Cell::{N, S, T};
@@ -84,13 +84,6 @@ fn sheetfit_env(cwd: &Path, args: &[&str], env: &[(&str, &str)]) -> Output {
 
 fn bytes(path: &Path) -> Vec<u8> {
     std::fs::read(path).unwrap_or_else(|e| panic!("read {}: {e}", path.display()))
-}
-
-fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
 }
 
 /// `p` as the process run in `cwd` meant it, made absolute and canonical.
@@ -630,289 +623,6 @@ fn the_job_file_is_never_written_over() {
     let out = sheetfit(&cwd, &["run", "--overwrite", "self.toml"]);
     assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
     assert_eq!(std::fs::read_to_string(&job).unwrap(), text);
-}
-
-// ---------------------------------------------------------------------------
-// d. Killed part-way: the report path holds the old report or a whole new one
-// ---------------------------------------------------------------------------
-
-/// Rows of the big input for the kill test.
-const BIG_ROWS: u32 = 6_000;
-
-/// Writes `y` and `x1` … `x4` for [`BIG_ROWS`] rows.
-fn write_big_input(path: &Path) {
-    let mut wb = rust_xlsxwriter::Workbook::new();
-    let ws = wb.add_worksheet();
-    ws.set_name("data").unwrap();
-    for (c, h) in (0u16..).zip(["y", "x1", "x2", "x3", "x4"]) {
-        ws.write_string(0, c, h).unwrap();
-    }
-    for r in 1..=BIG_ROWS {
-        let t = f64::from(r);
-        let x1 = (t * 0.37).sin() * 10.0;
-        let x2 = (t * 0.011).cos() * 5.0 + 20.0;
-        let x3 = f64::from(r % 97);
-        let x4 = f64::from((r * 7919) % 1013) / 10.0;
-        let noise = ((t * 12.9898).sin() * 43_758.545_3).fract() - 0.5;
-        let y = 3.0 + 2.0 * x1 - 0.5 * x2 + 0.25 * x3 + 0.1 * x4 + noise;
-        for (c, v) in (0u16..).zip([y, x1, x2, x3, x4]) {
-            ws.write_number(r, c, v).unwrap();
-        }
-    }
-    wb.save(path).expect("save the big input");
-}
-
-fn big_job(title: &str) -> String {
-    format!(
-        "title = \"{title}\"\n[input]\nworkbook = \"big.xlsx\"\nsheet = \"data\"\n\
-         [output]\nworkbook = \"out/report.xlsx\"\n\n\
-         [[model]]\nname = \"big\"\nresponse = \"y\"\nnumeric = [\"x1\", \"x2\", \"x3\", \"x4\"]\n"
-    )
-}
-
-/// What a report file held after a kill.
-#[derive(Debug, PartialEq)]
-enum Held {
-    Old,
-    New,
-}
-
-/// When a run is killed.
-#[derive(Debug, Clone, Copy)]
-enum KillAt {
-    /// This long after the start.
-    Delay(Duration),
-    /// This long after the run's `n`-th `.sheetfit-*` temporary file
-    /// appears in the output folder: 1 while the workbook is staged, 2
-    /// while the JSON is.
-    Staging(usize, Duration),
-    /// As soon as the file (`report.xlsx` or `report.json`) is another than
-    /// before the run: it has just been renamed into place.
-    Replaced(&'static str),
-}
-
-/// The names in the output folder other than the report and its JSON.
-fn other_files(folder: &Path) -> BTreeSet<String> {
-    std::fs::read_dir(folder)
-        .map(|entries| {
-            entries
-                .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
-                .filter(|n| n != "report.xlsx" && n != "report.json")
-                .collect()
-        })
-        .unwrap_or_default()
-}
-
-/// Starts `sheetfit run --overwrite job.toml` in `cwd` and kills it at
-/// `at`; returns whether it was still running when killed. `known` holds
-/// the temporary files left by earlier kills.
-fn run_and_kill(cwd: &Path, at: KillAt, known: &BTreeSet<String>, limit: Duration) -> bool {
-    let out = cwd.join("out");
-    let stamp = |name: &str| {
-        std::fs::metadata(out.join(name))
-            .and_then(|m| m.modified())
-            .ok()
-    };
-    let before = ["report.xlsx", "report.json"].map(stamp);
-    let mut child = Command::new(env!("CARGO_BIN_EXE_sheetfit"))
-        .args(["run", "--overwrite", "job.toml"])
-        .current_dir(cwd)
-        .stdin(Stdio::null())
-        .stdout(Stdio::null())
-        .stderr(Stdio::null())
-        .spawn()
-        .expect("start sheetfit");
-    let started = Instant::now();
-    // The run's temporary files, in the order they were first seen.
-    let mut temps: Vec<(String, Instant)> = Vec::new();
-    loop {
-        let now = Instant::now();
-        for name in other_files(&out) {
-            if name.starts_with(".sheetfit-")
-                && !known.contains(&name)
-                && !temps.iter().any(|(n, _)| *n == name)
-            {
-                temps.push((name, now));
-            }
-        }
-        let kill_now = match at {
-            KillAt::Delay(d) => now - started >= d,
-            KillAt::Staging(n, d) => temps.get(n - 1).is_some_and(|(_, t)| now - *t >= d),
-            KillAt::Replaced(name) => {
-                let i = usize::from(name == "report.json");
-                stamp(name) != before[i]
-            }
-        };
-        if kill_now || child.try_wait().expect("poll sheetfit").is_some() {
-            break;
-        }
-        assert!(started.elapsed() < limit, "the run took over {limit:?}");
-        std::thread::sleep(Duration::from_micros(100));
-    }
-    let running = child.try_wait().expect("poll sheetfit").is_none();
-    if running {
-        // An immediate kill (SIGKILL on Unix): no handler, no clean-up.
-        child.kill().expect("kill sheetfit");
-    }
-    let status = child.wait().expect("wait for sheetfit");
-    if !running {
-        assert!(status.success(), "a run left alone must succeed: {status}");
-    }
-    running
-}
-
-/// A run killed at any moment leaves at the report path either the old
-/// report, byte for byte, or a complete new one, and the same for the JSON;
-/// nothing else appears beside them but `.sheetfit-*` temporary files.
-///
-/// A kill cannot clean up: a run killed while it writes leaves its
-/// temporary files behind (named `.sheetfit-` and a random suffix, never
-/// like a report; a later run neither reads nor needs them). The test
-/// prints how many it found. Between the two renames the workbook is
-/// already the new one while the JSON is still the old one.
-#[test]
-fn a_killed_run_leaves_the_old_report_or_a_complete_new_one() {
-    let s = Scratch::new();
-    let cwd = s.path("");
-    write_big_input(&s.path("big.xlsx"));
-    let old_job = big_job("Old run");
-    let new_job = big_job("New run");
-    let report = s.path("out/report.xlsx");
-    let report_json = s.path("out/report.json");
-
-    s.write("job.toml", &old_job);
-    let out = sheetfit(&cwd, &["run", "job.toml"]);
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
-    let old = (bytes(&report), bytes(&report_json));
-    let new_job_sha = sha256_hex(new_job.as_bytes());
-
-    // Later runs have another title, so their reports differ from the old.
-    s.write("job.toml", &new_job);
-    let started = Instant::now();
-    let out = sheetfit(&cwd, &["run", "--overwrite", "job.toml"]);
-    let duration = started.elapsed();
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
-    eprintln!("a full run on {BIG_ROWS} rows took {duration:?}");
-    assert!(
-        duration >= Duration::from_millis(500),
-        "the run is too quick ({duration:?}) for kills to land inside it"
-    );
-    let restore = || {
-        std::fs::write(&report, &old.0).unwrap();
-        std::fs::write(&report_json, &old.1).unwrap();
-    };
-    restore();
-
-    // Kills spread over the whole run, then while each file is staged,
-    // then right after each rename.
-    let ms = Duration::from_millis;
-    let mut schedule: Vec<KillAt> = [0.15, 0.35, 0.55, 0.75, 0.9]
-        .into_iter()
-        .map(|f| KillAt::Delay(duration.mul_f64(f)))
-        .collect();
-    schedule.extend([
-        KillAt::Staging(1, ms(0)),
-        KillAt::Staging(1, ms(1)),
-        KillAt::Staging(1, ms(3)),
-        KillAt::Staging(2, ms(0)),
-        KillAt::Staging(2, ms(1)),
-        KillAt::Replaced("report.xlsx"),
-        KillAt::Replaced("report.xlsx"),
-        KillAt::Replaced("report.json"),
-    ]);
-
-    let mut stale = BTreeSet::new();
-    let mut outcomes = Vec::new();
-    for at in schedule {
-        let running = run_and_kill(&cwd, at, &stale, duration * 10);
-
-        for name in other_files(&s.path("out")) {
-            assert!(
-                name.starts_with(".sheetfit-"),
-                "killed at {at:?}: unexpected file out/{name}"
-            );
-            assert!(
-                !name.contains("report") && !name.ends_with(".xlsx") && !name.ends_with(".json"),
-                "killed at {at:?}: temporary file out/{name} is named like a report"
-            );
-            stale.insert(name);
-        }
-
-        // The workbook: the old bytes, or a new report that reads whole.
-        assert!(report.exists(), "killed at {at:?}: the report is gone");
-        let workbook = if bytes(&report) == old.0 {
-            Held::Old
-        } else {
-            let mut wb = open_workbook_auto(&report).unwrap_or_else(|e| {
-                panic!("killed at {at:?}: the report is neither the old one nor readable: {e}")
-            });
-            assert_eq!(wb.sheet_names(), SHEETS, "killed at {at:?}");
-            for name in SHEETS {
-                wb.worksheet_range(name)
-                    .unwrap_or_else(|e| panic!("killed at {at:?}: sheet {name}: {e}"));
-            }
-            assert_eq!(
-                overview_value(&report, "Job file SHA-256").as_deref(),
-                Some(new_job_sha.as_str()),
-                "killed at {at:?}: a changed report must be the new run's"
-            );
-            Held::New
-        };
-        // The JSON: the old bytes, or the new run's whole JSON.
-        assert!(report_json.exists(), "killed at {at:?}: the JSON is gone");
-        let json = if bytes(&report_json) == old.1 {
-            Held::Old
-        } else {
-            let text = std::fs::read_to_string(&report_json).unwrap();
-            let j: Value = serde_json::from_str(&text).unwrap_or_else(|e| {
-                panic!("killed at {at:?}: the JSON is neither the old one nor whole: {e}")
-            });
-            assert_eq!(j["title"], "New run", "killed at {at:?}");
-            assert_eq!(j["run"]["job_sha256"], new_job_sha.as_str());
-            assert_eq!(
-                j["models"][0]["residuals"].as_array().map(Vec::len),
-                Some(BIG_ROWS as usize),
-                "killed at {at:?}: the new JSON is complete"
-            );
-            Held::New
-        };
-        outcomes.push((at, running, workbook, json));
-
-        // Start the next kill from the old report again.
-        restore();
-    }
-    for (at, running, workbook, json) in &outcomes {
-        eprintln!(
-            "  {at:?}: {} -> workbook {workbook:?}, JSON {json:?}",
-            if *running { "killed" } else { "finished" }
-        );
-    }
-    eprintln!(
-        "stale temporary files left by the kills: {} {stale:?}",
-        stale.len()
-    );
-    let killed = |kind: fn(&KillAt) -> bool| {
-        outcomes
-            .iter()
-            .filter(|(at, running, ..)| *running && kind(at))
-            .count()
-    };
-    let spread = killed(|at| matches!(at, KillAt::Delay(_)));
-    let writing = killed(|at| !matches!(at, KillAt::Delay(_)));
-    assert!(spread >= 3, "only {spread} kills landed inside a run");
-    assert!(
-        writing >= 3,
-        "only {writing} kills landed while the report was being written"
-    );
-
-    // A later run is not disturbed by the stale temporary files.
-    let out = sheetfit(&cwd, &["run", "--overwrite", "job.toml"]);
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
-    assert_eq!(read_json(&report_json)["title"], "New run");
-    assert_eq!(
-        overview_value(&report, "Job file SHA-256").as_deref(),
-        Some(new_job_sha.as_str())
-    );
 }
 
 // ---------------------------------------------------------------------------

@@ -10,6 +10,7 @@ use std::path::{Path, PathBuf};
 use serde::{Deserialize, Serialize};
 
 use super::model::ModelResults;
+use super::RUN_ID_PROPERTY;
 
 /// A move in a coefficient is *notable* when it exceeds this many combined
 /// standard errors (the two-sided 5% point of the normal; a rough guide,
@@ -27,6 +28,18 @@ pub enum ChangesError {
         /// The operating system's reason.
         source: std::io::Error,
     },
+    /// The results JSON and the workbook beside it come from two runs.
+    #[error("last run's results {json} and the report workbook beside it, {workbook}, come from two different runs (run ids {json_run} and {workbook_run}): a run was stopped while it replaced them. Run that job again, which repairs the pair, or point `compare_with` (or --previous) at another run's results")]
+    MixedPair {
+        /// The results JSON.
+        json: PathBuf,
+        /// The workbook beside it.
+        workbook: PathBuf,
+        /// The JSON's run id.
+        json_run: String,
+        /// The workbook's run id.
+        workbook_run: String,
+    },
     /// The file is not a results JSON.
     #[error("{path} is not a sheetfit results file: {reason}")]
     Parse {
@@ -39,7 +52,15 @@ pub enum ChangesError {
 
 #[derive(Deserialize)]
 struct Previous {
+    #[serde(default)]
+    run: Option<PreviousRun>,
     models: Vec<PreviousModel>,
+}
+
+#[derive(Deserialize)]
+struct PreviousRun {
+    #[serde(default)]
+    run_id: Option<String>,
 }
 
 #[derive(Deserialize)]
@@ -132,6 +153,19 @@ pub fn against(path: &Path, models: &[ModelResults]) -> Result<RunChanges, Chang
         path: path.to_path_buf(),
         reason: e.to_string(),
     })?;
+    if let Some(json_run) = previous.run.and_then(|r| r.run_id) {
+        let workbook = path.with_extension("xlsx");
+        if let Some(workbook_run) = workbook_run_id(&workbook) {
+            if workbook_run != json_run {
+                return Err(ChangesError::MixedPair {
+                    json: path.to_path_buf(),
+                    workbook,
+                    json_run,
+                    workbook_run,
+                });
+            }
+        }
+    }
     let mut changes = Vec::new();
     let mut forecast_tracking = Vec::new();
     for m in models {
@@ -178,4 +212,18 @@ pub fn against(path: &Path, models: &[ModelResults]) -> Result<RunChanges, Chang
         changes,
         forecast_tracking,
     })
+}
+
+/// The run id a report workbook carries in its custom document properties,
+/// or `None` when the file is missing, unreadable or carries none (a report
+/// from before run ids).
+fn workbook_run_id(workbook: &Path) -> Option<String> {
+    let file = std::fs::File::open(workbook).ok()?;
+    let mut archive = zip::ZipArchive::new(file).ok()?;
+    let mut xml = String::new();
+    std::io::Read::read_to_string(&mut archive.by_name("docProps/custom.xml").ok()?, &mut xml)
+        .ok()?;
+    let after = &xml[xml.find(&format!("name=\"{RUN_ID_PROPERTY}\""))?..];
+    let value = &after[after.find("<vt:lpwstr>")? + "<vt:lpwstr>".len()..];
+    Some(value[..value.find('<')?].to_string())
 }

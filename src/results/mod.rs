@@ -27,6 +27,9 @@ pub const CAUTIONS: [&str; 3] = [
 /// Where the numbers came from, so a reader can trace and repeat the run.
 #[derive(Debug, Clone, Serialize)]
 pub struct RunStamp {
+    /// An identifier of this run, carried by both the workbook and the JSON
+    /// so a pair from two runs can be told ([`run_id`]).
+    pub run_id: String,
     /// `sheetfit` and its version.
     pub tool: String,
     /// Time of the run, UTC, RFC 3339.
@@ -79,4 +82,27 @@ pub fn collect(
         comparisons,
         changes,
     }
+}
+
+/// The report workbook's custom document property that holds the run id,
+/// the same as the results JSON's `run.run_id`.
+pub const RUN_ID_PROPERTY: &str = "sheetfit_run_id";
+
+/// A run's identifier: the first 16 hex digits of the SHA-256 of what
+/// decides the report's content (tool, run time, the job file's and the
+/// input's SHA-256, and the results compared with), so two runs on the same
+/// inputs with a fixed run time share it, as their files are identical, and
+/// any other two runs differ.
+pub fn run_id(parts: &[&str]) -> String {
+    use sha2::{Digest, Sha256};
+    let mut hash = Sha256::new();
+    for part in parts {
+        hash.update(part.as_bytes());
+        hash.update([0]);
+    }
+    hash.finalize()
+        .iter()
+        .take(8)
+        .map(|b| format!("{b:02x}"))
+        .collect()
 }

@@ -15,7 +15,7 @@ use rust_xlsxwriter::{
     TableColumn, TableStyle, Workbook, Worksheet, XlsxError,
 };
 
-use crate::results::{ModelResults, Results};
+use crate::results::{ModelResults, Results, RUN_ID_PROPERTY};
 use crate::text::row_ranges;
 
 mod forecast;
@@ -325,7 +325,8 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
             .set_title(&results.title)
             .set_subject("Linear regression report")
             .set_author(&results.run.tool)
-            .set_comment(format!("Run {}", results.run.run_time)),
+            .set_comment(format!("Run {}", results.run.run_time))
+            .set_custom_property(RUN_ID_PROPERTY, results.run.run_id.as_str()),
     );
     overview(
         workbook.add_worksheet().set_name(OVERVIEW)?,
@@ -568,6 +569,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
     sheet.write_string_with_format(r, 0, "Run", &f.heading)?;
     let run = &results.run;
     let stamp = [
+        ("Run id", run.run_id.clone()),
         ("Tool", run.tool.clone()),
         ("Run time (UTC)", run.run_time.clone()),
         ("Job file", run.job_file.clone()),
