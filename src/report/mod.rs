@@ -280,3 +280,40 @@ fn readable_by_others(file: &std::fs::File) -> std::io::Result<()> {
 fn readable_by_others(_file: &std::fs::File) -> std::io::Result<()> {
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_full_disk_inside_the_workbook_writer_reads_as_a_full_disk() {
+        let full = std::io::Error::from(std::io::ErrorKind::StorageFull);
+        let error = workbook_error(
+            Path::new("out/r.xlsx"),
+            rust_xlsxwriter::XlsxError::IoError(full),
+        );
+        assert_eq!(
+            error.to_string(),
+            "cannot write out/r.xlsx: the disk is full; free some space or set `output.workbook` to another disk"
+        );
+    }
+
+    #[test]
+    fn messages_name_the_report_and_what_to_do() {
+        let locked = ReportError::Locked {
+            path: PathBuf::from("out/r.xlsx"),
+            holder: "4242".into(),
+            waited: 10,
+        };
+        assert_eq!(
+            locked.to_string(),
+            "another sheetfit run (process 4242) is writing out/r.xlsx; waited 10 s for it to finish. Wait until it ends and run again, or give this job another `output.workbook`"
+        );
+        let exists = ReportError::Exists {
+            path: PathBuf::from("out/r.json"),
+        };
+        assert!(exists
+            .to_string()
+            .starts_with("out/r.json exists; run with --overwrite"));
+    }
+}
