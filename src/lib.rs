@@ -101,6 +101,7 @@ impl Error {
 /// to describe them).
 fn model_results(
     job: &Job,
+    input: &source::Input,
     mut table: Table,
     inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
 ) -> Result<(Vec<results::ModelResults>, Vec<compare::Comparison>), Error> {
@@ -121,12 +122,9 @@ fn model_results(
         };
         inspect(spec, &design, &fit);
         let plan = match &spec.forecast {
-            Some(job::ForecastSpec::Plan { sheet }) => Some(source::read_table_with(
-                &job.input,
-                Some(sheet),
-                job.header_row,
-                &job.limits,
-            )?),
+            Some(job::ForecastSpec::Plan { sheet }) => {
+                Some(input.read_table(Some(sheet), job.header_row, &job.limits)?)
+            }
             _ => None,
         };
         let rows = forecast::forecast(spec, &design, &fit, plan.as_ref())?;
@@ -172,25 +170,33 @@ pub type Timings = Vec<(&'static str, std::time::Duration)>;
 /// Reads the job's input and fits every model, returning all results and
 /// the time each stage took.
 ///
+/// The input is opened once and every read of it goes through that one
+/// open file: the sheet, the plan sheets and the SHA-256, so the recorded
+/// fingerprint is that of the bytes the results come from. Once every read
+/// is done, and before any result is built, the file must be as it was
+/// when opened ([`source::Input::check_unchanged`]).
+///
 /// # Errors
 /// The first [`Error`] met; no model's results are returned when any fails.
 pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings), Error> {
     let mut timings = Timings::new();
     let clock = Instant::now();
-    let table = source::read_table_with(
-        &job.input,
-        job.sheet.as_deref(),
-        job.header_row,
-        &job.limits,
-    )?;
-    let input_sha256 = file_sha256_hex(&job.input).map_err(|source| Error::Fingerprint {
-        path: job.input.clone(),
-        source,
-    })?;
+    let input = source::Input::open(&job.input)?;
+    let table = input.read_table(job.sheet.as_deref(), job.header_row, &job.limits)?;
+    let input_sha256 = input
+        .sha256()
+        .map(|digest| hex(&digest))
+        .map_err(|source| Error::Fingerprint {
+            path: job.input.clone(),
+            source,
+        })?;
+    after_read_hook();
     timings.push(("read input", clock.elapsed()));
     let clock = Instant::now();
     let (sheet, rows_read) = (table.sheet.clone(), table.rows.len());
-    let (models, comparisons) = model_results(job, table, &mut |_, _, _| {})?;
+    let (models, comparisons) = model_results(job, &input, table, &mut |_, _, _| {})?;
+    // The plan sheets were the last reads of the input.
+    input.check_unchanged()?;
     let changes = options
         .previous
         .as_ref()
@@ -289,12 +295,8 @@ pub fn run_job(path: &Path, options: &RunOptions) -> Result<RunReport, Error> {
 pub fn check_job(path: &Path) -> Result<String, Error> {
     let job = job::load(path)?;
     report::check_targets(&job.output, &[&job.input, &job.path])?;
-    let table = source::read_table_with(
-        &job.input,
-        job.sheet.as_deref(),
-        job.header_row,
-        &job.limits,
-    )?;
+    let input = source::Input::open(&job.input)?;
+    let table = input.read_table(job.sheet.as_deref(), job.header_row, &job.limits)?;
     let mut out = String::new();
     let _ = writeln!(out, "job {}: {} model(s)", path.display(), job.models.len());
     let _ = writeln!(
@@ -307,9 +309,10 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
     );
     out.push_str(&describe_columns(&table));
     // Everything a run computes, so check meets the errors run would.
-    let (models, _) = model_results(&job, table, &mut |spec, design, fit| {
+    let (models, _) = model_results(&job, &input, table, &mut |spec, design, fit| {
         describe_model(&mut out, spec, design, fit);
     })?;
+    input.check_unchanged()?;
     if let Some(previous) = &job.compare_with {
         results::changes::against(previous, &models)?;
     }
@@ -427,17 +430,16 @@ fn sha256_hex(bytes: &[u8]) -> String {
     hex(&Sha256::digest(bytes))
 }
 
-/// SHA-256 of a file, read in pieces rather than whole.
-fn file_sha256_hex(path: &Path) -> std::io::Result<String> {
-    use std::io::Read;
-    let mut file = std::fs::File::open(path)?;
-    let mut hasher = Sha256::new();
-    let mut buffer = vec![0; 1 << 16];
-    loop {
-        match file.read(&mut buffer)? {
-            0 => return Ok(hex(&hasher.finalize())),
-            n => hasher.update(&buffer[..n]),
-        }
+/// A test hook: when `SHEETFIT_TEST_AFTER_READ` is set, it is run as a
+/// shell command once the input's sheet has been read and hashed, before
+/// the plan sheets are read and the input is checked for changes, so that
+/// a test can change the input at that moment. Its outcome is ignored.
+fn after_read_hook() {
+    if let Some(command) = std::env::var_os("SHEETFIT_TEST_AFTER_READ") {
+        let _ = std::process::Command::new("sh")
+            .arg("-c")
+            .arg(command)
+            .status();
     }
 }
 

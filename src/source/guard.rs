@@ -8,24 +8,22 @@
 //! of the shared-string and sheet parts, and refuses a file past the
 //! [`Limits`] with a message that says which limit and how to raise it.
 
+use std::fs::File;
 use std::io::Read;
-use std::path::Path;
 
 use crate::job::Limits;
 
 /// Why a workbook was refused, in words; the caller adds the file.
 pub type Refusal = String;
 
-/// Checks the zip directory and declared sizes of the workbook at `path`.
+/// Checks the zip directory and declared sizes of the workbook open in
+/// `file` (the input's one open handle).
 /// Files that are not zip archives pass untouched (the reader then says
 /// what they are).
 ///
 /// # Errors
 /// A [`Refusal`] naming the limit the file goes past.
-pub fn prescan(path: &Path, limits: &Limits) -> Result<(), Refusal> {
-    let Ok(file) = std::fs::File::open(path) else {
-        return Ok(());
-    };
+pub fn prescan(file: &File, limits: &Limits) -> Result<(), Refusal> {
     let Ok(mut archive) = zip::ZipArchive::new(file) else {
         return Ok(());
     };

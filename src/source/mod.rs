@@ -6,14 +6,19 @@
 //! Nothing here decides what a column means; `design` does that per model.
 
 use std::fmt;
+use std::fs::File;
+use std::io::{BufReader, Seek, SeekFrom};
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
-use calamine::{open_workbook_auto, Data, DataRef, Reader, Sheets};
+use calamine::{Data, DataRef, Ods, Reader, Sheets, Xls, Xlsb, Xlsx};
 
 use crate::job::Limits;
 
 mod guard;
+mod input;
+
+pub use input::Input;
 
 /// An error while opening or reading the input.
 #[derive(Debug, thiserror::Error)]
@@ -43,6 +48,15 @@ pub enum SourceError {
         path: PathBuf,
         /// Which limit, and how to raise it.
         reason: String,
+    },
+    /// The input changed on disk while it was being read.
+    #[error("input {path} changed while it was being read ({what}); wait until it is saved and closed, then run again")]
+    Changed {
+        /// The input file.
+        path: PathBuf,
+        /// What moved: its size, its modification time or the file its
+        /// name leads to.
+        what: String,
     },
     /// The sheet could not be parsed.
     #[error("cannot read sheet '{sheet}' of {path}: {reason}")]
@@ -335,46 +349,69 @@ pub fn read_table(path: &Path, sheet: Option<&str>, header_row: u32) -> Result<T
     read_table_with(path, sheet, header_row, &Limits::default())
 }
 
-/// Reads a sheet as [`read_table`] does, refusing an .xlsx/.xlsm file past
-/// `limits` before the reader sees it. Sheets of .xlsx/.xlsm files are read
-/// cell by cell into the named columns, so memory follows the data, not the
-/// sheet's bounding box; rows after the last value in a named column are not
-/// kept, and columns with a blank header cell are skipped.
+/// Opens the file at `path` and reads a sheet of it as
+/// [`Input::read_table`] does. A run opens its [`Input`] once instead, so
+/// that every read and the fingerprint see one file.
 ///
 /// # Errors
-/// [`SourceError`] when the file cannot be opened or is refused, the sheet
-/// is missing, the header row is empty or two columns share a name.
+/// As [`Input::open`] and [`Input::read_table`].
 pub fn read_table_with(
     path: &Path,
     sheet: Option<&str>,
     header_row: u32,
     limits: &Limits,
 ) -> Result<Table, SourceError> {
-    let extension = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .map(str::to_ascii_lowercase)
-        .unwrap_or_default();
-    if extension == "csv" {
-        return read_csv(path, header_row);
+    Input::open(path)?.read_table(sheet, header_row, limits)
+}
+
+impl Input {
+    /// Reads `sheet` (the first sheet when `None`) of the open workbook or
+    /// CSV file, with column names in `header_row` (counted from 1),
+    /// refusing an .xlsx/.xlsm file past `limits` before the reader sees
+    /// it. Sheets of .xlsx/.xlsm files are read cell by cell into the named
+    /// columns, so memory follows the data, not the sheet's bounding box;
+    /// rows after the last value in a named column are not kept, and
+    /// columns with a blank header cell are skipped. Each call reads from
+    /// the start of the one open file.
+    ///
+    /// # Errors
+    /// [`SourceError`] when the file cannot be read or is refused, the
+    /// sheet is missing, the header row is empty or two columns share a
+    /// name; [`SourceError::Changed`] instead of any of these when the file
+    /// changed while it was read (a half-saved file reads as damaged).
+    pub fn read_table(
+        &self,
+        sheet: Option<&str>,
+        header_row: u32,
+        limits: &Limits,
+    ) -> Result<Table, SourceError> {
+        self.read_table_once(sheet, header_row, limits)
+            .map_err(|e| self.check_unchanged().err().unwrap_or(e))
     }
-    if !path.is_file() {
-        return Err(SourceError::Open {
-            path: path.to_path_buf(),
-            reason: if path.exists() {
-                "it is not a file".into()
-            } else {
-                "no such file".into()
-            },
-        });
+
+    fn read_table_once(
+        &self,
+        sheet: Option<&str>,
+        header_row: u32,
+        limits: &Limits,
+    ) -> Result<Table, SourceError> {
+        let path = self.path();
+        let extension = path
+            .extension()
+            .and_then(|e| e.to_str())
+            .map(str::to_ascii_lowercase)
+            .unwrap_or_default();
+        if extension == "csv" {
+            return read_csv(path, self.rewound()?, header_row);
+        }
+        if matches!(extension.as_str(), "xlsx" | "xlsm") {
+            guard::prescan(self.rewound()?, limits).map_err(|reason| SourceError::Refused {
+                path: path.to_path_buf(),
+                reason,
+            })?;
+        }
+        read_workbook(path, self.rewound()?, sheet, header_row)
     }
-    if matches!(extension.as_str(), "xlsx" | "xlsm") {
-        guard::prescan(path, limits).map_err(|reason| SourceError::Refused {
-            path: path.to_path_buf(),
-            reason,
-        })?;
-    }
-    read_workbook(path, sheet, header_row)
 }
 
 fn open_error(path: &Path, e: impl fmt::Display) -> SourceError {
@@ -413,8 +450,48 @@ fn pick_sheet(path: &Path, names: &[String], wanted: Option<&str>) -> Result<Str
     }
 }
 
-fn read_workbook(path: &Path, sheet: Option<&str>, header_row: u32) -> Result<Table, SourceError> {
-    let mut workbook = open_workbook_auto(path).map_err(|e| open_error(path, e))?;
+/// The workbook in `file`, of the kind its extension names (told from its
+/// bytes when the extension names none), as calamine's own opening by path
+/// does, but from the one open file.
+fn open_workbook<'f>(
+    path: &Path,
+    file: &'f File,
+) -> Result<Sheets<BufReader<&'f File>>, calamine::Error> {
+    let from_start = || -> Result<BufReader<&'f File>, calamine::Error> {
+        let mut f = file;
+        f.seek(SeekFrom::Start(0))?;
+        Ok(BufReader::new(file))
+    };
+    Ok(match path.extension().and_then(|e| e.to_str()) {
+        Some("xls" | "xla") => Sheets::Xls(Xls::new(from_start()?).map_err(calamine::Error::Xls)?),
+        Some("xlsx" | "xlsm" | "xlam") => {
+            Sheets::Xlsx(Xlsx::new(from_start()?).map_err(calamine::Error::Xlsx)?)
+        }
+        Some("xlsb") => Sheets::Xlsb(Xlsb::new(from_start()?).map_err(calamine::Error::Xlsb)?),
+        Some("ods") => Sheets::Ods(Ods::new(from_start()?).map_err(calamine::Error::Ods)?),
+        _ => {
+            if let Ok(w) = Xls::new(from_start()?) {
+                Sheets::Xls(w)
+            } else if let Ok(w) = Xlsx::new(from_start()?) {
+                Sheets::Xlsx(w)
+            } else if let Ok(w) = Xlsb::new(from_start()?) {
+                Sheets::Xlsb(w)
+            } else if let Ok(w) = Ods::new(from_start()?) {
+                Sheets::Ods(w)
+            } else {
+                return Err(calamine::Error::Msg("Cannot detect file format"));
+            }
+        }
+    })
+}
+
+fn read_workbook(
+    path: &Path,
+    file: &File,
+    sheet: Option<&str>,
+    header_row: u32,
+) -> Result<Table, SourceError> {
+    let mut workbook = open_workbook(path, file).map_err(|e| open_error(path, e))?;
     let name = pick_sheet(path, &workbook.sheet_names(), sheet)?;
     let sheet_error = |e: &dyn fmt::Display| SourceError::Sheet {
         path: path.to_path_buf(),
@@ -525,7 +602,7 @@ fn text_value(s: &str) -> Value {
     }
 }
 
-fn read_csv(path: &Path, header_row: u32) -> Result<Table, SourceError> {
+fn read_csv(path: &Path, file: &File, header_row: u32) -> Result<Table, SourceError> {
     let open_err = |reason: String| SourceError::Open {
         path: path.to_path_buf(),
         reason,
@@ -533,8 +610,7 @@ fn read_csv(path: &Path, header_row: u32) -> Result<Table, SourceError> {
     let mut reader = csv::ReaderBuilder::new()
         .has_headers(false)
         .flexible(true)
-        .from_path(path)
-        .map_err(|e| open_err(e.to_string()))?;
+        .from_reader(file);
     let name = path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
