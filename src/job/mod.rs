@@ -16,6 +16,8 @@ use serde::Deserialize;
 
 use crate::period::{Frequency, SeasonBy};
 
+mod cell_text;
+
 /// The confidence level used for intervals when a model does not set one.
 pub const DEFAULT_CONFIDENCE: f64 = 0.95;
 
@@ -693,6 +695,17 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             .unwrap_or("sheetfit job")
             .to_string()
     });
+    if let Some((key, message)) = cell_text::too_long(&title, &models) {
+        return Err(invalid(&key, message));
+    }
+    if output.to_string_lossy().contains("{period}")
+        && !models.iter().any(|m| m.date_column().is_some())
+    {
+        return Err(invalid(
+            "output.workbook",
+            "uses {period}, but no model has a date column (`trend` or `season`); use {date} or {job}, or give a model a date column".into(),
+        ));
+    }
     Ok(Job {
         path: path.to_path_buf(),
         text: text.to_string(),
