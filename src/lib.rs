@@ -62,6 +62,16 @@ pub enum Error {
     /// Last run's results could not be read.
     #[error(transparent)]
     Changes(#[from] results::changes::ChangesError),
+    /// Two jobs of one batch write the same report.
+    #[error("jobs {first} and {second} both write {output}; a batch runs neither. Give one of them another `output.workbook` (or use {{job}} in it)")]
+    SharedOutput {
+        /// The first job file.
+        first: PathBuf,
+        /// The second job file.
+        second: PathBuf,
+        /// The report both name.
+        output: PathBuf,
+    },
     /// `{period}` in the output path without any periods.
     #[error("`output.workbook` ({path}) uses {{period}}, but no model has a date column (`trend` or `season`)")]
     NoPeriod {
@@ -88,7 +98,7 @@ impl Error {
     /// Whether the error lies in the job file (exit status 2) rather than in
     /// the data or the output (exit status 1).
     pub fn is_job_file_error(&self) -> bool {
-        matches!(self, Error::Job(_))
+        matches!(self, Error::Job(_) | Error::SharedOutput { .. })
     }
 }
 
@@ -255,6 +265,33 @@ pub fn output_path(job: &Job, results: &Results) -> Result<PathBuf, Error> {
     Ok(PathBuf::from(
         out.replace("{date}", date).replace("{job}", stem),
     ))
+}
+
+/// Refuses a batch in which two jobs name the same report, before any of
+/// them runs: each job's `output.workbook` with `{job}` filled in (the
+/// other placeholders are the same for every job of a batch on the same
+/// data), resolved as the system will resolve it. Jobs that cannot be read
+/// are left to fail on their own.
+///
+/// # Errors
+/// [`Error::SharedOutput`] naming the two job files and the report.
+pub fn check_batch_outputs(jobs: &[PathBuf]) -> Result<(), Error> {
+    let mut seen: Vec<(PathBuf, PathBuf)> = Vec::new();
+    for path in jobs {
+        let Ok(job) = job::load(path) else { continue };
+        let stem = path.file_stem().and_then(|s| s.to_str()).unwrap_or("job");
+        let output = PathBuf::from(job.output.to_string_lossy().replace("{job}", stem));
+        let resolved = report::target::resolved(&output);
+        if let Some((first, _)) = seen.iter().find(|(_, r)| *r == resolved) {
+            return Err(Error::SharedOutput {
+                first: first.clone(),
+                second: path.clone(),
+                output,
+            });
+        }
+        seen.push((path.clone(), resolved));
+    }
+    Ok(())
 }
 
 /// What a run wrote and how long it took.

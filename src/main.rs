@@ -4,14 +4,14 @@
 //! or output, 2 for a usage or job-file error; with several jobs the
 //! highest wins.
 
-use std::io::IsTerminal;
+use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::time::Duration;
 
 use clap::{Parser, Subcommand};
 use rayon::prelude::*;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// Fits the linear regression models listed in a TOML job file to a
 /// workbook sheet and writes a report workbook and a results JSON.
@@ -31,6 +31,22 @@ enum Command {
         /// The job file to check.
         #[arg(value_name = "JOB.toml")]
         job: PathBuf,
+    },
+    /// Run one job and print its outcome as JSON (used by `run`, which
+    /// runs each job in a process of its own).
+    #[command(hide = true)]
+    RunJob {
+        /// The job file.
+        job: PathBuf,
+        /// Replace an existing report.
+        #[arg(long)]
+        overwrite: bool,
+        /// The run time, RFC 3339.
+        #[arg(long)]
+        run_time: Option<String>,
+        /// Last run's results JSON.
+        #[arg(long)]
+        previous: Option<PathBuf>,
     },
     /// Write a commented starter job file.
     Init {
@@ -86,6 +102,12 @@ fn main() -> ExitCode {
             }
         },
         Command::Init { path } => init(&path),
+        Command::RunJob {
+            job,
+            overwrite,
+            run_time,
+            previous,
+        } => run_job_here(&job, overwrite, run_time, previous),
     };
     ExitCode::from(status)
 }
@@ -98,20 +120,21 @@ fn exit_code(e: &sheetfit::Error) -> u8 {
     }
 }
 
-/// One job's outcome, as the `--json` summary lists it.
-#[derive(Serialize)]
+/// One job's outcome, as the `--json` summary lists it (and as a job's own
+/// process reports it to `run`).
+#[derive(Serialize, Deserialize)]
 struct Outcome {
     job: String,
-    status: &'static str,
+    status: String,
     workbook: Option<String>,
     json: Option<String>,
     error: Option<String>,
     /// What the run repaired of an earlier, interrupted run of its report.
     note: Option<String>,
-    #[serde(skip)]
+    #[serde(skip_serializing, default)]
     code: u8,
-    #[serde(skip)]
-    timings: sheetfit::Timings,
+    #[serde(skip_serializing, default)]
+    timings: Vec<(String, f64)>,
 }
 
 fn run(args: &RunArgs) -> u8 {
@@ -122,6 +145,10 @@ fn run(args: &RunArgs) -> u8 {
             return 2;
         }
     };
+    if let Err(e) = sheetfit::check_batch_outputs(&jobs) {
+        eprintln!("sheetfit: error: {e}");
+        return exit_code(&e);
+    }
     let options = match run_options(args) {
         Ok(options) => options,
         Err(message) => {
@@ -147,7 +174,7 @@ fn run(args: &RunArgs) -> u8 {
     let outcomes: Vec<Outcome> = jobs
         .par_iter()
         .map(|job| {
-            let outcome = run_one(job, &options);
+            let outcome = run_isolated(job, &options);
             if let Some(bar) = &bar {
                 bar.inc(1);
             }
@@ -167,19 +194,26 @@ fn run(args: &RunArgs) -> u8 {
     }
     if args.verbose {
         for o in &outcomes {
-            for (stage, time) in &o.timings {
-                eprintln!("sheetfit: {}: {stage}: {:.3} s", o.job, time.as_secs_f64());
+            for (stage, seconds) in &o.timings {
+                eprintln!("sheetfit: {}: {stage}: {seconds:.3} s", o.job);
             }
         }
     }
     if !args.quiet {
         eprint!("{}", summary_table(&outcomes));
     }
+    let mut status = outcomes.iter().map(|o| o.code).max().unwrap_or(0);
     if args.json {
         let summary = serde_json::json!({ "jobs": outcomes });
-        println!("{summary:#}");
+        let mut stdout = std::io::stdout().lock();
+        if let Err(e) = writeln!(stdout, "{summary:#}").and_then(|()| stdout.flush()) {
+            eprintln!(
+                "sheetfit: error: cannot print the --json summary on standard output: {e}; the reports listed above were written"
+            );
+            status = status.max(1);
+        }
     }
-    outcomes.iter().map(|o| o.code).max().unwrap_or(0)
+    status
 }
 
 fn run_one(job: &Path, options: &sheetfit::RunOptions) -> Outcome {
@@ -187,17 +221,21 @@ fn run_one(job: &Path, options: &sheetfit::RunOptions) -> Outcome {
     match sheetfit::run_job(job, options) {
         Ok(report) => Outcome {
             job: name,
-            status: "ok",
+            status: "ok".into(),
             workbook: Some(report.written.workbook.display().to_string()),
             json: Some(report.written.json.display().to_string()),
             error: None,
             note: report.written.repaired.clone(),
             code: 0,
-            timings: report.timings,
+            timings: report
+                .timings
+                .iter()
+                .map(|(stage, time)| (stage.to_string(), time.as_secs_f64()))
+                .collect(),
         },
         Err(e) => Outcome {
             job: name,
-            status: "failed",
+            status: "failed".into(),
             workbook: None,
             json: None,
             error: Some(e.to_string()),
@@ -206,6 +244,123 @@ fn run_one(job: &Path, options: &sheetfit::RunOptions) -> Outcome {
             timings: Vec::new(),
         },
     }
+}
+
+/// Runs `job` in a process of its own (this program's `run-job`), so a
+/// job that panics, runs out of memory or is killed takes nothing else down:
+/// its outcome becomes a failure saying so, and the other jobs, the summary
+/// and the exit status stand. Runs it here when no process can be started.
+fn run_isolated(job: &Path, options: &sheetfit::RunOptions) -> Outcome {
+    let Ok(program) = std::env::current_exe() else {
+        return run_one(job, options);
+    };
+    let mut command = std::process::Command::new(program);
+    command.arg("run-job").arg(job);
+    if options.overwrite {
+        command.arg("--overwrite");
+    }
+    if let Some(time) = options.run_time {
+        command.arg("--run-time").arg(time.to_rfc3339());
+    }
+    if let Some(previous) = &options.previous {
+        command.arg("--previous").arg(previous);
+    }
+    let output = match command
+        .stdin(std::process::Stdio::null())
+        .stderr(std::process::Stdio::piped())
+        .output()
+    {
+        Ok(output) => output,
+        Err(_) => return run_one(job, options),
+    };
+    let name = job.display().to_string();
+    match serde_json::from_slice::<JobProcessReport>(&output.stdout) {
+        Ok(report) if output.status.code().is_some() => {
+            let mut outcome = report.outcome;
+            outcome.code = output.status.code().unwrap_or(1).clamp(0, 2) as u8;
+            outcome.timings = report.timings;
+            outcome
+        }
+        _ => {
+            let said = String::from_utf8_lossy(&output.stderr);
+            let last = said.lines().rev().find(|l| !l.trim().is_empty());
+            Outcome {
+                job: name.clone(),
+                status: "failed".into(),
+                workbook: None,
+                json: None,
+                error: Some(format!(
+                    "job {name} stopped unexpectedly ({}{}); the other jobs are not affected, and its report, if any, was left as it was (the next run tidies what it staged)",
+                    stopped_by(&output.status),
+                    last.map(|l| format!(": {}", l.trim())).unwrap_or_default()
+                )),
+                note: None,
+                code: 1,
+                timings: Vec::new(),
+            }
+        }
+    }
+}
+
+/// How a job's process ended, in words.
+fn stopped_by(status: &std::process::ExitStatus) -> String {
+    #[cfg(unix)]
+    {
+        use std::os::unix::process::ExitStatusExt;
+        match status.signal() {
+            Some(6) => return "it aborted, as on running out of memory".into(),
+            Some(9) => {
+                return "killed by signal 9, as when the system runs out of memory or another process stops it".into()
+            }
+            Some(signal) => return format!("killed by signal {signal}"),
+            None => {}
+        }
+    }
+    format!("it ended with {status} and no outcome")
+}
+
+/// `run-job`: runs one job in this process and prints its outcome as JSON
+/// on standard output for the `run` that started it.
+fn run_job_here(
+    job: &Path,
+    overwrite: bool,
+    run_time: Option<String>,
+    previous: Option<PathBuf>,
+) -> u8 {
+    // Test hook: the job named here aborts, as a process out of memory does.
+    if std::env::var_os("SHEETFIT_TEST_ABORT_JOB")
+        .is_some_and(|name| job.file_name() == Some(&name))
+    {
+        std::process::abort();
+    }
+    let run_time = run_time.and_then(|t| {
+        chrono::DateTime::parse_from_rfc3339(&t)
+            .ok()
+            .map(|t| t.with_timezone(&chrono::Utc))
+    });
+    let options = sheetfit::RunOptions {
+        overwrite,
+        run_time,
+        previous,
+    };
+    let outcome = run_one(job, &options);
+    let report = JobProcessReport {
+        timings: outcome.timings.clone(),
+        outcome,
+    };
+    match serde_json::to_string(&report) {
+        Ok(text) => println!("{text}"),
+        Err(e) => eprintln!("sheetfit: error: {e}"),
+    }
+    report.outcome.code
+}
+
+/// What a job's own process prints for `run`: its outcome and the time
+/// each stage took.
+#[derive(Serialize, Deserialize)]
+struct JobProcessReport {
+    outcome: Outcome,
+    timings: Vec<(String, f64)>,
 }
 
 /// The jobs named on the command line: files as given, folders as their
