@@ -33,7 +33,7 @@ pub enum ForecastError {
         source: EncodeError,
     },
     /// A forecast row needs a coefficient that could not be estimated.
-    #[error("model '{model}': forecast {place} needs the coefficient {term}, which was left out of the fit (aliased: no row of the data has it)")]
+    #[error("model '{model}': forecast {place} needs the coefficient {term}, which was left out of the fit ({why}); its effect cannot be estimated from this data, so give the row another value, or drop or merge the predictor")]
     Aliased {
         /// The model.
         model: String,
@@ -41,6 +41,8 @@ pub enum ForecastError {
         place: String,
         /// The coefficient.
         term: String,
+        /// Why it was left out, in words.
+        why: String,
     },
     /// The plan sheet lacks a predictor column.
     #[error("model '{model}': the plan sheet '{sheet}' has no column '{column}'; it needs the date column and every predictor")]
@@ -206,6 +208,11 @@ pub fn forecast(
                 model: spec.name.clone(),
                 place: place.clone(),
                 term: design.names[j].clone(),
+                why: if design.x.column(j).iter().all(|&v| v == 0.0) {
+                    "no row of the data has it".into()
+                } else {
+                    "it is an exact combination of other columns in the rows used (aliased)".into()
+                },
             })?;
             let back = |v: f64| if design.log_response { v.exp() } else { v };
             Ok(ForecastRow {
