@@ -28,14 +28,16 @@ use std::error::Error;
 use std::f64::consts::PI;
 use std::fs;
 use std::path::{Path, PathBuf};
-use std::process::{Command, ExitStatus};
-use std::time::{Duration, Instant};
+use std::process::Command;
 
 use calamine::{open_workbook_auto, DataType, Reader};
 use rust_xlsxwriter::{ExcelDateTime, Format, Workbook};
 
+#[path = "../examples/support/measure.rs"]
+mod measure;
 #[path = "../examples/support/splitmix.rs"]
 mod splitmix;
+use measure::measure;
 use splitmix::SplitMix64;
 
 /// Row counts of the three generated workbooks.
@@ -217,34 +219,6 @@ fn sheet_shapes(path: &Path) -> Result<Vec<(u32, u16)>, Box<dyn Error>> {
         shapes.push((u32::try_from(rows)?, u16::try_from(cols)?));
     }
     Ok(shapes)
-}
-
-/// Wall time and peak resident set size of one child process.
-struct Measured {
-    wall: Duration,
-    peak_mb: f64,
-    status: ExitStatus,
-}
-
-fn measure(command: &mut Command) -> Result<Measured, Box<dyn Error>> {
-    use std::os::unix::process::ExitStatusExt;
-    let start = Instant::now();
-    let child = command.spawn()?;
-    let pid = child.id() as libc::pid_t;
-    let mut status = 0;
-    // SAFETY: rusage is plain data that wait4 fills in for our own child.
-    let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
-    // SAFETY: `pid` is a child of this process that has not been waited for.
-    let waited = unsafe { libc::wait4(pid, &mut status, 0, &mut usage) };
-    let wall = start.elapsed();
-    if waited != pid {
-        return Err(format!("waiting for process {pid} failed").into());
-    }
-    Ok(Measured {
-        wall,
-        peak_mb: usage.ru_maxrss as f64 / 1024.0,
-        status: ExitStatus::from_raw(status),
-    })
 }
 
 fn run_size(rows: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> {

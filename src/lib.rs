@@ -113,8 +113,9 @@ fn model_results(
     job: &Job,
     input: &source::Input,
     mut table: Table,
+    scope: Scope,
     inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
-) -> Result<(Vec<results::ModelResults>, Vec<compare::Comparison>), Error> {
+) -> Result<(Vec<results::ModelResults>, compare::Comparisons), Error> {
     let mut models = Vec::with_capacity(job.models.len());
     let mut candidates = Vec::with_capacity(job.models.len());
     let mut suggestions = Vec::new();
@@ -142,9 +143,13 @@ fn model_results(
         models.push(analyse(spec, &design, &fit, rows, backtest));
         candidates.push(compare::Candidate::new(&spec.name, &design, &fit));
         let name = format!("{} (suggested)", spec.name);
-        if let Some((design, fit, dropped)) =
-            compare::suggest(&name, &design, &fit, job.suggest_threshold)?
-        {
+        let suggested = match scope {
+            Scope::Everything if spec.suggest => {
+                compare::suggest(&name, &design, &fit, job.suggest_threshold)?
+            }
+            _ => None,
+        };
+        if let Some((design, fit, dropped)) = suggested {
             let suggested = job::ModelSpec {
                 name,
                 ..spec.clone()
@@ -157,9 +162,23 @@ fn model_results(
         }
     }
     candidates.extend(suggested_candidates);
-    let comparisons = compare::compare(&candidates);
+    let comparisons = match scope {
+        Scope::Everything => compare::compare(&candidates),
+        Scope::Models => compare::Comparisons::default(),
+    };
     models.extend(suggestions);
     Ok((models, comparisons))
+}
+
+/// How much of a job [`model_results`] computes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Scope {
+    /// Everything a run reports.
+    Everything,
+    /// Each model's design, fit, checks, forecast rows and back-test, the
+    /// parts that can meet the data's errors; no suggested models or
+    /// comparisons (`check`).
+    Models,
 }
 
 /// How a run behaves beyond what the job file says.
@@ -204,7 +223,8 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
     timings.push(("read input", clock.elapsed()));
     let clock = Instant::now();
     let (sheet, rows_read) = (table.sheet.clone(), table.rows.len());
-    let (models, comparisons) = model_results(job, &input, table, &mut |_, _, _| {})?;
+    let (models, comparisons) =
+        model_results(job, &input, table, Scope::Everything, &mut |_, _, _| {})?;
     // The plan sheets were the last reads of the input.
     input.check_unchanged()?;
     let changes = options
@@ -345,10 +365,17 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
         job.header_row
     );
     out.push_str(&describe_columns(&table));
-    // Everything a run computes, so check meets the errors run would.
-    let (models, _) = model_results(&job, &input, table, &mut |spec, design, fit| {
-        describe_model(&mut out, spec, design, fit);
-    })?;
+    // Each model as a run computes it, so check meets the errors the data
+    // can raise; suggested models and comparisons are left to run.
+    let (models, _) = model_results(
+        &job,
+        &input,
+        table,
+        Scope::Models,
+        &mut |spec, design, fit| {
+            describe_model(&mut out, spec, design, fit);
+        },
+    )?;
     input.check_unchanged()?;
     if let Some(previous) = &job.compare_with {
         results::changes::against(previous, &models)?;

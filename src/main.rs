@@ -327,6 +327,20 @@ fn run_job_here(
     run_time: Option<String>,
     previous: Option<PathBuf>,
 ) -> u8 {
+    // A job's process ends with the `run` that started it, so stopping a
+    // run (a scheduler's time-out, a kill) stops its jobs too.
+    #[cfg(target_os = "linux")]
+    {
+        // SAFETY: prctl with PR_SET_PDEATHSIG takes a signal number and
+        // changes only this process's own setting.
+        unsafe {
+            libc::prctl(libc::PR_SET_PDEATHSIG, libc::SIGKILL);
+        }
+        // The run may have ended before the setting took hold.
+        if std::os::unix::process::parent_id() == 1 {
+            return 1;
+        }
+    }
     // Test hook: the job named here aborts, as a process out of memory does.
     if std::env::var_os("SHEETFIT_TEST_ABORT_JOB")
         .is_some_and(|name| job.file_name() == Some(&name))

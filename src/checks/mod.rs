@@ -579,6 +579,8 @@ mod tests {
             forecast: None,
             interactions: vec![],
             standard_errors: None,
+            suggest: true,
+            max_levels: crate::job::DEFAULT_MAX_LEVELS,
         };
         let design = build(&table, &spec).unwrap();
         let fit = crate::fit::fit("m", &design, 0.95).unwrap();

@@ -195,6 +195,22 @@ pub enum DesignError {
         /// The columns the model uses, quoted.
         columns: String,
     },
+    /// A categorical column has more levels than a regression can use.
+    #[error("model '{model}': categorical column '{column}' in {place} has {levels} levels in the {rows} rows used, {why}; a predictor with that many levels is an identifier rather than a category (list it nowhere, or group its levels into fewer), or raise `max_levels` under [input] if the levels are genuine")]
+    TooManyLevels {
+        /// The model.
+        model: String,
+        /// Where the column is, in words.
+        place: String,
+        /// The column.
+        column: String,
+        /// Its level count.
+        levels: usize,
+        /// Rows used.
+        rows: usize,
+        /// Which limit, in words.
+        why: String,
+    },
     /// A categorical column has a single level in the rows used.
     #[error("model '{model}': categorical column '{column}' has only one level ('{level}') in the rows used; a categorical predictor needs two or more levels")]
     OneLevel {
@@ -749,6 +765,12 @@ fn powers(column: &str, x: &[f64], degree: u32) -> Vec<NamedColumn> {
     out
 }
 
+/// A categorical with more levels than this and more than half as many
+/// levels as rows is refused: nearly a level per row is an identifier, and
+/// its indicators would fit the rows almost exactly. Small textbook
+/// layouts (a few groups of a few rows) stay under it.
+const HALF_ROWS_ABOVE: usize = 20;
+
 /// Treatment coding of one factor over the rows `keep`: levels sorted,
 /// one 0/1 column per level other than the baseline, all reading one code
 /// per row.
@@ -775,6 +797,21 @@ fn indicators(
             })
         })
         .collect();
+    let limit = ctx.model.max_levels;
+    if found.len() > limit || (found.len() > HALF_ROWS_ABOVE && found.len() * 2 > keep.len()) {
+        return Err(DesignError::TooManyLevels {
+            model: ctx.model.name.clone(),
+            place: ctx.table.place(),
+            column: spec.column.clone(),
+            levels: found.len(),
+            rows: keep.len(),
+            why: if found.len() > limit {
+                format!("more than the limit of {limit}")
+            } else {
+                "more than half as many levels as rows".into()
+            },
+        });
+    }
     let mut order: Vec<u32> = (0..found.len() as u32).collect();
     order.sort_by(|&a, &b| found[a as usize].cmp(&found[b as usize]));
     let mut sorted_code = vec![0u32; found.len()];
@@ -979,6 +1016,8 @@ mod tests {
             forecast: None,
             interactions: vec![],
             standard_errors: None,
+            suggest: true,
+            max_levels: crate::job::DEFAULT_MAX_LEVELS,
         }
     }
 

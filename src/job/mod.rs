@@ -18,6 +18,13 @@ use crate::period::{Frequency, SeasonBy};
 
 mod cell_text;
 
+/// Most levels a categorical column may have unless `max_levels` under
+/// [input] says otherwise.
+pub const DEFAULT_MAX_LEVELS: usize = 500;
+
+/// Most models a job may list unless `max_models` says otherwise.
+pub const DEFAULT_MAX_MODELS: usize = 1000;
+
 /// The confidence level used for intervals when a model does not set one.
 pub const DEFAULT_CONFIDENCE: f64 = 0.95;
 
@@ -113,6 +120,11 @@ pub struct JobFile {
     pub output: OutputFile,
     /// p-value above which the suggested model drops a term; default 0.05.
     pub suggest_threshold: Option<f64>,
+    /// `false`: no suggested smaller models (a model's own `suggest`
+    /// overrides it).
+    pub suggest: Option<bool>,
+    /// Most models a job may list; default [`DEFAULT_MAX_MODELS`].
+    pub max_models: Option<usize>,
     /// Last run's results JSON, relative to the job file: the report then
     /// shows what changed and how last run's forecasts did.
     pub compare_with: Option<PathBuf>,
@@ -138,6 +150,9 @@ pub struct InputFile {
     pub max_shared_strings: Option<u64>,
     /// Raise the pre-scan's limit on the unpacked size, in MiB.
     pub max_uncompressed_mb: Option<u64>,
+    /// Most levels a categorical column may have; default
+    /// [`DEFAULT_MAX_LEVELS`].
+    pub max_levels: Option<usize>,
 }
 
 /// The `[output]` table.
@@ -192,6 +207,8 @@ pub struct ModelFile {
     /// With `backtest`: also refit at each of the last K periods in turn and
     /// forecast one period ahead (rolling origin).
     pub backtest_rolling: Option<bool>,
+    /// `false`: no suggested smaller model for this model.
+    pub suggest: Option<bool>,
     /// Forecast rows for the periods after the data.
     pub forecast: Option<ForecastFile>,
     /// Pairs of predictors (numeric or categorical) whose product enters
@@ -405,6 +422,11 @@ pub struct ModelSpec {
     pub interactions: Vec<(String, String)>,
     /// Heteroscedasticity-consistent standard errors, when asked for.
     pub standard_errors: Option<Robust>,
+    /// Whether a suggested smaller model is searched for.
+    pub suggest: bool,
+    /// Most levels a categorical predictor (or a season) may have: the
+    /// job's `max_levels` under [input].
+    pub max_levels: usize,
 }
 
 impl ModelSpec {
@@ -544,6 +566,19 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                 .into(),
         ));
     }
+    let max_models = file.max_models.unwrap_or(DEFAULT_MAX_MODELS);
+    if file.models.len() > max_models {
+        return Err(invalid(
+            "model",
+            format!(
+                "{} models are listed, more than the limit of {max_models}; split the job, or raise `max_models` at the top of the job file",
+                file.models.len()
+            ),
+        ));
+    }
+    if file.input.max_levels == Some(0) {
+        return Err(invalid("input.max_levels", "must be at least 1".into()));
+    }
     let mut names = HashSet::new();
     let mut models = Vec::with_capacity(file.models.len());
     for (i, m) in file.models.into_iter().enumerate() {
@@ -659,6 +694,8 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             forecast,
             interactions: m.interactions.into_iter().map(|[a, b]| (a, b)).collect(),
             standard_errors,
+            suggest: m.suggest.or(file.suggest).unwrap_or(true),
+            max_levels: file.input.max_levels.unwrap_or(DEFAULT_MAX_LEVELS),
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);

@@ -8,7 +8,7 @@
 
 use serde::Serialize;
 
-use crate::compare::Comparison;
+use crate::compare::{Comparison, Comparisons};
 use crate::job::Job;
 
 pub mod changes;
@@ -61,6 +61,9 @@ pub struct Results {
     pub models: Vec<ModelResults>,
     /// Every pair of models, nested pairs with their partial F test.
     pub comparisons: Vec<Comparison>,
+    /// Pairs of models not compared: pairs that are not nested, past the
+    /// first [`crate::compare::UNNESTED_PAIRS_AMONG`] models.
+    pub comparisons_left_out: usize,
     /// What changed since last run, when the job compares with one.
     #[serde(flatten)]
     pub changes: Option<RunChanges>,
@@ -71,7 +74,7 @@ pub fn collect(
     job: &Job,
     run: RunStamp,
     models: Vec<ModelResults>,
-    comparisons: Vec<Comparison>,
+    comparisons: Comparisons,
     changes: Option<RunChanges>,
 ) -> Results {
     Results {
@@ -79,7 +82,8 @@ pub fn collect(
         run,
         cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
         models,
-        comparisons,
+        comparisons: comparisons.pairs,
+        comparisons_left_out: comparisons.left_out,
         changes,
     }
 }
