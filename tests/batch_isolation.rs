@@ -9,17 +9,7 @@ mod common;
 
 use std::process::{Command, Stdio};
 
-use common::{sheetfit, stderr, Cell, Scratch};
-use Cell::{N, T};
-
-fn data(s: &Scratch) {
-    let mut rows = vec![vec![T("x"), T("y")]];
-    for i in 0..12 {
-        let x = f64::from(i);
-        rows.push(vec![N(x), N(1.0 + 2.0 * x + f64::from(i % 3))]);
-    }
-    s.workbook("data.xlsx", &[("records", rows)]);
-}
+use common::{sheetfit, small_xy_workbook as data, stderr, Scratch};
 
 fn job(output: &str) -> String {
     format!(

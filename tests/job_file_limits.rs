@@ -5,17 +5,8 @@
 
 mod common;
 
-use common::{assert_run_and_check_fail, Cell, Scratch};
+use common::{assert_run_and_check_fail, small_xy_workbook as data, Cell, Scratch};
 use Cell::{N, T};
-
-fn data(s: &Scratch) {
-    let mut rows = vec![vec![T("x"), T("y")]];
-    for i in 0..12 {
-        let x = f64::from(i);
-        rows.push(vec![N(x), N(1.0 + 2.0 * x + f64::from(i % 3))]);
-    }
-    s.workbook("data.xlsx", &[("records", rows)]);
-}
 
 #[test]
 fn a_title_longer_than_a_cell_is_a_job_file_error() {

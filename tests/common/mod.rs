@@ -228,3 +228,14 @@ pub fn assert_run_and_check_fail(scratch: &Scratch, code: i32, parts: &[&str], i
         assert_command_fails(scratch, command, code, parts, inputs);
     }
 }
+
+/// `data.xlsx` with a sheet `records` of 12 rows: `x` and a `y` that is a
+/// line in `x` plus a small repeating deviation.
+pub fn small_xy_workbook(s: &Scratch) {
+    let mut rows = vec![vec![Cell::T("x"), Cell::T("y")]];
+    for i in 0..12 {
+        let x = f64::from(i);
+        rows.push(vec![Cell::N(x), Cell::N(1.0 + 2.0 * x + f64::from(i % 3))]);
+    }
+    s.workbook("data.xlsx", &[("records", rows)]);
+}
