@@ -377,27 +377,13 @@ mod tests {
             ],
         };
         let spec = ModelSpec {
-            name: "m".into(),
-            response: "y".into(),
             numeric: vec!["x".into(), "z".into()],
-            poly: vec![],
             categorical: vec![CategoricalSpec {
                 column: "g".into(),
                 baseline: Baseline::FirstSorted,
             }],
-            intercept: true,
-            confidence: 0.95,
-            trend: None,
-            season: None,
-            frequency: None,
-            log_response: false,
-            backtest: None,
-            backtest_rolling: false,
-            forecast: None,
             interactions: vec![("g".into(), "x".into())],
-            standard_errors: None,
-            suggest: true,
-            max_levels: crate::job::DEFAULT_MAX_LEVELS,
+            ..ModelSpec::plain("y")
         };
         let design = build(&table, &spec).unwrap();
         let fit = crate::fit::fit("m", &design, 0.95).unwrap();

@@ -994,10 +994,7 @@ mod tests {
 
     fn spec(numeric: &[&str], categorical: &[(&str, Baseline)]) -> ModelSpec {
         ModelSpec {
-            name: "m".into(),
-            response: "y".into(),
             numeric: numeric.iter().map(|s| s.to_string()).collect(),
-            poly: vec![],
             categorical: categorical
                 .iter()
                 .map(|(c, b)| CategoricalSpec {
@@ -1005,19 +1002,7 @@ mod tests {
                     baseline: b.clone(),
                 })
                 .collect(),
-            intercept: true,
-            confidence: 0.95,
-            trend: None,
-            season: None,
-            frequency: None,
-            log_response: false,
-            backtest: None,
-            backtest_rolling: false,
-            forecast: None,
-            interactions: vec![],
-            standard_errors: None,
-            suggest: true,
-            max_levels: crate::job::DEFAULT_MAX_LEVELS,
+            ..ModelSpec::plain("y")
         }
     }
 

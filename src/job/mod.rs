@@ -430,6 +430,32 @@ pub struct ModelSpec {
 }
 
 impl ModelSpec {
+    /// A model named `m` of `response` on nothing yet, with every default
+    /// filled: the base the unit tests of later stages build on.
+    #[cfg(test)]
+    pub(crate) fn plain(response: &str) -> ModelSpec {
+        ModelSpec {
+            name: "m".into(),
+            response: response.into(),
+            numeric: vec![],
+            poly: vec![],
+            categorical: vec![],
+            intercept: true,
+            confidence: DEFAULT_CONFIDENCE,
+            trend: None,
+            season: None,
+            frequency: None,
+            log_response: false,
+            backtest: None,
+            backtest_rolling: false,
+            forecast: None,
+            interactions: vec![],
+            standard_errors: None,
+            suggest: true,
+            max_levels: DEFAULT_MAX_LEVELS,
+        }
+    }
+
     /// The date column that orders the rows and counts periods: the trend
     /// column, else the season column.
     pub fn date_column(&self) -> Option<&str> {
