@@ -317,12 +317,7 @@ fn type_two_p_values(design: &Design) -> Option<Vec<Option<f64>>> {
         .enumerate()
         .filter(|(_, t)| t.kind != TermKind::Intercept)
         .map(|(k, term)| {
-            let higher: Vec<usize> = design
-                .terms
-                .iter()
-                .filter(|t| matches!(t.kind, TermKind::Interaction { left, right } if left == k || right == k))
-                .flat_map(|t| t.columns.clone())
-                .collect();
+            let higher = design.interaction_columns_of(k);
             let mut both: Vec<usize> = term.columns.clone().chain(higher.iter().copied()).collect();
             both.sort_unstable();
             both.dedup();
@@ -331,7 +326,11 @@ fn type_two_p_values(design: &Design) -> Option<Vec<Option<f64>>> {
             if df == 0 || residual_ms <= 0.0 {
                 return Some(None);
             }
-            Some(f_sf(sum_sq / df as f64 / residual_ms, df as f64, df_resid as f64))
+            Some(f_sf(
+                sum_sq / df as f64 / residual_ms,
+                df as f64,
+                df_resid as f64,
+            ))
         })
         .collect::<Option<Vec<Option<f64>>>>()?;
     Some(tests)

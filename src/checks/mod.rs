@@ -69,12 +69,7 @@ pub fn each_term_last_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
         .enumerate()
         .filter(|(_, t)| t.kind != TermKind::Intercept)
         .map(|(k, term)| {
-            let higher: Vec<usize> = design
-                .terms
-                .iter()
-                .filter(|t| matches!(t.kind, TermKind::Interaction { left, right } if left == k || right == k))
-                .flat_map(|t| t.columns.clone())
-                .collect();
+            let higher = design.interaction_columns_of(k);
             // The rank without the dropped columns and the rise in residual
             // sum of squares over the full model: from the fit's own QR
             // factor when it can tell, otherwise by a refit.
@@ -82,7 +77,10 @@ pub fn each_term_last_anova(design: &Design, fit: &Fit) -> Vec<AnovaRow> {
                 fit.solution.sse_rise_without(drop).unwrap_or_else(|| {
                     let cols: Vec<usize> = (0..design.x.ncols()).filter(|&j| !drop(j)).collect();
                     let refit = least_squares(&design.x.select_columns(&cols), &design.y);
-                    (refit.kept.len(), refit.residuals.norm_squared() - fit.quality.sse)
+                    (
+                        refit.kept.len(),
+                        refit.residuals.norm_squared() - fit.quality.sse,
+                    )
                 })
             };
             let (reduced_rank, reduced_rise) =

@@ -577,6 +577,16 @@ impl Design {
         }
     }
 
+    /// The design columns of the interactions that contain term `k`: what a
+    /// Type II test of term `k` leaves out along with it.
+    pub fn interaction_columns_of(&self, k: usize) -> Vec<usize> {
+        self.terms
+            .iter()
+            .filter(|t| matches!(t.kind, TermKind::Interaction { left, right } if left == k || right == k))
+            .flat_map(|t| t.columns.clone())
+            .collect()
+    }
+
     /// The design without term `k`: its columns removed, the other terms'
     /// column ranges and interaction references renumbered.
     pub fn without_term(&self, k: usize) -> Design {
