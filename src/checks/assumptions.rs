@@ -235,8 +235,8 @@ fn dw_traces(x: &DesignMatrix) -> Option<DwTraces> {
             }
             v + diagonal * row(t, k)
         });
-        differences += d.tr_mul(&d);
-        stencils += a.tr_mul(&a);
+        differences += d.transpose() * &d;
+        stencils += a.transpose() * &a;
     }
     let r_inverse = ls.r.solve_upper_triangular(&DMatrix::identity(p, p))?;
     let qaq = r_inverse.tr_mul(&differences) * &r_inverse;

@@ -132,6 +132,16 @@ impl DesignColumn {
     }
 }
 
+/// The indicator columns of one categorical term or season: the code list
+/// they share and, for each column, its index and the code it marks.
+#[derive(Debug, Clone)]
+pub struct IndicatorGroup {
+    /// One code per row.
+    pub codes: Arc<[u32]>,
+    /// (column index, code), one column per code, in column order.
+    pub columns: Vec<(usize, u32)>,
+}
+
 /// A shared code list and its copy at the gathered rows.
 type GatheredCodes = (Arc<[u32]>, Arc<[u32]>);
 
@@ -222,6 +232,15 @@ impl DesignMatrix {
         )
     }
 
+    /// The columns of this matrix followed by those of `other` (as tall);
+    /// no values are copied.
+    pub fn joined(&self, other: &DesignMatrix) -> DesignMatrix {
+        DesignMatrix::new(
+            self.rows,
+            self.columns.iter().chain(&other.columns).cloned().collect(),
+        )
+    }
+
     /// The rows `keep` (indices into this matrix), in that order.
     pub fn select_rows(&self, keep: &[usize]) -> DesignMatrix {
         let mut codes = Vec::new();
@@ -241,6 +260,30 @@ impl DesignMatrix {
             self.fill(j, 0..self.rows, &mut values);
         }
         DMatrix::from_vec(self.rows, self.ncols(), values)
+    }
+
+    /// The largest set of indicator columns that share one code list, each
+    /// code counted once (a repeated column stays out of the group); `None`
+    /// without indicator columns.
+    pub fn widest_indicator_group(&self) -> Option<IndicatorGroup> {
+        let mut groups: Vec<IndicatorGroup> = Vec::new();
+        for (j, column) in self.columns.iter().enumerate() {
+            let DesignColumn::Indicator { codes, code } = column else {
+                continue;
+            };
+            match groups.iter_mut().find(|g| Arc::ptr_eq(&g.codes, codes)) {
+                Some(group) => {
+                    if group.columns.iter().all(|&(_, c)| c != *code) {
+                        group.columns.push((j, *code));
+                    }
+                }
+                None => groups.push(IndicatorGroup {
+                    codes: Arc::clone(codes),
+                    columns: vec![(j, *code)],
+                }),
+            }
+        }
+        groups.into_iter().max_by_key(|g| g.columns.len())
     }
 
     /// The row ranges of [`BLOCK_ROWS`] rows that cover the matrix.

@@ -27,7 +27,7 @@ use crate::period::{Period, SeasonBy};
 use crate::source::{CellRef, Column, Table, Value};
 use crate::suggest::closest;
 
-pub use matrix::{DesignColumn, DesignMatrix};
+pub use matrix::{DesignColumn, DesignMatrix, IndicatorGroup};
 pub use time::Timing;
 
 /// An error that stops one model: its columns do not fit its roles.

@@ -9,6 +9,7 @@
 //! designs, where the rounding of a power to double precision cannot move
 //! the solution, stay on the fast path.
 
+mod absorb;
 pub mod qr;
 pub mod robust;
 
@@ -124,9 +125,6 @@ pub struct Auxiliary {
     pub r: DMatrix<f64>,
 }
 
-/// Rows taken at a time by [`auxiliary_least_squares_with`].
-const AUXILIARY_BLOCK: usize = 2048;
-
 /// An auxiliary regression, one that only feeds a test statistic
 /// (Breusch-Godfrey, Breusch-Pagan, RESET, ...): double precision at any
 /// condition number, with aliased columns set aside by the same rule as the
@@ -137,47 +135,16 @@ pub fn auxiliary_least_squares(x: &DesignMatrix, y: &[f64]) -> Auxiliary {
 
 /// [`auxiliary_least_squares`] on the columns of `x` followed by those of
 /// `extra` (as tall as `x`): an auxiliary regression's lags or powers, added
-/// without forming the combined matrix.
-///
-/// The rows are taken in blocks of [`AUXILIARY_BLOCK`]: each block is
-/// stacked under the triangular factor so far of [X y] and factored again
-/// (a tall-skinny QR, Demmel, Grigori, Hoemmen & Langou 2012), so memory
-/// stays at a block whatever n is. The final (p + 1)-row factor has the
-/// column norms and cross products of [X y], and the usual solve on it (unit
-/// length columns, aliasing, effects) gives what the full solve would; its
-/// residual is the model's (QR is orthogonally invariant).
+/// without copying the columns of `x`. The solve is the model's own
+/// ([`qr::solve`]), so memory stays at a block of rows whatever n is.
 pub fn auxiliary_least_squares_with(
     x: &DesignMatrix,
     extra: &DesignMatrix,
     y: &[f64],
 ) -> Auxiliary {
-    let (n, k) = (x.nrows(), x.ncols() + extra.ncols());
-    let width = k + 1;
-    let mut r = DMatrix::<f64>::zeros(0, width);
-    for start in (0..n).step_by(AUXILIARY_BLOCK) {
-        let end = (start + AUXILIARY_BLOCK).min(n);
-        let top = r.nrows();
-        let mut stacked = DMatrix::<f64>::zeros(top + end - start, width);
-        stacked.rows_mut(0, top).copy_from(&r);
-        let mut column = Vec::with_capacity(end - start);
-        for j in 0..k {
-            column.clear();
-            match j.checked_sub(x.ncols()) {
-                None => x.fill(j, start..end, &mut column),
-                Some(e) => extra.fill(e, start..end, &mut column),
-            }
-            for (i, &v) in column.iter().enumerate() {
-                stacked[(top + i, j)] = v;
-            }
-        }
-        for i in start..end {
-            stacked[(top + i - start, k)] = y[i];
-        }
-        r = stacked.qr().r();
-    }
-    let small_x = DesignMatrix::from_dense(&r.columns(0, k).into_owned(), None);
-    let small_y = r.column(k).into_owned();
-    let solved = qr::solve::<f64>(Columns::of(&small_x), &small_y, Leverage::Skipped);
+    let joined = x.joined(extra);
+    let y = DVector::from_column_slice(y);
+    let solved = qr::solve::<f64>(Columns::of(&joined), &y, Leverage::Skipped);
     Auxiliary {
         sse: solved.residuals.norm_squared(),
         kept: solved.kept,

@@ -15,6 +15,7 @@ use std::ops::{Add, Div, Mul, Neg, Sub};
 
 use nalgebra::{DMatrix, DVector};
 
+use super::absorb::Absorbed;
 use crate::ddouble::DoubleDouble;
 use crate::design::DesignMatrix;
 
@@ -126,16 +127,32 @@ impl<'a> Columns<'a> {
         Columns { low: true, ..self }
     }
 
-    fn rows(&self) -> usize {
+    pub(super) fn rows(&self) -> usize {
         self.base.nrows()
     }
 
-    fn count(&self) -> usize {
+    pub(super) fn count(&self) -> usize {
         self.base.ncols()
     }
 
+    /// Appends entries `rows` of column `j` to `out`, or of `y` when `j` is
+    /// one past the last column.
+    pub(super) fn fill_or_y<T: Real>(
+        &self,
+        y: &DVector<f64>,
+        j: usize,
+        rows: std::ops::Range<usize>,
+        out: &mut Vec<T>,
+    ) {
+        if j < self.count() {
+            self.fill(j, rows, out);
+        } else {
+            out.extend(y.as_slice()[rows].iter().map(|&v| T::of(v)));
+        }
+    }
+
     /// Appends entries `rows` of column `j` to `out`, in the arithmetic `T`.
-    fn fill<T: Real>(&self, j: usize, rows: std::ops::Range<usize>, out: &mut Vec<T>) {
+    pub(super) fn fill<T: Real>(&self, j: usize, rows: std::ops::Range<usize>, out: &mut Vec<T>) {
         let mut hi = Vec::with_capacity(rows.len());
         self.base.fill(j, rows.clone(), &mut hi);
         if self.low && self.base.has_low(j) {
@@ -153,68 +170,31 @@ impl<'a> Columns<'a> {
 /// arithmetic `T`. The columns are read in blocks of rows, never formed
 /// whole.
 pub fn solve<T: Real>(columns: Columns<'_>, y: &DVector<f64>, leverage: Leverage) -> Solved {
-    let want_leverage = leverage == Leverage::Wanted;
     let (n, p) = (columns.rows(), columns.count());
     let zero = T::of(0.0);
-    // [X y] reduced block by block to at most p + 1 rows; orthogonal steps
-    // keep every column's length and every inner product, so the column
-    // by column factorization below, on this small problem, finds what it
-    // would on the n rows, and no n-row factor is ever stored.
-    let small = reduce_rows::<T>(n, p + 1, |j, start, end, out| {
-        if j < p {
-            columns.fill(j, start..end, out);
-        } else {
-            out.extend(y.as_slice()[start..end].iter().map(|&v| T::of(v)));
-        }
-    });
-    let m = small[p].len();
-    let scale: Vec<T> = small[..p].iter().map(|c| norm(c)).collect();
-
-    let mut kept = Vec::with_capacity(p);
-    let mut aliased = Vec::new();
-    let mut reflectors: Vec<(Vec<T>, T)> = Vec::with_capacity(p.min(m));
-    let mut r_cols: Vec<Vec<T>> = Vec::with_capacity(p);
-    for (j, &length) in scale.iter().enumerate() {
-        let k = kept.len();
-        if length == zero || k >= m {
-            aliased.push(j);
-            continue;
-        }
-        let inverse = T::of(1.0) / length;
-        let mut col: Vec<T> = small[j].iter().map(|&v| v * inverse).collect();
-        for (i, (v, tau)) in reflectors.iter().enumerate() {
-            reflect(v, *tau, &mut col[i..]);
-        }
-        if norm(&col[k..]).value() < ALIAS_TOLERANCE {
-            aliased.push(j);
-            continue;
-        }
-        let (v, tau, alpha) = householder(&col[k..]);
-        let mut r_col = col[..k].to_vec();
-        r_col.push(alpha);
-        reflectors.push((v, tau));
-        r_cols.push(r_col);
-        kept.push(j);
-    }
-    let rank = kept.len();
+    // [X y] reduced to at most p + 1 rows with the same column lengths and
+    // inner products: the column by column factorization below, on this
+    // small problem, finds what it would on the n rows, and no n-row factor
+    // is ever stored. The indicators of the widest categorical term, when
+    // there is one, are reduced by their codes ([`Absorbed`]), the other
+    // columns block by block.
+    let absorbed = columns
+        .base
+        .widest_indicator_group()
+        .map(|group| Absorbed::<T>::of(columns, y, group));
+    let small = match &absorbed {
+        Some(absorbed) => absorbed.reduced(columns, y),
+        None => reduce_rows::<T>(n, p + 1, |j, rows, out| columns.fill_or_y(y, j, rows, out)),
+    };
+    let factor = Triangle::of(&small[..p], small[p].len());
+    let rank = factor.kept.len();
 
     let mut qty: Vec<T> = small[p].clone();
-    for (i, (v, tau)) in reflectors.iter().enumerate() {
-        reflect(v, *tau, &mut qty[i..]);
-    }
+    factor.reflect(&mut qty);
     let effects = &qty[..rank];
-    let r = |i: usize, j: usize| if i <= j { r_cols[j][i] } else { zero };
-    // R⁻¹ by back substitution, one column of the identity at a time.
-    let mut r_inv = vec![vec![zero; rank]; rank]; // r_inv[col][row]
-    for (c, inv_col) in r_inv.iter_mut().enumerate() {
-        for i in (0..=c).rev() {
-            let mut s = if i == c { T::of(1.0) } else { zero };
-            for (k, &x) in inv_col.iter().enumerate().take(c + 1).skip(i + 1) {
-                s = s - r(i, k) * x;
-            }
-            inv_col[i] = s / r(i, i);
-        }
-    }
+    let r_inv = factor.r_inverse();
+    let scale = &factor.scale;
+    let kept = &factor.kept;
     let scaled_beta: Vec<T> = (0..rank)
         .map(|i| (i..rank).fold(zero, |s, c| s + r_inv[c][i] * effects[c]))
         .collect();
@@ -223,40 +203,39 @@ pub fn solve<T: Real>(columns: Columns<'_>, y: &DVector<f64>, leverage: Leverage
         .zip(&scaled_beta)
         .map(|(&j, &b)| b / scale[j])
         .collect();
+    // R⁻¹R⁻ᵀ as a sum of outer products of the columns of R⁻¹, its lower
+    // triangle accumulated by columns and mirrored.
+    let mut lower: Vec<Vec<T>> = (0..rank).map(|b| vec![zero; rank - b]).collect();
+    for column in &r_inv {
+        for (b, &cb) in column.iter().enumerate() {
+            for (s, &ca) in lower[b].iter_mut().zip(&column[b..]) {
+                *s = *s + ca * cb;
+            }
+        }
+    }
     let xtx_inv = DMatrix::from_fn(rank, rank, |a, b| {
-        let s = (a.max(b)..rank).fold(zero, |s, c| s + r_inv[c][a] * r_inv[c][b]);
-        (s / (scale[kept[a]] * scale[kept[b]])).value()
+        let (a, b) = (a.max(b), a.min(b));
+        (lower[b][a - b] / (scale[kept[a]] * scale[kept[b]])).value()
     });
 
-    // Leverage h_i = ‖row i of Q‖², with Q = X_s R⁻¹ (X_s the scaled kept
-    // columns): one forward substitution zR = x_i per row; and the
-    // residuals y − Xb, the columns' terms taken in order. Both read the
+    let leverage = match (leverage, &absorbed) {
+        (Leverage::Skipped, _) => Vec::new(),
+        (Leverage::Wanted, None) => {
+            factor.leverage_of_rows(n, |j, rows, out| columns.fill(j, rows, out))
+        }
+        (Leverage::Wanted, Some(absorbed)) => absorbed.leverage(columns, y),
+    };
+    // The residuals y − Xb, the columns' terms taken in order, reading the
     // kept columns a block of rows at a time.
-    let mut leverage = Vec::with_capacity(if want_leverage { n } else { 0 });
     let mut residuals: Vec<T> = Vec::with_capacity(n);
-    let inverse_scale: Vec<T> = kept.iter().map(|&j| T::of(1.0) / scale[j]).collect();
-    let inverse_diagonal: Vec<T> = r_cols.iter().map(|c| T::of(1.0) / c[c.len() - 1]).collect();
-    let mut z = vec![zero; rank];
     let mut block: Vec<Vec<T>> = vec![Vec::with_capacity(BLOCK); rank];
     for start in (0..n).step_by(BLOCK) {
         let end = (start + BLOCK).min(n);
-        for (values, &j) in block.iter_mut().zip(&kept) {
+        for (values, &j) in block.iter_mut().zip(kept) {
             values.clear();
             columns.fill(j, start..end, values);
         }
         for i in 0..end - start {
-            if want_leverage {
-                let mut sum = zero;
-                for c in 0..rank {
-                    let mut v = block[c][i] * inverse_scale[c];
-                    for (&zm, &rm) in z[..c].iter().zip(&r_cols[c]) {
-                        v = v - zm * rm;
-                    }
-                    z[c] = v * inverse_diagonal[c];
-                    sum = sum + z[c] * z[c];
-                }
-                leverage.push(sum.value());
-            }
             let mut residual = T::of(y[start + i]);
             for (values, &b) in block.iter().zip(&beta) {
                 residual = residual - values[i] * b;
@@ -265,31 +244,174 @@ pub fn solve<T: Real>(columns: Columns<'_>, y: &DVector<f64>, leverage: Leverage
         }
     }
     Solved {
-        aliased,
         beta: DVector::from_iterator(rank, beta.iter().map(|b| b.value())),
         xtx_inv,
         effects: effects.iter().map(|e| e.value()).collect(),
         leverage,
         residuals: DVector::from_iterator(n, residuals.iter().map(|r| r.value())),
-        r: DMatrix::from_fn(rank, rank, |i, j| r(i, j).value()),
-        kept,
+        r: DMatrix::from_fn(rank, rank, |i, j| factor.r(i, j).value()),
+        aliased: factor.aliased,
+        kept: factor.kept,
+    }
+}
+
+/// The Householder factorization of a few columns, scaled to unit length
+/// and taken in order, with aliased columns set aside.
+pub(super) struct Triangle<T> {
+    /// Each column's length before scaling.
+    scale: Vec<T>,
+    /// Indices of the estimable columns, in order.
+    kept: Vec<usize>,
+    /// Indices of the aliased columns, in order.
+    aliased: Vec<usize>,
+    /// One reflector per kept column.
+    reflectors: Vec<(Vec<T>, T)>,
+    /// Column k of R over the kept columns: its first k + 1 entries.
+    r_cols: Vec<Vec<T>>,
+}
+
+impl<T: Real> Triangle<T> {
+    /// The factorization of `columns`, each `rows` long.
+    pub(super) fn of(columns: &[Vec<T>], rows: usize) -> Self {
+        let zero = T::of(0.0);
+        let p = columns.len();
+        let scale: Vec<T> = columns.iter().map(|c| norm(c)).collect();
+        let mut kept = Vec::with_capacity(p);
+        let mut aliased = Vec::new();
+        let mut reflectors: Vec<(Vec<T>, T)> = Vec::with_capacity(p.min(rows));
+        let mut r_cols: Vec<Vec<T>> = Vec::with_capacity(p);
+        for (j, &length) in scale.iter().enumerate() {
+            let k = kept.len();
+            if length == zero || k >= rows {
+                aliased.push(j);
+                continue;
+            }
+            let inverse = T::of(1.0) / length;
+            let mut col: Vec<T> = columns[j].iter().map(|&v| v * inverse).collect();
+            for (i, (v, tau)) in reflectors.iter().enumerate() {
+                reflect(v, *tau, &mut col[i..]);
+            }
+            if norm(&col[k..]).value() < ALIAS_TOLERANCE {
+                aliased.push(j);
+                continue;
+            }
+            let (v, tau, alpha) = householder(&col[k..]);
+            let mut r_col = col[..k].to_vec();
+            r_col.push(alpha);
+            reflectors.push((v, tau));
+            r_cols.push(r_col);
+            kept.push(j);
+        }
+        Triangle {
+            scale,
+            kept,
+            aliased,
+            reflectors,
+            r_cols,
+        }
+    }
+
+    /// Entry (i, j) of R.
+    fn r(&self, i: usize, j: usize) -> T {
+        if i <= j {
+            self.r_cols[j][i]
+        } else {
+            T::of(0.0)
+        }
+    }
+
+    /// `v` ← Qᵀv.
+    fn reflect(&self, v: &mut [T]) {
+        for (i, (u, tau)) in self.reflectors.iter().enumerate() {
+            reflect(u, *tau, &mut v[i..]);
+        }
+    }
+
+    /// R⁻¹ by back substitution, one column of the identity at a time,
+    /// stored by column: `r_inverse()[c][i]` is entry (i, c), for i ≤ c.
+    /// Each step subtracts a multiple of a column of R, so memory is read
+    /// in order.
+    fn r_inverse(&self) -> Vec<Vec<T>> {
+        let zero = T::of(0.0);
+        let rank = self.kept.len();
+        (0..rank)
+            .map(|c| {
+                let mut x = vec![zero; c + 1];
+                x[c] = T::of(1.0);
+                for k in (0..=c).rev() {
+                    let r_col = &self.r_cols[k];
+                    let xk = x[k] / r_col[k];
+                    x[k] = xk;
+                    for (xi, &r) in x[..k].iter_mut().zip(r_col) {
+                        *xi = *xi - xk * r;
+                    }
+                }
+                x
+            })
+            .collect()
+    }
+
+    /// Each row's leverage h = ‖row of Q‖², with Q = X_s R⁻¹ (X_s the kept
+    /// columns scaled to unit length): one forward substitution zR = xᵢ per
+    /// row. `fill(j, rows, out)` appends entries `rows` of column `j` of
+    /// the `n` rows that were factored.
+    pub(super) fn leverage_of_rows(
+        &self,
+        n: usize,
+        fill: impl Fn(usize, std::ops::Range<usize>, &mut Vec<T>),
+    ) -> Vec<f64> {
+        let zero = T::of(0.0);
+        let rank = self.kept.len();
+        let inverse_scale: Vec<T> = self
+            .kept
+            .iter()
+            .map(|&j| T::of(1.0) / self.scale[j])
+            .collect();
+        let inverse_diagonal: Vec<T> = self
+            .r_cols
+            .iter()
+            .map(|c| T::of(1.0) / c[c.len() - 1])
+            .collect();
+        let mut leverage = Vec::with_capacity(n);
+        let mut z = vec![zero; rank];
+        let mut block: Vec<Vec<T>> = vec![Vec::with_capacity(BLOCK); rank];
+        for start in (0..n).step_by(BLOCK) {
+            let end = (start + BLOCK).min(n);
+            for (values, &j) in block.iter_mut().zip(&self.kept) {
+                values.clear();
+                fill(j, start..end, values);
+            }
+            leverage.extend((0..end - start).map(|i| {
+                let mut sum = zero;
+                for c in 0..rank {
+                    let mut v = block[c][i] * inverse_scale[c];
+                    for (&zm, &rm) in z[..c].iter().zip(&self.r_cols[c]) {
+                        v = v - zm * rm;
+                    }
+                    z[c] = v * inverse_diagonal[c];
+                    sum = sum + z[c] * z[c];
+                }
+                sum.value()
+            }));
+        }
+        leverage
     }
 }
 
 /// Rows of [X y] taken at a time by [`reduce_rows`].
-const BLOCK: usize = 4096;
+pub(super) const BLOCK: usize = 4096;
 
-/// The triangular factor of the `width` columns that `fill(j, start, end,
-/// out)` supplies over rows `start..end` of `n`, as columns of at most
+/// The triangular factor of the `width` columns that `fill(j, rows, out)`
+/// supplies over rows `rows` of `n`, as columns of at most
 /// `width` rows: each block of rows is stacked under the factor so far and
 /// reduced by Householder reflections (a tall-skinny QR; Demmel, Grigori,
 /// Hoemmen & Langou 2012, "Communication-optimal parallel and sequential
 /// QR and LU factorizations", SIAM J. Sci. Comput. 34(1)). Memory is one
 /// block of rows.
-fn reduce_rows<T: Real>(
+pub(super) fn reduce_rows<T: Real>(
     n: usize,
     width: usize,
-    fill: impl Fn(usize, usize, usize, &mut Vec<T>),
+    fill: impl Fn(usize, std::ops::Range<usize>, &mut Vec<T>),
 ) -> Vec<Vec<T>> {
     let zero = T::of(0.0);
     let mut factor: Vec<Vec<T>> = vec![Vec::new(); width];
@@ -297,7 +419,7 @@ fn reduce_rows<T: Real>(
         let end = (start + BLOCK).min(n);
         let mut stacked = factor;
         for (j, column) in stacked.iter_mut().enumerate() {
-            fill(j, start, end, column);
+            fill(j, start..end, column);
         }
         let rows = stacked[0].len();
         for k in 0..width.min(rows) {

@@ -114,7 +114,7 @@ pub fn robust_covariance(
             };
             row *= root_weight;
         }
-        v += w.tr_mul(&w);
+        v += w.transpose() * &w;
     }
     v
 }
