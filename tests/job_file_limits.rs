@@ -197,4 +197,15 @@ fn pairs_that_are_not_nested_are_compared_among_the_first_twenty_models() {
     // on the other column are left out: 10 + 11.
     assert_eq!(json["comparisons_left_out"], 21);
     assert_eq!(json["comparisons"].as_array().unwrap().len(), 210);
+    // The Comparison sheet says so below its table.
+    let mut book = calamine::open_workbook_auto(s.path("job-report.xlsx")).unwrap();
+    let sheet = calamine::Reader::worksheet_range(&mut book, "Comparison").unwrap();
+    let note = sheet
+        .get_value((212, 0))
+        .map(|v| v.to_string())
+        .unwrap_or_default();
+    assert!(
+        note.starts_with("21 pairs of models that are not nested are not compared"),
+        "{note}"
+    );
 }

@@ -870,7 +870,18 @@ fn comparison(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(
         sheet.write_string(0, 0, "One model: nothing to compare.")?;
         return Ok(());
     }
-    write_table(sheet, f, "Comparison_table", 0, &headers, &rows)
+    write_table(sheet, f, "Comparison_table", 0, &headers, &rows)?;
+    let left_out = results.comparisons_left_out;
+    if left_out > 0 {
+        let note = format!(
+            "{left_out} pair{} of models that are not nested {} not compared: every nested pair is, and the unnested pairs among the first {} models of the job.",
+            if left_out == 1 { "" } else { "s" },
+            if left_out == 1 { "is" } else { "are" },
+            crate::compare::UNNESTED_PAIRS_AMONG
+        );
+        sheet.write_string(rows.len() as u32 + 2, 0, note)?;
+    }
+    Ok(())
 }
 
 fn checks(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
