@@ -1,0 +1,215 @@
+//! Sheets of workbooks (.xlsx, .xlsm, .xlsb, .xls, .ods) through calamine:
+//! .xlsx and .xlsm sheets streamed cell by cell, the others as ranges.
+
+use std::fmt;
+use std::fs::File;
+use std::io::{BufReader, Seek, SeekFrom};
+use std::path::Path;
+use std::sync::Arc;
+
+use calamine::{Data, DataRef, Ods, Reader, Sheets, Xls, Xlsb, Xlsx};
+
+use super::table::{Builder, Table};
+use super::{SourceError, Value};
+
+fn open_error(path: &Path, e: impl fmt::Display) -> SourceError {
+    let text = e.to_string();
+    let hint = if text.contains("ncrypt") || text.contains("CFB") || text.contains("cfb") {
+        "; an encrypted or password-protected workbook cannot be read: save an unprotected copy"
+    } else {
+        ""
+    };
+    SourceError::Open {
+        path: path.to_path_buf(),
+        reason: format!("it is not a readable workbook ({text}){hint}"),
+    }
+}
+
+/// The sheet to read: `wanted`, or the first.
+fn pick_sheet(path: &Path, names: &[String], wanted: Option<&str>) -> Result<String, SourceError> {
+    match wanted {
+        Some(s) => names
+            .iter()
+            .find(|n| n.as_str() == s)
+            .cloned()
+            .ok_or_else(|| SourceError::NoSuchSheet {
+                path: path.to_path_buf(),
+                sheet: s.to_string(),
+                available: names
+                    .iter()
+                    .map(|n| format!("'{n}'"))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+            }),
+        None => names.first().cloned().ok_or_else(|| SourceError::Open {
+            path: path.to_path_buf(),
+            reason: "the workbook has no sheets".into(),
+        }),
+    }
+}
+
+/// The workbook in `file`, of the kind its extension names (told from its
+/// bytes when the extension names none), as calamine's own opening by path
+/// does, but from the one open file.
+fn open_workbook<'f>(
+    path: &Path,
+    file: &'f File,
+) -> Result<Sheets<BufReader<&'f File>>, calamine::Error> {
+    let from_start = || -> Result<BufReader<&'f File>, calamine::Error> {
+        let mut f = file;
+        f.seek(SeekFrom::Start(0))?;
+        Ok(BufReader::new(file))
+    };
+    Ok(match path.extension().and_then(|e| e.to_str()) {
+        Some("xls" | "xla") => Sheets::Xls(Xls::new(from_start()?).map_err(calamine::Error::Xls)?),
+        Some("xlsx" | "xlsm" | "xlam") => {
+            Sheets::Xlsx(Xlsx::new(from_start()?).map_err(calamine::Error::Xlsx)?)
+        }
+        Some("xlsb") => Sheets::Xlsb(Xlsb::new(from_start()?).map_err(calamine::Error::Xlsb)?),
+        Some("ods") => Sheets::Ods(Ods::new(from_start()?).map_err(calamine::Error::Ods)?),
+        _ => {
+            if let Ok(w) = Xls::new(from_start()?) {
+                Sheets::Xls(w)
+            } else if let Ok(w) = Xlsx::new(from_start()?) {
+                Sheets::Xlsx(w)
+            } else if let Ok(w) = Xlsb::new(from_start()?) {
+                Sheets::Xlsb(w)
+            } else if let Ok(w) = Ods::new(from_start()?) {
+                Sheets::Ods(w)
+            } else {
+                return Err(calamine::Error::Msg("Cannot detect file format"));
+            }
+        }
+    })
+}
+
+pub(super) fn read_workbook(
+    path: &Path,
+    file: &File,
+    sheet: Option<&str>,
+    header_row: u32,
+) -> Result<Table, SourceError> {
+    let mut workbook = open_workbook(path, file).map_err(|e| open_error(path, e))?;
+    let name = pick_sheet(path, &workbook.sheet_names(), sheet)?;
+    let sheet_error = |e: &dyn fmt::Display| SourceError::Sheet {
+        path: path.to_path_buf(),
+        sheet: name.clone(),
+        reason: e.to_string(),
+    };
+    let mut builder = Builder::new(path, &name, header_row);
+    match &mut workbook {
+        Sheets::Xlsx(xlsx) => {
+            let mut cells = xlsx
+                .worksheet_cells_reader(&name)
+                .map_err(|e| sheet_error(&e))?;
+            let mut last_dates = LastDates::default();
+            while let Some(cell) = cells.next_cell().map_err(|e| sheet_error(&e))? {
+                let (row, col) = cell.get_position();
+                let value = match cell.get_value() {
+                    DataRef::DateTime(dt) => last_dates.value(col, dt),
+                    other => value_from_ref(other),
+                };
+                builder.push(row, col, value)?;
+            }
+        }
+        other => {
+            let range = other.worksheet_range(&name).map_err(|e| sheet_error(&e))?;
+            let (row0, col0) = range.start().unwrap_or((0, 0));
+            for (r, c, cell) in range.used_cells() {
+                builder.push(row0 + r as u32, col0 + c as u32, value_from_cell(cell))?;
+            }
+        }
+    }
+    builder.finish()
+}
+
+fn value_from_ref(cell: &DataRef<'_>) -> Value {
+    match cell {
+        DataRef::Empty => Value::Blank,
+        DataRef::Int(i) => Value::Number(*i as f64),
+        DataRef::Float(x) => Value::Number(*x),
+        DataRef::String(s) => text_value(s),
+        DataRef::SharedString(s) => text_value(s),
+        DataRef::Bool(b) => Value::Bool(*b),
+        DataRef::DateTime(dt) => date_value(dt),
+        DataRef::DateTimeIso(s) | DataRef::DurationIso(s) => Value::Date(s.clone().into()),
+        DataRef::Error(e) => Value::Error(e.to_string().into()),
+    }
+}
+
+/// The last date read in each sheet column with its value: a date column
+/// often repeats a date row after row (a month's rows), and forming a
+/// date's text is the slowest step of reading a cell.
+#[derive(Default)]
+struct LastDates(Vec<Option<(calamine::ExcelDateTime, Value)>>);
+
+impl LastDates {
+    fn value(&mut self, col: u32, dt: &calamine::ExcelDateTime) -> Value {
+        let col = col as usize;
+        if self.0.len() <= col {
+            self.0.resize(col + 1, None);
+        }
+        match &self.0[col] {
+            Some((last, value)) if last == dt => value.clone(),
+            _ => {
+                let value = date_value(dt);
+                self.0[col] = Some((*dt, value.clone()));
+                value
+            }
+        }
+    }
+}
+
+fn date_value(dt: &calamine::ExcelDateTime) -> Value {
+    Value::Date(
+        match dt.as_datetime() {
+            Some(d) if d.time() == chrono::NaiveTime::MIN => d.date().to_string(),
+            Some(d) => d.to_string(),
+            None => dt.as_f64().to_string(),
+        }
+        .into(),
+    )
+}
+
+fn value_from_cell(cell: &Data) -> Value {
+    match cell {
+        Data::Empty => Value::Blank,
+        Data::Int(i) => Value::Number(*i as f64),
+        Data::Float(x) => Value::Number(*x),
+        Data::String(s) => text_value(s),
+        Data::Bool(b) => Value::Bool(*b),
+        Data::DateTime(dt) => date_value(dt),
+        Data::DateTimeIso(s) | Data::DurationIso(s) => Value::Date(s.clone().into()),
+        Data::Error(e) => Value::Error(e.to_string().into()),
+    }
+}
+
+/// Text cells: blank when only spaces; spreadsheet error texts (as some
+/// formats store them) stay errors.
+pub(super) fn text_value(s: &str) -> Value {
+    let t = s.trim();
+    if t.is_empty() {
+        Value::Blank
+    } else if matches!(
+        t,
+        "#DIV/0!" | "#N/A" | "#NAME?" | "#NULL!" | "#NUM!" | "#REF!" | "#VALUE!"
+    ) {
+        Value::Error(Arc::new(t.to_string()))
+    } else {
+        Value::text(t)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn spreadsheet_error_text_is_an_error_value() {
+        assert_eq!(
+            text_value(" #N/A "),
+            Value::Error(Arc::new("#N/A".to_string()))
+        );
+        assert_eq!(text_value("   "), Value::Blank);
+    }
+}
