@@ -367,6 +367,7 @@ mod tests {
         let table = Table {
             path: PathBuf::from("d.csv"),
             sheet: "d.csv".into(),
+            header_row: 1,
             rows: (2..2 + n as u32).collect(),
             columns: vec![
                 column("y", 0, y.into_iter().map(Value::Number).collect()),

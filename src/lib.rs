@@ -102,6 +102,24 @@ impl Error {
     }
 }
 
+/// The job's area of its input, screened for summary rows and text numbers
+/// over the columns its models read ([`source::screen::screen`]).
+fn read_data(job: &Job, input: &source::Input) -> Result<(Table, source::screen::Screened), Error> {
+    let mut table = input.read_area(job.sheet.as_deref(), &job.reading.area, &job.limits)?;
+    let used: Vec<&str> = job
+        .models
+        .iter()
+        .flat_map(|m| m.columns().chain(m.date_column()))
+        .collect();
+    let numeric: Vec<&str> = job
+        .models
+        .iter()
+        .flat_map(job::ModelSpec::numeric_columns)
+        .collect();
+    let screened = source::screen::screen(&mut table, &used, &numeric, &job.reading)?;
+    Ok((table, screened))
+}
+
 /// Every reported number of the job's models: each model's fit, checks,
 /// forecast, back-test and suggested smaller model, then the comparisons.
 ///
@@ -211,7 +229,7 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
     let mut timings = Timings::new();
     let clock = Instant::now();
     let input = source::Input::open(&job.input)?;
-    let table = input.read_table(job.sheet.as_deref(), job.header_row, &job.limits)?;
+    let (table, screened) = read_data(job, &input)?;
     let input_sha256 = input
         .sha256()
         .map(|digest| hex(&digest))
@@ -222,7 +240,10 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
     after_read_hook();
     timings.push(("read input", clock.elapsed()));
     let clock = Instant::now();
-    let (sheet, rows_read) = (table.sheet.clone(), table.rows.len());
+    let (sheet, rows_read) = (
+        table.sheet.clone(),
+        table.rows.len() + screened.summary_rows_left_out.len(),
+    );
     let (models, comparisons) =
         model_results(job, &input, table, Scope::Everything, &mut |_, _, _| {})?;
     // The plan sheets were the last reads of the input.
@@ -249,6 +270,7 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         input_sha256,
         sheet,
         rows_read,
+        screened,
     };
     Ok((collect(job, run, models, comparisons, changes), timings))
 }
@@ -353,7 +375,8 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
     let job = job::load(path)?;
     report::check_targets(&job.output, &[&job.input, &job.path])?;
     let input = source::Input::open(&job.input)?;
-    let table = input.read_table(job.sheet.as_deref(), job.header_row, &job.limits)?;
+    let tables = input.worksheet_tables()?;
+    let (table, screened) = read_data(&job, &input)?;
     let mut out = String::new();
     let _ = writeln!(out, "job {}: {} model(s)", path.display(), job.models.len());
     let _ = writeln!(
@@ -362,8 +385,21 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
         job.input.display(),
         table.sheet,
         table.rows.len(),
-        job.header_row
+        table.header_row
     );
+    for t in &tables {
+        let _ = writeln!(out, "worksheet table {t}");
+    }
+    for row in &screened.summary_rows_left_out {
+        let _ = writeln!(out, "left out before any model: {}", row.reason);
+    }
+    for t in &screened.text_numbers_read {
+        let _ = writeln!(
+            out,
+            "read as numbers: {} text cells of column '{}'",
+            t.cells, t.column
+        );
+    }
     out.push_str(&describe_columns(&table));
     // Each model as a run computes it, so check meets the errors the data
     // can raise; suggested models and comparisons are left to run.

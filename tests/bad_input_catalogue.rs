@@ -377,31 +377,63 @@ fn csv_text_true_in_a_numeric_column_names_the_cell() {
 }
 
 #[test]
-fn thousands_separator_text_gets_the_stored_as_text_hint() {
-    let s = Scratch::new();
-    csv_with_x_field(&s, "\"1,234\"");
-    assert_refused(&s, 1, &[&b5_text("1,234"), STORED_AS_TEXT, CELL_REMEDY]);
+fn thousands_separator_text_is_counted_and_read_with_text_numbers() {
+    assert_text_number("\"1,234\"", 1234.0);
 }
 
 #[test]
-fn accounting_negative_in_brackets_gets_the_stored_as_text_hint() {
-    let s = Scratch::new();
-    csv_with_x_field(&s, "\"(1,234)\"");
-    assert_refused(&s, 1, &[&b5_text("(1,234)"), STORED_AS_TEXT, CELL_REMEDY]);
+fn accounting_negative_in_brackets_is_counted_and_read_with_text_numbers() {
+    assert_text_number("\"(1,234)\"", -1234.0);
 }
 
 #[test]
-fn percent_text_gets_the_stored_as_text_hint() {
-    let s = Scratch::new();
-    csv_with_x_field(&s, "12%");
-    assert_refused(&s, 1, &[&b5_text("12%"), STORED_AS_TEXT, CELL_REMEDY]);
+fn percent_text_is_counted_and_read_with_text_numbers() {
+    assert_text_number("12%", 0.12);
 }
 
 #[test]
-fn currency_text_gets_the_stored_as_text_hint() {
+fn currency_text_is_counted_and_read_with_text_numbers() {
+    assert_text_number("\"$1,200\"", 1200.0);
+}
+
+/// Text in cell B5 of column x that reads as `value`: refused with a count,
+/// the cell and the key (never the advice to make the column categorical),
+/// then read with `text_numbers = "read"` and listed in the JSON.
+fn assert_text_number(field: &str, value: f64) {
     let s = Scratch::new();
-    csv_with_x_field(&s, "\"$1,200\"");
-    assert_refused(&s, 1, &[&b5_text("$1,200"), STORED_AS_TEXT, CELL_REMEDY]);
+    csv_with_x_field(&s, field);
+    assert_refused(
+        &s,
+        1,
+        &[
+            "sheet 'data.csv' of data.csv: column 'x' holds 1 text cell where numbers belong (B5); all read as numbers; write `text_numbers = \"read\"` under [input] to read them as numbers",
+        ],
+    );
+    let out = sheetfit(&s.path(""), &["run", "job.toml"]);
+    assert!(!stderr(&out).contains("categorical"), "{}", stderr(&out));
+    s.write(
+        "job.toml",
+        &CSV_JOB.replace("[input]\n", "[input]\ntext_numbers = \"read\"\n"),
+    );
+    let out = sheetfit(&s.path(""), &["run", "job.toml"]);
+    assert_status(&out, 0);
+    let json = read_json(&s.path("job-report.json"));
+    assert_eq!(json["run"]["text_numbers_read"][0]["column"], "x");
+    assert_eq!(json["run"]["text_numbers_read"][0]["cells"], 1);
+    let x5 = json["models"][0]["residuals"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r["row"] == 5)
+        .unwrap();
+    // Fitted = b0 + b1 x: the row's x is the number the text reads as.
+    let b = &json["models"][0]["coefficients"];
+    let fitted = b[0]["estimate"].as_f64().unwrap() + b[1]["estimate"].as_f64().unwrap() * value;
+    let got = x5["fitted"].as_f64().unwrap();
+    assert!(
+        (got - fitted).abs() <= 1e-9 * fitted.abs().max(1.0),
+        "{got} vs {fitted}"
+    );
 }
 
 #[test]

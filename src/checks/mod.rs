@@ -537,6 +537,7 @@ mod tests {
         let table = Table {
             path: PathBuf::from("d.csv"),
             sheet: "d.csv".into(),
+            header_row: 1,
             rows: (2..8).collect(),
             columns: vec![
                 Column {

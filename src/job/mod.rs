@@ -17,6 +17,9 @@ use serde::Deserialize;
 use crate::period::{Frequency, SeasonBy};
 
 mod cell_text;
+mod input;
+
+pub use input::{Area, CellRange, InputFile, Limits, Reading, SummaryRows};
 
 /// Most levels a categorical column may have unless `max_levels` under
 /// [input] says otherwise.
@@ -47,31 +50,6 @@ impl Robust {
         match self {
             Robust::Hc1 => "HC1",
             Robust::Hc3 => "HC3",
-        }
-    }
-}
-
-/// The limits of the pre-scan; each can be raised in the job's `[input]`
-/// table (`max_cells`, `max_shared_strings`, `max_uncompressed_mb`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub struct Limits {
-    /// Cells a sheet's declared dimension may span (rows × columns).
-    pub cells: u64,
-    /// Shared strings the workbook may declare.
-    pub shared_strings: u64,
-    /// Total uncompressed size of the zip's parts, in MiB.
-    pub uncompressed_mb: u64,
-}
-
-impl Default for Limits {
-    /// 100 million cells (a full-height sheet of 95 columns), 20 million
-    /// shared strings, 4 GiB uncompressed: far beyond real business
-    /// workbooks, well below what would exhaust a 24 GiB machine.
-    fn default() -> Self {
-        Limits {
-            cells: 100_000_000,
-            shared_strings: 20_000_000,
-            uncompressed_mb: 4096,
         }
     }
 }
@@ -131,28 +109,6 @@ pub struct JobFile {
     /// The models to fit, in the order they appear in the report.
     #[serde(default, rename = "model")]
     pub models: Vec<ModelFile>,
-}
-
-/// The `[input]` table.
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct InputFile {
-    /// The workbook or CSV file, relative to the job file.
-    pub workbook: PathBuf,
-    /// Sheet name; the first sheet when absent.
-    pub sheet: Option<String>,
-    /// Row holding the column names, counted from 1; default 1.
-    #[serde(default, deserialize_with = "row_number")]
-    pub header_row: Option<u32>,
-    /// Raise the pre-scan's limit on the cells a sheet may declare.
-    pub max_cells: Option<u64>,
-    /// Raise the pre-scan's limit on declared shared strings.
-    pub max_shared_strings: Option<u64>,
-    /// Raise the pre-scan's limit on the unpacked size, in MiB.
-    pub max_uncompressed_mb: Option<u64>,
-    /// Most levels a categorical column may have; default
-    /// [`DEFAULT_MAX_LEVELS`].
-    pub max_levels: Option<usize>,
 }
 
 /// The `[output]` table.
@@ -259,21 +215,6 @@ fn column_names<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Vec<String>, D
     Ok(names)
 }
 
-/// `header_row = 1`: a whole number; text or a fraction is refused with a
-/// message saying what to write.
-fn row_number<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u32>, D::Error> {
-    #[derive(Deserialize)]
-    #[serde(
-        untagged,
-        expecting = "the number of the row holding the column names, counted from 1, written as a whole number such as 1 (without quotes)"
-    )]
-    enum Row {
-        Number(u32),
-    }
-    let Row::Number(row) = Row::deserialize(d)?;
-    Ok(Some(row))
-}
-
 /// The two spellings of `categorical`.
 #[derive(Debug, Deserialize)]
 #[serde(
@@ -302,6 +243,8 @@ pub struct Job {
     pub sheet: Option<String>,
     /// Header row, counted from 1.
     pub header_row: u32,
+    /// Where the data is and how its cells are read.
+    pub reading: Reading,
     /// Limits of the workbook pre-scan.
     pub limits: Limits,
     /// Report workbook path, resolved; may still hold `{period}`, `{date}`
@@ -470,6 +413,14 @@ impl ModelSpec {
         self.columns().any(|c| c == name) || self.date_column() == Some(name)
     }
 
+    /// The columns whose cells must be numbers: the response, then the
+    /// numeric and polynomial predictors.
+    pub fn numeric_columns(&self) -> impl Iterator<Item = &str> {
+        std::iter::once(self.response.as_str())
+            .chain(self.numeric.iter().map(String::as_str))
+            .chain(self.poly.iter().map(|p| p.column.as_str()))
+    }
+
     /// Every column the model reads: the response first, then predictors in
     /// job order.
     pub fn columns(&self) -> impl Iterator<Item = &str> {
@@ -550,13 +501,12 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         ));
     }
     let input = folder.join(&file.input.workbook);
-    let header_row = file.input.header_row.unwrap_or(1);
-    if header_row == 0 {
-        return Err(invalid(
-            "input.header_row",
-            "rows are counted from 1; use 1 for the first row".into(),
-        ));
-    }
+    let is_csv = input
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    let reading = Reading::of(&file.input, is_csv).map_err(|(k, msg)| invalid(k, msg))?;
+    let header_row = reading.header_row();
     let output = match file.output.workbook {
         Some(p) => {
             if p.extension().and_then(|e| e.to_str()) != Some("xlsx") {
@@ -726,10 +676,6 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);
     }
-    let is_csv = input
-        .extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
     if is_csv && file.input.sheet.is_some() {
         return Err(invalid(
             "input.sheet",
@@ -776,6 +722,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         input,
         sheet: file.input.sheet,
         header_row,
+        reading,
         limits: Limits {
             cells: file.input.max_cells.unwrap_or(defaults.cells),
             shared_strings: file

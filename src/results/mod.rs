@@ -8,6 +8,8 @@
 
 use serde::Serialize;
 
+use crate::source::screen::Screened;
+
 use crate::compare::{Comparison, Comparisons};
 use crate::job::Job;
 
@@ -46,6 +48,9 @@ pub struct RunStamp {
     pub sheet: String,
     /// Data rows read below the header.
     pub rows_read: usize,
+    /// Summary rows left out and text numbers read before any model.
+    #[serde(flatten)]
+    pub screened: Screened,
 }
 
 /// All results of one job.

@@ -3,11 +3,11 @@
 use std::fs::File;
 use std::path::Path;
 
-use super::table::{Builder, Table};
+use super::table::{Bounds, Builder, Table};
 use super::workbook::text_value;
 use super::{SourceError, Value};
 
-pub(super) fn read_csv(path: &Path, file: &File, header_row: u32) -> Result<Table, SourceError> {
+pub(super) fn read_csv(path: &Path, file: &File, bounds: Bounds) -> Result<Table, SourceError> {
     let open_err = |reason: String| SourceError::Open {
         path: path.to_path_buf(),
         reason,
@@ -20,7 +20,7 @@ pub(super) fn read_csv(path: &Path, file: &File, header_row: u32) -> Result<Tabl
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
-    let mut builder = Builder::new(path, &name, header_row);
+    let mut builder = Builder::new(path, &name, bounds);
     for (r, record) in reader.records().enumerate() {
         let record = record.map_err(|e| open_err(format!("it is not readable CSV ({e})")))?;
         for (c, field) in record.iter().enumerate() {

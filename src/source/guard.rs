@@ -84,7 +84,7 @@ pub fn prescan(file: &File, limits: &Limits) -> Result<(), Refusal> {
 }
 
 /// The value of `name="..."` in the first `tag` element of `xml`.
-fn attribute(xml: &str, tag: &str, name: &str) -> Option<String> {
+pub(super) fn attribute(xml: &str, tag: &str, name: &str) -> Option<String> {
     let start = xml.find(tag)?;
     let element = &xml[start..start + xml[start..].find('>')?];
     let key = format!(" {name}=\"");

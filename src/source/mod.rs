@@ -7,20 +7,26 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::job::Limits;
+use crate::job::{Area, Limits};
 
 mod cells;
 mod csv;
 mod guard;
 mod input;
+pub mod screen;
 mod table;
+mod tables;
+mod text_number;
 mod workbook;
 
 pub use cells::{column_letters, CellRef, Cells, Value};
 pub use input::Input;
 pub use table::{Column, Table};
+pub use tables::WorksheetTable;
+pub use text_number::read_number;
 
 use self::csv::read_csv;
+use self::table::Bounds;
 use self::workbook::read_workbook;
 
 /// An error while opening or reading the input.
@@ -81,6 +87,54 @@ pub enum SourceError {
         /// The header row, counted from 1.
         row: u32,
     },
+    /// The job names a worksheet table, and the file kind has none.
+    #[error("{path} has no worksheet tables (only .xlsx and .xlsm files have them); give the data's cells with `range = \"B5:H200\"` under [input] instead of `table`")]
+    NoTables {
+        /// The input file.
+        path: PathBuf,
+    },
+    /// The worksheet table named in the job does not exist.
+    #[error("{path} has no worksheet table named '{table}'{suggestion}; {available}")]
+    NoSuchTable {
+        /// The input file.
+        path: PathBuf,
+        /// The table asked for.
+        table: String,
+        /// ", did you mean ..." or nothing.
+        suggestion: String,
+        /// The tables the workbook has, or what to do without any.
+        available: String,
+    },
+    /// The worksheet table has no data rows.
+    #[error("{path}: worksheet table {table} has no data rows")]
+    EmptyTable {
+        /// The input file.
+        path: PathBuf,
+        /// The table, described.
+        table: String,
+    },
+    /// Summary rows (totals, averages) or a units row inside the data.
+    #[error("{place}: {first}{more}. {}", if *units { "A units row is not data; leave it out with `summary_rows = \"leave_out\"` under [input], or start the data below it with `range` (its first row the header)" } else { "A summary row must not be fitted as data: leave it out with `summary_rows = \"leave_out\"` under [input], or give only the data's cells with `range` (or `table`); if it is data after all (a level truly called so), write `summary_rows = \"keep\"`" })]
+    SummaryRows {
+        /// "sheet 'x' of file".
+        place: String,
+        /// The first row found and why.
+        first: String,
+        /// " (2 more: rows ...)" or nothing.
+        more: String,
+        /// Whether the first is a units row.
+        units: bool,
+    },
+    /// Text in columns that must hold numbers.
+    #[error("{place}: {columns}; {fix}")]
+    TextNumbers {
+        /// "sheet 'x' of file".
+        place: String,
+        /// Each column: count, first cells, whether they read as numbers.
+        columns: String,
+        /// What to write in the job or the sheet.
+        fix: String,
+    },
     /// Two columns share one name.
     #[error("sheet '{sheet}' of {path}: cells {first} and {second} both name a column '{name}'; give each column its own name")]
     DuplicateHeader {
@@ -124,50 +178,94 @@ pub fn read_table_with(
 
 impl Input {
     /// Reads `sheet` (the first sheet when `None`) of the open workbook or
-    /// CSV file, with column names in `header_row` (counted from 1),
-    /// refusing an .xlsx/.xlsm file past `limits` before the reader sees
-    /// it. Sheets of .xlsx/.xlsm files are read cell by cell into the named
-    /// columns, so memory follows the data, not the sheet's bounding box;
-    /// rows after the last value in a named column are not kept, and
-    /// columns with a blank header cell are skipped. Each call reads from
-    /// the start of the one open file.
+    /// CSV file, with column names in `header_row` (counted from 1), as
+    /// [`Input::read_area`] does.
     ///
     /// # Errors
-    /// [`SourceError`] when the file cannot be read or is refused, the
-    /// sheet is missing, the header row is empty or two columns share a
-    /// name; [`SourceError::Changed`] instead of any of these when the file
-    /// changed while it was read (a half-saved file reads as damaged).
+    /// As [`Input::read_area`].
     pub fn read_table(
         &self,
         sheet: Option<&str>,
         header_row: u32,
         limits: &Limits,
     ) -> Result<Table, SourceError> {
-        self.read_table_once(sheet, header_row, limits)
+        self.read_area(sheet, &Area::Sheet { header_row }, limits)
+    }
+
+    /// Reads `area` of the open workbook or CSV file (of `sheet`, or the
+    /// first sheet, unless the area is a worksheet table), refusing an
+    /// .xlsx/.xlsm file past `limits` before the reader sees it. Sheets of
+    /// .xlsx/.xlsm files are read cell by cell into the named columns, so
+    /// memory follows the data, not the sheet's bounding box; rows after
+    /// the last value in a named column are not kept, and columns with a
+    /// blank header cell are skipped. Each call reads from the start of
+    /// the one open file.
+    ///
+    /// # Errors
+    /// [`SourceError`] when the file cannot be read or is refused, the
+    /// sheet or table is missing, the header row is empty or two columns
+    /// share a name; [`SourceError::Changed`] instead of any of these when
+    /// the file changed while it was read (a half-saved file reads as
+    /// damaged).
+    pub fn read_area(
+        &self,
+        sheet: Option<&str>,
+        area: &Area,
+        limits: &Limits,
+    ) -> Result<Table, SourceError> {
+        self.read_area_once(sheet, area, limits)
             .map_err(|e| self.check_unchanged().err().unwrap_or(e))
     }
 
-    fn read_table_once(
-        &self,
-        sheet: Option<&str>,
-        header_row: u32,
-        limits: &Limits,
-    ) -> Result<Table, SourceError> {
-        let path = self.path();
-        let extension = path
+    /// The worksheet tables of the open workbook, each with its sheet;
+    /// none for files other than .xlsx and .xlsm.
+    ///
+    /// # Errors
+    /// [`SourceError`] when the workbook cannot be read.
+    pub fn worksheet_tables(&self) -> Result<Vec<WorksheetTable>, SourceError> {
+        if !self.is_zip_workbook() {
+            return Ok(Vec::new());
+        }
+        workbook::worksheet_tables(self.path(), self.rewound()?)
+    }
+
+    fn extension(&self) -> String {
+        self.path()
             .extension()
             .and_then(|e| e.to_str())
             .map(str::to_ascii_lowercase)
-            .unwrap_or_default();
-        if extension == "csv" {
-            return read_csv(path, self.rewound()?, header_row);
+            .unwrap_or_default()
+    }
+
+    fn is_zip_workbook(&self) -> bool {
+        matches!(self.extension().as_str(), "xlsx" | "xlsm")
+    }
+
+    fn read_area_once(
+        &self,
+        sheet: Option<&str>,
+        area: &Area,
+        limits: &Limits,
+    ) -> Result<Table, SourceError> {
+        let path = self.path();
+        if self.extension() == "csv" {
+            let bounds = match area {
+                Area::Sheet { header_row } => Bounds::from_row(*header_row),
+                Area::Range(range) => Bounds::of_range(range),
+                Area::Table(_) => {
+                    return Err(SourceError::NoTables {
+                        path: path.to_path_buf(),
+                    })
+                }
+            };
+            return read_csv(path, self.rewound()?, bounds);
         }
-        if matches!(extension.as_str(), "xlsx" | "xlsm") {
+        if self.is_zip_workbook() {
             guard::prescan(self.rewound()?, limits).map_err(|reason| SourceError::Refused {
                 path: path.to_path_buf(),
                 reason,
             })?;
         }
-        read_workbook(path, self.rewound()?, sheet, header_row)
+        read_workbook(path, self.rewound()?, sheet, area)
     }
 }

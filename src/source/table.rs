@@ -4,6 +4,7 @@
 use std::path::{Path, PathBuf};
 
 use super::{CellRef, Cells, SourceError, Value};
+use crate::job::CellRange;
 
 /// One named column of the table.
 #[derive(Debug, Clone)]
@@ -23,6 +24,8 @@ pub struct Table {
     pub path: PathBuf,
     /// The sheet read (for CSV, the file name).
     pub sheet: String,
+    /// The row holding the column names, counted from 1.
+    pub header_row: u32,
     /// Sheet row number (from 1) of each data row.
     pub rows: Vec<u32>,
     /// The columns in sheet order.
@@ -54,9 +57,59 @@ impl Table {
         }
     }
 
+    /// Removes the data rows whose sheet row number `drop` picks.
+    pub fn remove_rows(&mut self, drop: impl Fn(u32) -> bool) {
+        let keep: Vec<usize> = (0..self.rows.len())
+            .filter(|&i| !drop(self.rows[i]))
+            .collect();
+        for column in &mut self.columns {
+            if !column.values.is_empty() {
+                column.values = keep.iter().map(|&i| column.values.get(i)).collect();
+            }
+        }
+        self.rows = keep.iter().map(|&i| self.rows[i]).collect();
+    }
+
     /// Where the data came from, for messages: "sheet 'records' of data.xlsx".
     pub fn place(&self) -> String {
         format!("sheet '{}' of {}", self.sheet, self.path.display())
+    }
+}
+
+/// The cells a table is built from: the header row and below, and for a
+/// range or a worksheet table only its columns and rows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Bounds {
+    /// The row holding the column names, counted from 1.
+    pub header_row: u32,
+    /// The last row read, counted from 1; the sheet's last when `None`.
+    pub last_row: Option<u32>,
+    /// The first and last columns read (from 0); all when `None`.
+    pub columns: Option<(u32, u32)>,
+}
+
+impl Bounds {
+    /// Everything from `header_row` down.
+    pub fn from_row(header_row: u32) -> Self {
+        Bounds {
+            header_row,
+            last_row: None,
+            columns: None,
+        }
+    }
+
+    /// The rectangle `range`, its first row the header.
+    pub fn of_range(range: &CellRange) -> Self {
+        Bounds {
+            header_row: range.first_row,
+            last_row: Some(range.last_row),
+            columns: Some((range.first_col, range.last_col)),
+        }
+    }
+
+    fn holds(&self, row: u32, col: u32) -> bool {
+        self.last_row.is_none_or(|last| row <= last)
+            && self.columns.is_none_or(|(a, b)| (a..=b).contains(&col))
     }
 }
 
@@ -68,6 +121,8 @@ pub(super) struct Builder {
     sheet: String,
     /// Header row, counted from 1.
     header_row: u32,
+    /// The cells read.
+    bounds: Bounds,
     columns: Vec<Column>,
     /// Column index by sheet column, once the header is complete.
     by_col: std::collections::HashMap<u32, usize>,
@@ -76,11 +131,12 @@ pub(super) struct Builder {
 }
 
 impl Builder {
-    pub(super) fn new(path: &Path, sheet: &str, header_row: u32) -> Self {
+    pub(super) fn new(path: &Path, sheet: &str, bounds: Bounds) -> Self {
         Builder {
             path: path.to_path_buf(),
             sheet: sheet.to_string(),
-            header_row,
+            header_row: bounds.header_row,
+            bounds,
             columns: Vec::new(),
             by_col: std::collections::HashMap::new(),
             header_done: false,
@@ -90,7 +146,7 @@ impl Builder {
 
     pub(super) fn push(&mut self, row0: u32, col: u32, value: Value) -> Result<(), SourceError> {
         let row = row0.saturating_add(1);
-        if row < self.header_row || value == Value::Blank {
+        if row < self.header_row || value == Value::Blank || !self.bounds.holds(row, col) {
             return Ok(());
         }
         if row == self.header_row {
@@ -156,6 +212,7 @@ impl Builder {
         Ok(Table {
             path: self.path,
             sheet: self.sheet,
+            header_row: self.header_row,
             rows: self.rows,
             columns: self.columns,
         })
@@ -172,7 +229,7 @@ mod tests {
         start: (u32, u32),
         header_row: u32,
     ) -> Result<Table, SourceError> {
-        let mut b = Builder::new(Path::new("d.xlsx"), "s", header_row);
+        let mut b = Builder::new(Path::new("d.xlsx"), "s", Bounds::from_row(header_row));
         for (r, row) in rows.into_iter().enumerate() {
             for (c, v) in row.into_iter().enumerate() {
                 b.push(start.0 + r as u32, start.1 + c as u32, v)?;
@@ -202,7 +259,7 @@ mod tests {
     fn far_apart_cells_cost_rows_not_the_bounding_box() {
         // A value in A1 048 576 and one in XFD2: only the named column A is
         // kept, so the table holds one column of a million rows.
-        let mut b = Builder::new(Path::new("d.xlsx"), "s", 1);
+        let mut b = Builder::new(Path::new("d.xlsx"), "s", Bounds::from_row(1));
         b.push(0, 0, Value::text("y")).unwrap();
         b.push(1, 16_383, Value::Number(1.0)).unwrap();
         b.push(1_048_575, 0, Value::Number(2.0)).unwrap();

@@ -9,8 +9,11 @@ use std::sync::Arc;
 
 use calamine::{Data, DataRef, Ods, Reader, Sheets, Xls, Xlsb, Xlsx};
 
-use super::table::{Builder, Table};
+use super::table::{Bounds, Builder, Table};
+use super::tables::{table_parts, WorksheetTable};
 use super::{SourceError, Value};
+use crate::job::Area;
+use crate::suggest::closest;
 
 fn open_error(path: &Path, e: impl fmt::Display) -> SourceError {
     let text = e.to_string();
@@ -83,20 +86,56 @@ fn open_workbook<'f>(
     })
 }
 
+/// Reads the `area` of the workbook open in `file`: a sheet (`sheet`, or
+/// the first) from its header row down, a range of it, or a worksheet
+/// table from whichever sheet holds it.
 pub(super) fn read_workbook(
     path: &Path,
     file: &File,
     sheet: Option<&str>,
-    header_row: u32,
+    area: &Area,
 ) -> Result<Table, SourceError> {
+    // The table parts are read through the file before the workbook reader
+    // takes it over.
+    let parts = match area {
+        Area::Table(_) => table_parts(file),
+        _ => Vec::new(),
+    };
     let mut workbook = open_workbook(path, file).map_err(|e| open_error(path, e))?;
-    let name = pick_sheet(path, &workbook.sheet_names(), sheet)?;
+    let (name, bounds) = match area {
+        Area::Sheet { header_row } => (
+            pick_sheet(path, &workbook.sheet_names(), sheet)?,
+            Bounds::from_row(*header_row),
+        ),
+        Area::Range(range) => (
+            pick_sheet(path, &workbook.sheet_names(), sheet)?,
+            Bounds::of_range(range),
+        ),
+        Area::Table(wanted) => {
+            let table = find_table(path, &mut workbook, parts, wanted)?;
+            let Some((_, last)) = table.data_rows() else {
+                return Err(SourceError::EmptyTable {
+                    path: path.to_path_buf(),
+                    table: table.to_string(),
+                });
+            };
+            let r = table.range;
+            (
+                table.sheet.clone(),
+                Bounds {
+                    header_row: r.first_row,
+                    last_row: Some(last),
+                    columns: Some((r.first_col, r.last_col)),
+                },
+            )
+        }
+    };
     let sheet_error = |e: &dyn fmt::Display| SourceError::Sheet {
         path: path.to_path_buf(),
         sheet: name.clone(),
         reason: e.to_string(),
     };
-    let mut builder = Builder::new(path, &name, header_row);
+    let mut builder = Builder::new(path, &name, bounds);
     match &mut workbook {
         Sheets::Xlsx(xlsx) => {
             let mut cells = xlsx
@@ -121,6 +160,88 @@ pub(super) fn read_workbook(
         }
     }
     builder.finish()
+}
+
+/// The worksheet tables of the workbook open in `file`, each with its
+/// sheet; none for files other than .xlsx and .xlsm.
+pub(super) fn worksheet_tables(
+    path: &Path,
+    file: &File,
+) -> Result<Vec<WorksheetTable>, SourceError> {
+    let parts = table_parts(file);
+    if parts.is_empty() {
+        return Ok(parts);
+    }
+    let mut workbook = open_workbook(path, file).map_err(|e| open_error(path, e))?;
+    with_sheets(path, &mut workbook, parts)
+}
+
+/// `parts` with the sheet holding each filled in by the workbook reader.
+fn with_sheets<R: std::io::Read + Seek>(
+    path: &Path,
+    workbook: &mut Sheets<R>,
+    parts: Vec<WorksheetTable>,
+) -> Result<Vec<WorksheetTable>, SourceError> {
+    let Sheets::Xlsx(xlsx) = workbook else {
+        return Ok(Vec::new());
+    };
+    xlsx.load_tables().map_err(|e| open_error(path, e))?;
+    let sheets = xlsx.sheet_names();
+    let mut found = Vec::new();
+    for sheet in sheets {
+        let names: Vec<String> = xlsx
+            .table_names_in_sheet(&sheet)
+            .into_iter()
+            .cloned()
+            .collect();
+        for name in names {
+            if let Some(part) = parts.iter().find(|p| p.name == name) {
+                found.push(WorksheetTable {
+                    sheet: sheet.clone(),
+                    ..part.clone()
+                });
+            }
+        }
+    }
+    Ok(found)
+}
+
+/// The worksheet table called `wanted` (in any case), with its sheet.
+fn find_table<R: std::io::Read + Seek>(
+    path: &Path,
+    workbook: &mut Sheets<R>,
+    parts: Vec<WorksheetTable>,
+    wanted: &str,
+) -> Result<WorksheetTable, SourceError> {
+    if !matches!(workbook, Sheets::Xlsx(_)) {
+        return Err(SourceError::NoTables {
+            path: path.to_path_buf(),
+        });
+    }
+    let tables = with_sheets(path, workbook, parts)?;
+    if let Some(table) = tables.iter().find(|t| t.name.eq_ignore_ascii_case(wanted)) {
+        return Ok(table.clone());
+    }
+    let names: Vec<String> = tables.iter().map(|t| t.name.clone()).collect();
+    Err(SourceError::NoSuchTable {
+        path: path.to_path_buf(),
+        table: wanted.to_string(),
+        suggestion: closest(wanted, &names)
+            .map(|n| format!(" (did you mean '{n}'?)"))
+            .unwrap_or_default(),
+        available: if tables.is_empty() {
+            "it has none; give the data's cells with `range` instead".to_string()
+        } else {
+            format!(
+                "its tables are: {}",
+                tables
+                    .iter()
+                    .map(ToString::to_string)
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            )
+        },
+    })
 }
 
 fn value_from_ref(cell: &DataRef<'_>) -> Value {

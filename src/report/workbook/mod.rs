@@ -586,6 +586,20 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
     r += 1;
     sheet.write_string(r, 0, "Data rows read")?;
     sheet.write_number_with_format(r, 1, run.rows_read as f64, &f.count)?;
+    for left_out in &run.screened.summary_rows_left_out {
+        r += 1;
+        sheet.write_string(r, 0, "Summary row left out")?;
+        sheet.write_string(r, 1, &left_out.reason)?;
+    }
+    for read in &run.screened.text_numbers_read {
+        r += 1;
+        sheet.write_string(r, 0, "Numbers read from text")?;
+        sheet.write_string(
+            r,
+            1,
+            format!("column '{}': {} cells", read.column, read.cells),
+        )?;
+    }
 
     r += 2;
     sheet.write_string_with_format(r, 0, "Before you rely on these numbers", &f.heading)?;

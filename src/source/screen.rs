@@ -1,0 +1,479 @@
+//! Screening the table before any model sees it.
+//!
+//! A summary row (a total, subtotal or average typed under or among the
+//! data) fitted as data is a wrong answer that nothing downstream can see,
+//! so it is looked for here, in one pass over the rows, and stops the job
+//! unless the job says what to do with it. A row is a summary row when:
+//!
+//! 1. a text cell in a column the job uses, or in the first column, reads
+//!    as a total or aggregate label ("Total", "Grand total", "Average
+//!    2024", "Subtotal North", ...) and that text is rare in its column (at
+//!    most 3 rows or 5 % of them; a level such as a price tier called
+//!    "Average" is common);
+//! 2. it holds such a label, however common, and every number the job
+//!    uses in it equals the sum or the mean of the rows since the previous
+//!    summary row; or
+//! 3. it is among the last three rows and every number the job uses in it
+//!    equals the sum or the mean of all the rows above (relative 1e-9),
+//!    label or not.
+//!
+//! A units row directly under the header ("EUR", "count" in columns of
+//! numbers) is found the same way. Numbers stored as text are read here
+//! when the job says so (`text_numbers = "read"`), and otherwise stop the
+//! job with a count per column, since a driver typed as text is not a
+//! category.
+
+use std::sync::Arc;
+
+use super::text_number::read_number;
+use super::{CellRef, Cells, SourceError, Table, Value};
+use crate::job::{Reading, SummaryRows};
+
+/// Words that mark a summary label, matched as whole words in any case.
+const SUMMARY_WORDS: [&str; 16] = [
+    "total",
+    "totals",
+    "subtotal",
+    "subtotals",
+    "sum",
+    "average",
+    "avg",
+    "mean",
+    "median",
+    "min",
+    "minimum",
+    "max",
+    "maximum",
+    "count",
+    "grandtotal",
+    "overall",
+];
+
+/// Rows at the bottom that may be summary rows without a label.
+const BOTTOM_ROWS: usize = 3;
+
+/// Relative tolerance of "equals the sum or the mean".
+const SUMMARY_TOLERANCE: f64 = 1e-9;
+
+/// A row left out of every model before any was built.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct LeftOutRow {
+    /// Sheet row, counted from 1.
+    pub row: u32,
+    /// Why, in words: the cells and the rule.
+    pub reason: String,
+}
+
+/// A column whose numbers stored as text were read.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct TextNumbers {
+    /// The column.
+    pub column: String,
+    /// Cells read.
+    pub cells: usize,
+}
+
+/// What screening did to the table.
+#[derive(Debug, Clone, Default, PartialEq, serde::Serialize)]
+pub struct Screened {
+    /// Summary and units rows left out (`summary_rows = "leave_out"`).
+    pub summary_rows_left_out: Vec<LeftOutRow>,
+    /// Columns whose text numbers were read (`text_numbers = "read"`).
+    pub text_numbers_read: Vec<TextNumbers>,
+}
+
+/// Screens `table` for the columns a job uses (`used`, of which `numeric`
+/// must hold numbers) under the job's `reading`, reading text numbers and
+/// leaving out summary rows where it says so.
+///
+/// # Errors
+/// [`SourceError::SummaryRows`] for a summary or units row the job does
+/// not say what to do with; [`SourceError::TextNumbers`] for text in
+/// columns of numbers without `text_numbers = "read"`.
+pub fn screen(
+    table: &mut Table,
+    used: &[&str],
+    numeric: &[&str],
+    reading: &Reading,
+) -> Result<Screened, SourceError> {
+    let numeric: Vec<usize> = column_indices(table, numeric);
+    let mut labelled: Vec<usize> = column_indices(table, used);
+    if !table.columns.is_empty() && !labelled.contains(&0) {
+        labelled.push(0);
+    }
+    let mut screened = Screened::default();
+    if reading.summary_rows != SummaryRows::Keep {
+        let found = summary_rows(table, &labelled, &numeric, reading.text_numbers);
+        if !found.is_empty() {
+            if reading.summary_rows == SummaryRows::Stop {
+                return Err(SourceError::SummaryRows {
+                    place: table.place(),
+                    first: found[0].reason.clone(),
+                    more: match found.len() {
+                        1 => String::new(),
+                        n => format!(
+                            " ({} more: rows {})",
+                            n - 1,
+                            crate::text::row_ranges(
+                                &found[1..].iter().map(|f| f.row).collect::<Vec<_>>()
+                            )
+                        ),
+                    },
+                    units: found[0].reason.starts_with("a units row"),
+                });
+            }
+            let rows: Vec<u32> = found.iter().map(|f| f.row).collect();
+            table.remove_rows(|row| rows.contains(&row));
+            screened.summary_rows_left_out = found;
+        }
+    }
+    let texts = text_in_numbers(table, &numeric);
+    if texts.is_empty() {
+        return Ok(screened);
+    }
+    if !reading.text_numbers || texts.iter().any(|t| t.unreadable > 0) {
+        return Err(SourceError::TextNumbers {
+            place: table.place(),
+            columns: texts
+                .iter()
+                .map(|t| t.describe(reading.text_numbers))
+                .collect::<Vec<_>>()
+                .join("; "),
+            fix: if reading.text_numbers {
+                "correct those cells, or clear them to leave their rows out".into()
+            } else if texts.iter().all(|t| t.unreadable == 0) {
+                "write `text_numbers = \"read\"` under [input] to read them as numbers".into()
+            } else {
+                "correct the cells that are not numbers (or clear them to leave their rows out); `text_numbers = \"read\"` under [input] reads the rest".into()
+            },
+        });
+    }
+    for t in &texts {
+        let column = &mut table.columns[t.column];
+        column.values = column
+            .values
+            .iter()
+            .map(|v| match &v {
+                Value::Text(s) => read_number(s).map_or(v, Value::Number),
+                _ => v,
+            })
+            .collect();
+        screened.text_numbers_read.push(TextNumbers {
+            column: column.name.clone(),
+            cells: t.count,
+        });
+    }
+    Ok(screened)
+}
+
+fn column_indices(table: &Table, names: &[&str]) -> Vec<usize> {
+    let mut out: Vec<usize> = table
+        .columns
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| names.contains(&c.name.as_str()))
+        .map(|(j, _)| j)
+        .collect();
+    out.dedup();
+    out
+}
+
+/// Whether `text` reads as a total or aggregate label.
+pub fn is_summary_label(text: &str) -> bool {
+    text.split(|c: char| !c.is_alphanumeric())
+        .filter(|w| !w.is_empty())
+        .any(|w| {
+            let w = w.to_lowercase();
+            SUMMARY_WORDS.contains(&w.as_str())
+        })
+}
+
+/// The number in cell `i` of `cells`: a number, or text that reads as one
+/// when `text_numbers` is on.
+fn number(cells: &Cells, i: usize, text_numbers: bool) -> Option<f64> {
+    match cells.get(i) {
+        Value::Number(x) if x.is_finite() => Some(x),
+        Value::Text(t) if text_numbers => read_number(&t),
+        _ => None,
+    }
+}
+
+/// The summary rows of `table`, in row order.
+fn summary_rows(
+    table: &Table,
+    labelled: &[usize],
+    numeric: &[usize],
+    text_numbers: bool,
+) -> Vec<LeftOutRow> {
+    let n = table.rows.len();
+    let mut found: Vec<(usize, String)> = Vec::new();
+    if let Some(reason) = units_row(table, numeric, text_numbers) {
+        found.push((0, reason));
+    }
+    // Rule 1 and 2: labels, with running sums since the last summary row.
+    let label_counts: Vec<std::collections::HashMap<Arc<String>, usize>> = labelled
+        .iter()
+        .map(|&j| {
+            let mut counts = std::collections::HashMap::new();
+            for v in table.columns[j].values.iter() {
+                if let Value::Text(t) = v {
+                    if is_summary_label(&t) {
+                        *counts.entry(t).or_insert(0) += 1;
+                    }
+                }
+            }
+            counts
+        })
+        .collect();
+    let rare = (n / 20).max(3);
+    let mut group = Sums::new(numeric.len());
+    for i in 0..n {
+        if found.iter().any(|(k, _)| *k == i) {
+            continue;
+        }
+        let label = labelled.iter().zip(&label_counts).find_map(|(&j, counts)| {
+            let column = &table.columns[j];
+            match column.values.get(i) {
+                Value::Text(t) if is_summary_label(&t) => {
+                    Some((table.cell(column, i), t.clone(), counts[&t]))
+                }
+                _ => None,
+            }
+        });
+        let values = row_numbers(table, numeric, i, text_numbers);
+        if let Some((cell, text, count)) = label {
+            if count <= rare {
+                found.push((i, format!("'{text}' in {cell} reads as a summary label")));
+                group = Sums::new(numeric.len());
+                continue;
+            }
+            if let Some(what) = group.matched(&values) {
+                found.push((
+                    i,
+                    format!(
+                        "'{text}' in {cell}, and its numbers are the {what} of the rows above it"
+                    ),
+                ));
+                group = Sums::new(numeric.len());
+                continue;
+            }
+        }
+        group.add(&values);
+    }
+    // Rule 3: the last rows, against all the rows above them.
+    let data: Vec<usize> = (0..n)
+        .filter(|i| !found.iter().any(|(k, _)| k == i))
+        .collect();
+    for bottom in 1..=BOTTOM_ROWS.min(data.len().saturating_sub(2)) {
+        let (above, tail) = data.split_at(data.len() - bottom);
+        let mut sums = Sums::new(numeric.len());
+        for &i in above {
+            sums.add(&row_numbers(table, numeric, i, text_numbers));
+        }
+        let matches: Vec<Option<&'static str>> = tail
+            .iter()
+            .map(|&i| sums.matched(&row_numbers(table, numeric, i, text_numbers)))
+            .collect();
+        if matches.iter().all(Option::is_some) {
+            for (&i, what) in tail.iter().zip(matches) {
+                let cells = numeric
+                    .iter()
+                    .map(|&j| table.cell(&table.columns[j], i).to_string())
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                found.push((
+                    i,
+                    format!(
+                        "row {}: {cells} hold the {} of the rows above",
+                        table.rows[i],
+                        what.unwrap_or("sums")
+                    ),
+                ));
+            }
+            break;
+        }
+    }
+    found.sort_by_key(|(i, _)| *i);
+    found
+        .into_iter()
+        .map(|(i, reason)| LeftOutRow {
+            row: table.rows[i],
+            reason: if reason.starts_with("row ") || reason.starts_with("a units row") {
+                reason
+            } else {
+                format!("row {}: {reason}", table.rows[i])
+            },
+        })
+        .collect()
+}
+
+/// The numbers of row `i` in the `numeric` columns, `None` where a cell
+/// holds none.
+fn row_numbers(table: &Table, numeric: &[usize], i: usize, text_numbers: bool) -> Vec<Option<f64>> {
+    numeric
+        .iter()
+        .map(|&j| number(&table.columns[j].values, i, text_numbers))
+        .collect()
+}
+
+/// Running sums, counts and the first value of each numeric column over a
+/// group of rows.
+struct Sums {
+    sum: Vec<f64>,
+    count: Vec<usize>,
+    first: Vec<Option<f64>>,
+    varies: Vec<bool>,
+}
+
+impl Sums {
+    fn new(columns: usize) -> Self {
+        Sums {
+            sum: vec![0.0; columns],
+            count: vec![0; columns],
+            first: vec![None; columns],
+            varies: vec![false; columns],
+        }
+    }
+
+    fn add(&mut self, values: &[Option<f64>]) {
+        for (k, v) in values.iter().enumerate() {
+            if let Some(x) = *v {
+                self.sum[k] += x;
+                self.count[k] += 1;
+                match self.first[k] {
+                    None => self.first[k] = Some(x),
+                    Some(f) if f != x => self.varies[k] = true,
+                    _ => {}
+                }
+            }
+        }
+    }
+
+    /// "sums", "means" or "sums and means" when every number of `values`
+    /// equals the sum or the mean of its column over at least two rows, and
+    /// at least one of them over rows that differ; `None` otherwise.
+    fn matched(&self, values: &[Option<f64>]) -> Option<&'static str> {
+        let close = |x: f64, target: f64| {
+            (x - target).abs() <= SUMMARY_TOLERANCE * x.abs().max(target.abs())
+        };
+        let (mut sums, mut means, mut telling) = (false, false, false);
+        let mut any = false;
+        for (k, v) in values.iter().enumerate() {
+            let Some(x) = *v else { continue };
+            any = true;
+            if self.count[k] < 2 {
+                return None;
+            }
+            let mean = self.sum[k] / self.count[k] as f64;
+            if close(x, self.sum[k]) {
+                sums = true;
+            } else if close(x, mean) {
+                means = true;
+            } else {
+                return None;
+            }
+            telling |= self.varies[k] && x != 0.0;
+        }
+        (any && telling).then_some(match (sums, means) {
+            (true, true) => "sums and means",
+            (false, true) => "means",
+            _ => "sums",
+        })
+    }
+}
+
+/// "a units row ..." when the first data row holds, in columns of numbers,
+/// only text that does not read as a number while most of those columns'
+/// other cells are numbers.
+fn units_row(table: &Table, numeric: &[usize], text_numbers: bool) -> Option<String> {
+    let n = table.rows.len();
+    if n < 3 {
+        return None;
+    }
+    let mut units = Vec::new();
+    for &j in numeric {
+        let column = &table.columns[j];
+        match column.values.get(0) {
+            Value::Text(t) if read_number(&t).is_none() => {
+                let numbers = (1..n)
+                    .filter(|&i| number(&column.values, i, text_numbers).is_some())
+                    .count();
+                if numbers * 2 > n - 1 {
+                    units.push(format!("'{t}' in {}", table.cell(column, 0)));
+                }
+            }
+            Value::Blank | Value::Text(_) => {}
+            _ => return None,
+        }
+    }
+    (!units.is_empty()).then(|| {
+        format!(
+            "a units row under the header: row {} holds {} where numbers belong",
+            table.rows[0],
+            units.join(", ")
+        )
+    })
+}
+
+/// Text cells of one column of numbers.
+struct TextCells {
+    column: usize,
+    name: String,
+    count: usize,
+    unreadable: usize,
+    first: Vec<CellRef>,
+}
+
+impl TextCells {
+    fn describe(&self, reading: bool) -> String {
+        let cells: Vec<String> = self.first.iter().map(ToString::to_string).collect();
+        let more = if self.count > self.first.len() {
+            ", ..."
+        } else {
+            ""
+        };
+        let readable = match (self.unreadable, reading) {
+            (0, _) => "all read as numbers".to_string(),
+            (u, _) if u == self.count => "none reads as a number".to_string(),
+            (u, _) => format!("{u} do not read as numbers"),
+        };
+        format!(
+            "column '{}' holds {} text cell{} where numbers belong ({}{more}); {readable}",
+            self.name,
+            self.count,
+            if self.count == 1 { "" } else { "s" },
+            cells.join(", ")
+        )
+    }
+}
+
+/// The text cells of each column of numbers that has any.
+fn text_in_numbers(table: &Table, numeric: &[usize]) -> Vec<TextCells> {
+    numeric
+        .iter()
+        .filter_map(|&j| {
+            let column = &table.columns[j];
+            let mut cells = TextCells {
+                column: j,
+                name: column.name.clone(),
+                count: 0,
+                unreadable: 0,
+                first: Vec::new(),
+            };
+            for (i, v) in column.values.iter().enumerate() {
+                if let Value::Text(t) = v {
+                    cells.count += 1;
+                    if read_number(&t).is_none() {
+                        cells.unreadable += 1;
+                    }
+                    if cells.first.len() < 3 {
+                        cells.first.push(table.cell(column, i));
+                    }
+                }
+            }
+            // Text that reads as no number at all is left to the model's
+            // own message, which names the cell.
+            (cells.count > cells.unreadable).then_some(cells)
+        })
+        .collect()
+}
