@@ -477,3 +477,152 @@ fn text_in_numbers(table: &Table, numeric: &[usize]) -> Vec<TextCells> {
         })
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::Area;
+    use crate::source::Column;
+
+    fn table(columns: &[(&str, Vec<Value>)]) -> Table {
+        let n = columns[0].1.len();
+        Table {
+            path: "d.xlsx".into(),
+            sheet: "s".into(),
+            header_row: 1,
+            rows: (2..2 + n as u32).collect(),
+            columns: columns
+                .iter()
+                .enumerate()
+                .map(|(j, (name, values))| Column {
+                    name: name.to_string(),
+                    col: j as u32,
+                    values: values.iter().cloned().collect(),
+                })
+                .collect(),
+        }
+    }
+
+    fn reading(summary_rows: SummaryRows) -> Reading {
+        Reading {
+            area: Area::Sheet { header_row: 1 },
+            summary_rows,
+            text_numbers: false,
+        }
+    }
+
+    fn numbers(values: &[f64]) -> Vec<Value> {
+        values.iter().map(|&x| Value::Number(x)).collect()
+    }
+
+    fn texts(values: &[&str]) -> Vec<Value> {
+        values.iter().map(|t| Value::text(t)).collect()
+    }
+
+    #[test]
+    fn labels_are_whole_words_in_any_case() {
+        for label in [
+            "Total",
+            "GRAND TOTAL",
+            "Total 2024",
+            "Subtotal North",
+            "avg.",
+            "Sum:",
+        ] {
+            assert!(is_summary_label(label), "{label}");
+        }
+        for text in ["Summit", "Totalis", "Maxwell Road", "North", "Counter"] {
+            assert!(!is_summary_label(text), "{text}");
+        }
+    }
+
+    #[test]
+    fn a_common_level_that_reads_as_a_label_is_data() {
+        // A price tier called "Average" in a third of the rows.
+        let tiers: Vec<&str> = (0..30).map(|i| ["Low", "Average", "High"][i % 3]).collect();
+        let y: Vec<f64> = (0..30).map(|i| f64::from(i * 7 % 11) + 0.5).collect();
+        let mut t = table(&[("tier", texts(&tiers)), ("y", numbers(&y))]);
+        let screened = screen(&mut t, &["tier", "y"], &["y"], &reading(SummaryRows::Stop)).unwrap();
+        assert!(screened.summary_rows_left_out.is_empty());
+        assert_eq!(t.rows.len(), 30);
+    }
+
+    #[test]
+    fn subtotals_with_a_common_label_are_found_by_their_sums() {
+        // Twelve groups of three rows, each followed by "Subtotal" and the
+        // group's sums: the label is in a quarter of the rows, so only the
+        // sums tell.
+        let (mut label, mut y) = (Vec::new(), Vec::new());
+        for g in 0..12 {
+            let group = [
+                1.5 + f64::from(g),
+                2.25 * f64::from(g),
+                7.0 - f64::from(g) / 3.0,
+            ];
+            for v in group {
+                label.push("store");
+                y.push(v);
+            }
+            label.push("Subtotal");
+            y.push(group.iter().sum());
+        }
+        let mut t = table(&[("name", texts(&label)), ("y", numbers(&y))]);
+        let screened = screen(&mut t, &["y"], &["y"], &reading(SummaryRows::LeaveOut)).unwrap();
+        let rows: Vec<u32> = screened
+            .summary_rows_left_out
+            .iter()
+            .map(|r| r.row)
+            .collect();
+        assert_eq!(rows, (0..12).map(|g| 2 + 4 * g + 3).collect::<Vec<u32>>());
+        assert_eq!(t.rows.len(), 36);
+    }
+
+    #[test]
+    fn zeros_and_constant_columns_do_not_make_a_total() {
+        let mut t = table(&[
+            ("promo", numbers(&[0.0; 8])),
+            ("y", numbers(&[3.0, 1.0, 4.0, 1.0, 5.0, 9.0, 2.0, 6.0])),
+        ]);
+        let screened = screen(
+            &mut t,
+            &["promo", "y"],
+            &["promo", "y"],
+            &reading(SummaryRows::Stop),
+        )
+        .unwrap();
+        assert!(screened.summary_rows_left_out.is_empty());
+    }
+
+    #[test]
+    fn a_last_row_equal_to_the_mean_of_the_rows_above_is_a_summary_row() {
+        let y = [2.0, 4.5, 3.25, 8.0, 5.0];
+        let mean = y.iter().sum::<f64>() / 5.0;
+        let x = [1.0, 7.0, 2.0, 5.0, 3.5];
+        let xm = x.iter().sum::<f64>() / 5.0;
+        let mut t = table(&[
+            ("y", numbers(&[&y[..], &[mean]].concat())),
+            ("x", numbers(&[&x[..], &[xm]].concat())),
+        ]);
+        let err = screen(
+            &mut t,
+            &["y", "x"],
+            &["y", "x"],
+            &reading(SummaryRows::Stop),
+        )
+        .unwrap_err();
+        assert!(
+            err.to_string()
+                .contains("row 7: A7, B7 hold the means of the rows above"),
+            "{err}"
+        );
+        let screened = screen(
+            &mut t,
+            &["y", "x"],
+            &["y", "x"],
+            &reading(SummaryRows::Keep),
+        )
+        .unwrap();
+        assert!(screened.summary_rows_left_out.is_empty());
+        assert_eq!(t.rows.len(), 6);
+    }
+}

@@ -1,0 +1,343 @@
+//! Workbooks laid out the way finance teams keep them: a title block over
+//! the header, a worksheet table with its own totals row, a units row, a
+//! totals row typed under the data. Each layout holds carData's Duncan
+//! occupational prestige data (45 rows, committed in
+//! tests/fixtures/model_checks/), so where the tool reads the data right
+//! its coefficients must equal R's for the same model (duncan.json, written
+//! by tests/reference/make_model_checks_reference.R with R 4.2.2 and
+//! carData 3.0.5); where a summary row would reach the fit, the job must
+//! stop naming the row.
+
+mod common;
+
+use std::path::Path;
+
+use common::{assert_close, assert_status, read_json, sheetfit, stderr, Scratch};
+use rust_xlsxwriter::{Table, TableColumn, TableFunction, Workbook, Worksheet};
+use serde_json::Value;
+
+/// One row of the Duncan data.
+struct Occupation {
+    name: String,
+    prestige: f64,
+    income: f64,
+    education: f64,
+    kind: String,
+}
+
+fn fixture(name: &str) -> std::path::PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/fixtures/model_checks")
+        .join(name)
+}
+
+fn duncan() -> Vec<Occupation> {
+    let text = std::fs::read_to_string(fixture("duncan.csv")).unwrap();
+    text.lines()
+        .skip(1)
+        .map(|line| {
+            let f: Vec<&str> = line.split(',').collect();
+            Occupation {
+                name: f[0].to_string(),
+                prestige: f[1].parse().unwrap(),
+                income: f[2].parse().unwrap(),
+                education: f[3].parse().unwrap(),
+                kind: f[4].to_string(),
+            }
+        })
+        .collect()
+}
+
+/// R's coefficients of the model called `name` in duncan.json.
+fn reference(name: &str) -> Value {
+    let expected = read_json(&fixture("duncan.json"));
+    expected["models"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|m| m["name"] == name)
+        .unwrap()["coefficients"]
+        .clone()
+}
+
+/// Asserts the first model's coefficients equal R's for `name`.
+fn assert_matches_r(json: &Value, name: &str) {
+    let want = reference(name);
+    let got = &json["models"][0]["coefficients"];
+    let want = want.as_array().unwrap();
+    assert_eq!(got.as_array().unwrap().len(), want.len());
+    for (g, w) in got.as_array().unwrap().iter().zip(want) {
+        assert_eq!(g["term"], w["term"]);
+        for key in ["estimate", "std_error"] {
+            assert_close(
+                &format!("{} {key}", w["term"]),
+                g[key].as_f64().unwrap(),
+                w[key].as_f64().unwrap(),
+                1e-9,
+            );
+        }
+    }
+}
+
+/// Writes the header and the data rows from (`row`, `col`) down.
+fn write_data(ws: &mut Worksheet, row: u32, col: u16, data: &[Occupation]) {
+    for (c, h) in ["occupation", "prestige", "income", "education", "type"]
+        .iter()
+        .enumerate()
+    {
+        ws.write_string(row, col + c as u16, *h).unwrap();
+    }
+    for (i, o) in data.iter().enumerate() {
+        let r = row + 1 + i as u32;
+        ws.write_string(r, col, &o.name).unwrap();
+        ws.write_number(r, col + 1, o.prestige).unwrap();
+        ws.write_number(r, col + 2, o.income).unwrap();
+        ws.write_number(r, col + 3, o.education).unwrap();
+        ws.write_string(r, col + 4, &o.kind).unwrap();
+    }
+}
+
+/// Sums of prestige, income and education.
+fn sums(data: &[Occupation]) -> [f64; 3] {
+    data.iter().fold([0.0; 3], |s, o| {
+        [s[0] + o.prestige, s[1] + o.income, s[2] + o.education]
+    })
+}
+
+const ADDITIVE: &str = "\n[[model]]\nname = \"additive\"\nresponse = \"prestige\"\nnumeric = [\"income\", \"education\"]\ncategorical = { type = \"bc\" }\n";
+const WITHOUT_TYPE: &str = "\n[[model]]\nname = \"without type\"\nresponse = \"prestige\"\nnumeric = [\"income\", \"education\"]\n";
+
+fn job(s: &Scratch, input: &str, model: &str) {
+    s.write(
+        "job.toml",
+        &format!("suggest = false\n[input]\nworkbook = \"data.xlsx\"\n{input}\n{model}"),
+    );
+}
+
+fn run(s: &Scratch) -> std::process::Output {
+    sheetfit(&s.path(""), &["run", "--overwrite", "job.toml"])
+}
+
+/// A title block (rows 1-2), the header in row 4, 45 rows, then "Total"
+/// with the sums in row 50.
+fn title_block_and_total_row(s: &Scratch) {
+    let data = duncan();
+    let mut wb = Workbook::new();
+    let ws = wb.add_worksheet();
+    ws.write_string(0, 0, "Occupational prestige, 1950 (carData Duncan)")
+        .unwrap();
+    ws.write_string(1, 0, "Invented layout around open data")
+        .unwrap();
+    write_data(ws, 3, 0, &data);
+    let total = sums(&data);
+    ws.write_string(49, 0, "Total").unwrap();
+    for (k, v) in total.iter().enumerate() {
+        ws.write_number(49, 1 + k as u16, *v).unwrap();
+    }
+    wb.save(s.path("data.xlsx")).unwrap();
+}
+
+#[test]
+fn a_total_row_under_the_data_stops_the_job_naming_the_row() {
+    let s = Scratch::new();
+    title_block_and_total_row(&s);
+    job(&s, "header_row = 4", WITHOUT_TYPE);
+    let out = run(&s);
+    assert_status(&out, 1);
+    let err = stderr(&out);
+    assert!(
+        err.contains("row 50: 'Total' in A50 reads as a summary label")
+            && err.contains("summary_rows = \"leave_out\"")
+            && err.contains("`range`"),
+        "{err}"
+    );
+    assert!(!s.path("job-report.xlsx").exists());
+}
+
+#[test]
+fn a_total_row_left_out_gives_the_fit_of_the_data_alone() {
+    let s = Scratch::new();
+    title_block_and_total_row(&s);
+    job(
+        &s,
+        "header_row = 4\nsummary_rows = \"leave_out\"",
+        WITHOUT_TYPE,
+    );
+    let out = run(&s);
+    assert_status(&out, 0);
+    let json = read_json(&s.path("job-report.json"));
+    assert_matches_r(&json, "without type");
+    assert_eq!(json["run"]["summary_rows_left_out"][0]["row"], 50);
+    assert_eq!(json["run"]["rows_read"], 46);
+    assert_eq!(json["models"][0]["n"], 45);
+}
+
+#[test]
+fn a_range_reads_below_a_title_block_and_stops_above_the_total() {
+    let s = Scratch::new();
+    title_block_and_total_row(&s);
+    job(&s, "range = \"A4:E49\"", ADDITIVE);
+    let out = run(&s);
+    assert_status(&out, 0);
+    assert_matches_r(&read_json(&s.path("job-report.json")), "additive");
+}
+
+#[test]
+fn a_total_row_without_a_label_is_found_by_its_sums() {
+    let s = Scratch::new();
+    let data = duncan();
+    let mut wb = Workbook::new();
+    let ws = wb.add_worksheet();
+    write_data(ws, 0, 0, &data);
+    for (k, v) in sums(&data).iter().enumerate() {
+        ws.write_number(46, 1 + k as u16, *v).unwrap();
+    }
+    wb.save(s.path("data.xlsx")).unwrap();
+    job(&s, "", WITHOUT_TYPE);
+    let out = run(&s);
+    assert_status(&out, 1);
+    let err = stderr(&out);
+    assert!(
+        err.contains("row 47: B47, C47, D47 hold the sums of the rows above"),
+        "{err}"
+    );
+}
+
+/// Notes on the first sheet; on the second a worksheet table "Prestige"
+/// at B3 whose totals row (row 49) averages every column.
+fn table_with_totals_row(s: &Scratch) {
+    let data = duncan();
+    let mut wb = Workbook::new();
+    wb.add_worksheet()
+        .set_name("Notes")
+        .unwrap()
+        .write_string(0, 0, "The data are on the next sheet.")
+        .unwrap();
+    let ws = wb.add_worksheet().set_name("Data").unwrap();
+    write_data(ws, 2, 1, &data);
+    let columns = vec![
+        TableColumn::new()
+            .set_header("occupation")
+            .set_total_label("Average"),
+        TableColumn::new()
+            .set_header("prestige")
+            .set_total_function(TableFunction::Average),
+        TableColumn::new()
+            .set_header("income")
+            .set_total_function(TableFunction::Average),
+        TableColumn::new()
+            .set_header("education")
+            .set_total_function(TableFunction::Average),
+        TableColumn::new().set_header("type"),
+    ];
+    let table = Table::new()
+        .set_name("Prestige")
+        .set_total_row(true)
+        .set_columns(&columns);
+    ws.add_table(2, 1, 48, 5, &table).unwrap();
+    wb.save(s.path("data.xlsx")).unwrap();
+}
+
+#[test]
+fn a_worksheet_table_is_read_by_name_without_its_totals_row() {
+    let s = Scratch::new();
+    table_with_totals_row(&s);
+    job(&s, "table = \"prestige\"", ADDITIVE);
+    let out = run(&s);
+    assert_status(&out, 0);
+    let json = read_json(&s.path("job-report.json"));
+    assert_matches_r(&json, "additive");
+    assert_eq!(json["run"]["sheet"], "Data");
+    let out = sheetfit(&s.path(""), &["check", "job.toml"]);
+    assert_status(&out, 0);
+    let listing = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        listing.contains(
+            "worksheet table 'Prestige' on sheet 'Data', B3:F49 (totals row 49 not read)"
+        ),
+        "{listing}"
+    );
+}
+
+#[test]
+fn a_worksheet_tables_totals_row_read_as_a_sheet_stops_the_job() {
+    let s = Scratch::new();
+    table_with_totals_row(&s);
+    job(&s, "sheet = \"Data\"\nheader_row = 3", WITHOUT_TYPE);
+    let out = run(&s);
+    assert_status(&out, 1);
+    assert!(
+        stderr(&out).contains("row 49: 'Average' in B49 reads as a summary label"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[test]
+fn a_missing_table_lists_the_tables_there_are() {
+    let s = Scratch::new();
+    table_with_totals_row(&s);
+    job(&s, "table = \"Prestig\"", ADDITIVE);
+    let out = run(&s);
+    assert_status(&out, 1);
+    assert!(
+        stderr(&out).contains("has no worksheet table named 'Prestig' (did you mean 'Prestige'?); its tables are: 'Prestige' on sheet 'Data'"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[test]
+fn a_units_row_under_the_header_stops_the_job_or_is_left_out() {
+    let s = Scratch::new();
+    let data = duncan();
+    let mut wb = Workbook::new();
+    let ws = wb.add_worksheet();
+    write_data(ws, 0, 0, &[]);
+    for (c, unit) in ["points", "% over $3,500", "% high school"]
+        .iter()
+        .enumerate()
+    {
+        ws.write_string(1, 1 + c as u16, *unit).unwrap();
+    }
+    for (i, o) in data.iter().enumerate() {
+        let r = 2 + i as u32;
+        ws.write_string(r, 0, &o.name).unwrap();
+        ws.write_number(r, 1, o.prestige).unwrap();
+        ws.write_number(r, 2, o.income).unwrap();
+        ws.write_number(r, 3, o.education).unwrap();
+        ws.write_string(r, 4, &o.kind).unwrap();
+    }
+    wb.save(s.path("data.xlsx")).unwrap();
+    job(&s, "", ADDITIVE);
+    let out = run(&s);
+    assert_status(&out, 1);
+    let err = stderr(&out);
+    assert!(
+        err.contains("a units row under the header: row 2 holds 'points' in B2")
+            && err.contains("A units row is not data"),
+        "{err}"
+    );
+    job(&s, "summary_rows = \"leave_out\"", ADDITIVE);
+    let out = run(&s);
+    assert_status(&out, 0);
+    assert_matches_r(&read_json(&s.path("job-report.json")), "additive");
+}
+
+#[test]
+fn a_csv_input_has_no_tables() {
+    let s = Scratch::new();
+    s.write("data.csv", "y,x\n1,2\n2,3\n3,5\n");
+    s.write(
+        "job.toml",
+        "[input]\nworkbook = \"data.csv\"\ntable = \"Sales\"\n[[model]]\nname = \"m\"\nresponse = \"y\"\nnumeric = [\"x\"]\n",
+    );
+    let out = sheetfit(&s.path(""), &["check", "job.toml"]);
+    assert_status(&out, 2);
+    assert!(
+        stderr(&out)
+            .contains("key `input.table`: the input is a CSV file, which has no worksheet tables"),
+        "{}",
+        stderr(&out)
+    );
+}
