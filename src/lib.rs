@@ -105,7 +105,12 @@ impl Error {
 /// The job's area of its input, screened for summary rows and text numbers
 /// over the columns its models read ([`source::screen::screen`]).
 fn read_data(job: &Job, input: &source::Input) -> Result<(Table, source::screen::Screened), Error> {
-    let mut table = input.read_area(job.sheet.as_deref(), &job.reading.area, &job.limits)?;
+    let mut table = input.read_csv_or_area(
+        job.sheet.as_deref(),
+        &job.reading.area,
+        &job.limits,
+        &job.reading.csv,
+    )?;
     let used: Vec<&str> = job
         .models
         .iter()

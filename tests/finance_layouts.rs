@@ -341,3 +341,95 @@ fn a_csv_input_has_no_tables() {
         stderr(&out)
     );
 }
+
+/// The categorical fixture (an invented garden-centre sample, 30 rows)
+/// written as much of Europe exports it: semicolons, decimal commas,
+/// Windows-1252 with a euro sign in the response's name; its reference is
+/// statsmodels' fit in tests/fixtures/categorical/expected.json.
+fn european_csv(s: &Scratch) {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/categorical/data.csv"),
+    )
+    .unwrap();
+    let mut out = String::new();
+    for (i, line) in text.lines().enumerate() {
+        let line = if i == 0 {
+            line.replacen("revenue", "Umsatz €", 1).replace(',', ";")
+        } else {
+            line.replace(',', ";").replace('.', ",")
+        };
+        out.push_str(&line);
+        out.push_str("\r\n");
+    }
+    let (bytes, _, unmappable) = encoding_rs::WINDOWS_1252.encode(&out);
+    assert!(!unmappable);
+    std::fs::write(s.path("data.csv"), bytes).unwrap();
+}
+
+fn european_job(s: &Scratch, input: &str) {
+    s.write(
+        "job.toml",
+        &format!(
+            "suggest = false\n[input]\nworkbook = \"data.csv\"\n{input}\n\n[[model]]\nname = \"m\"\nresponse = \"Umsatz €\"\nnumeric = [\"floor_area\", \"staff_hours\"]\ncategorical = {{ region = \"North\", format = \"Garden shop\" }}\n"
+        ),
+    );
+}
+
+#[test]
+fn a_european_csv_reads_with_a_decimal_comma_and_its_own_encoding() {
+    let s = Scratch::new();
+    european_csv(&s);
+    european_job(&s, "decimal = \",\"");
+    let out = run(&s);
+    assert_status(&out, 0);
+    let json = read_json(&s.path("job-report.json"));
+    let want = read_json(
+        &Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/categorical/expected.json"),
+    );
+    let got = json["models"][0]["coefficients"].as_array().unwrap();
+    let want = want["coefficients"].as_array().unwrap();
+    assert_eq!(got.len(), want.len());
+    for (g, w) in got.iter().zip(want) {
+        assert_eq!(g["term"], w["term"]);
+        for key in ["estimate", "std_error", "p_value"] {
+            assert_close(
+                &format!("{} {key}", w["term"]),
+                g[key].as_f64().unwrap(),
+                w[key].as_f64().unwrap(),
+                1e-9,
+            );
+        }
+    }
+}
+
+#[test]
+fn a_european_csv_without_its_keys_says_which_to_set() {
+    let s = Scratch::new();
+    european_csv(&s);
+    european_job(&s, "");
+    let out = run(&s);
+    assert_status(&out, 1);
+    assert!(
+        stderr(&out).contains(
+            "they read as numbers with a decimal comma: write `decimal = \",\"` under [input]"
+        ),
+        "{}",
+        stderr(&out)
+    );
+    european_job(&s, "separator = \",\"");
+    let out = run(&s);
+    assert_status(&out, 1);
+    assert!(
+        stderr(&out).contains("which holds semicolons; write `separator = \";\"` under [input]"),
+        "{}",
+        stderr(&out)
+    );
+    european_job(&s, "decimal = \",\"\nencoding = \"utf-8\"");
+    let out = run(&s);
+    assert_status(&out, 1);
+    assert!(
+        stderr(&out).contains("it is not valid UTF-8; if it was saved as Windows-1252"),
+        "{}",
+        stderr(&out)
+    );
+}

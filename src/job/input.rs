@@ -59,6 +59,14 @@ pub struct InputFile {
     pub summary_rows: Option<String>,
     /// "read": numbers stored as text are read as numbers.
     pub text_numbers: Option<String>,
+    /// CSV: the field separator, `,` `;` `|` or a tab; told from the
+    /// header line when absent.
+    pub separator: Option<String>,
+    /// CSV: the decimal mark, "." (default) or ",".
+    pub decimal: Option<String>,
+    /// CSV: "utf-8" or "windows-1252"; UTF-8 unless the file is not valid
+    /// UTF-8.
+    pub encoding: Option<String>,
 }
 
 /// `header_row = 1`: a whole number; text or a fraction is refused with a
@@ -145,7 +153,41 @@ pub enum SummaryRows {
     Keep,
 }
 
-/// How the input is read: the area, summary rows and text numbers.
+/// The character set of a CSV file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Encoding {
+    /// UTF-8, with or without a byte-order mark, unless the bytes are not
+    /// valid UTF-8; then Windows-1252.
+    Detect,
+    /// UTF-8, with or without a byte-order mark.
+    Utf8,
+    /// Windows-1252 (the usual "ANSI" code page of Western Europe).
+    Windows1252,
+}
+
+/// How a CSV file is written; by default told from the file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct CsvFormat {
+    /// The field separator; told from the header line when `None`.
+    pub separator: Option<u8>,
+    /// Whether the decimal mark is a comma (and a dot separates thousands).
+    pub decimal_comma: bool,
+    /// The character set.
+    pub encoding: Encoding,
+}
+
+impl Default for CsvFormat {
+    fn default() -> Self {
+        CsvFormat {
+            separator: None,
+            decimal_comma: false,
+            encoding: Encoding::Detect,
+        }
+    }
+}
+
+/// How the input is read: the area, summary rows, text numbers and the
+/// CSV format.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Reading {
     /// Where the data is.
@@ -154,6 +196,8 @@ pub struct Reading {
     pub summary_rows: SummaryRows,
     /// Whether numbers stored as text are read as numbers.
     pub text_numbers: bool,
+    /// How a CSV input is written.
+    pub csv: CsvFormat,
 }
 
 impl Reading {
@@ -243,6 +287,7 @@ impl Reading {
             area,
             summary_rows,
             text_numbers,
+            csv: csv_format(input, is_csv)?,
         })
     }
 
@@ -255,6 +300,76 @@ impl Reading {
             Area::Table(_) => 1,
         }
     }
+}
+
+/// The CSV keys of `input`, refused for a workbook.
+fn csv_format(input: &InputFile, is_csv: bool) -> Result<CsvFormat, (&'static str, String)> {
+    if !is_csv {
+        for (key, value) in [
+            ("input.separator", &input.separator),
+            ("input.decimal", &input.decimal),
+            ("input.encoding", &input.encoding),
+        ] {
+            if value.is_some() {
+                return Err((
+                    key,
+                    "applies to CSV files only; a workbook stores numbers as numbers (for numbers typed as text use `text_numbers = \"read\"`)".into(),
+                ));
+            }
+        }
+    }
+    let separator = match input.separator.as_deref() {
+        None => None,
+        Some(",") => Some(b','),
+        Some(";") => Some(b';'),
+        Some("|") => Some(b'|'),
+        Some("\t" | "tab") => Some(b'\t'),
+        Some(other) => {
+            return Err((
+                "input.separator",
+                format!("'{other}' is not a separator the tool reads; use \",\", \";\", \"|\" or \"\\t\" (a tab)"),
+            ))
+        }
+    };
+    let decimal_comma = match input.decimal.as_deref() {
+        None | Some(".") => false,
+        Some(",") => true,
+        Some(other) => {
+            return Err((
+                "input.decimal",
+                format!("'{other}' is not a decimal mark; use \".\" (the default) or \",\""),
+            ))
+        }
+    };
+    if decimal_comma && separator == Some(b',') {
+        return Err((
+            "input.decimal",
+            "a decimal comma needs another separator; files with decimal commas separate fields with \";\" (set `separator = \";\"` or leave it out to have it told from the header line)".into(),
+        ));
+    }
+    let encoding = match input
+        .encoding
+        .as_deref()
+        .map(str::to_ascii_lowercase)
+        .as_deref()
+    {
+        None => Encoding::Detect,
+        Some("utf-8" | "utf8") => Encoding::Utf8,
+        Some("windows-1252" | "cp1252" | "latin-1" | "latin1" | "iso-8859-1") => {
+            Encoding::Windows1252
+        }
+        Some(other) => return Err((
+            "input.encoding",
+            format!(
+                "'{other}' is not an encoding the tool reads; use \"utf-8\" or \"windows-1252\""
+            ),
+        )),
+    };
+    Ok(CsvFormat {
+        separator,
+        decimal_comma,
+        encoding,
+    })
 }
 
 #[cfg(test)]

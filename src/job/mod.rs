@@ -19,7 +19,7 @@ use crate::period::{Frequency, SeasonBy};
 mod cell_text;
 mod input;
 
-pub use input::{Area, CellRange, InputFile, Limits, Reading, SummaryRows};
+pub use input::{Area, CellRange, CsvFormat, Encoding, InputFile, Limits, Reading, SummaryRows};
 
 /// Most levels a categorical column may have unless `max_levels` under
 /// [input] says otherwise.

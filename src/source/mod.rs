@@ -7,7 +7,7 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::job::{Area, Limits};
+use crate::job::{Area, CsvFormat, Limits};
 
 mod cells;
 mod csv;
@@ -23,7 +23,7 @@ pub use cells::{column_letters, CellRef, Cells, Value};
 pub use input::Input;
 pub use table::{Column, Table};
 pub use tables::WorksheetTable;
-pub use text_number::read_number;
+pub use text_number::{plain_number, read_number};
 
 use self::csv::read_csv;
 use self::table::Bounds;
@@ -213,7 +213,22 @@ impl Input {
         area: &Area,
         limits: &Limits,
     ) -> Result<Table, SourceError> {
-        self.read_area_once(sheet, area, limits)
+        self.read_csv_or_area(sheet, area, limits, &CsvFormat::default())
+    }
+
+    /// [`Input::read_area`], a CSV file read as `format` says it is
+    /// written.
+    ///
+    /// # Errors
+    /// As [`Input::read_area`].
+    pub fn read_csv_or_area(
+        &self,
+        sheet: Option<&str>,
+        area: &Area,
+        limits: &Limits,
+        format: &CsvFormat,
+    ) -> Result<Table, SourceError> {
+        self.read_area_once(sheet, area, limits, format)
             .map_err(|e| self.check_unchanged().err().unwrap_or(e))
     }
 
@@ -246,6 +261,7 @@ impl Input {
         sheet: Option<&str>,
         area: &Area,
         limits: &Limits,
+        format: &CsvFormat,
     ) -> Result<Table, SourceError> {
         let path = self.path();
         if self.extension() == "csv" {
@@ -258,7 +274,7 @@ impl Input {
                     })
                 }
             };
-            return read_csv(path, self.rewound()?, bounds);
+            return read_csv(path, self.rewound()?, bounds, format);
         }
         if self.is_zip_workbook() {
             guard::prescan(self.rewound()?, limits).map_err(|reason| SourceError::Refused {

@@ -103,7 +103,7 @@ pub fn screen(
     }
     let mut screened = Screened::default();
     if reading.summary_rows != SummaryRows::Keep {
-        let found = summary_rows(table, &labelled, &numeric, reading.text_numbers);
+        let found = summary_rows(table, &labelled, &numeric, reading);
         if !found.is_empty() {
             if reading.summary_rows == SummaryRows::Stop {
                 return Err(SourceError::SummaryRows {
@@ -127,16 +127,38 @@ pub fn screen(
             screened.summary_rows_left_out = found;
         }
     }
-    let texts = text_in_numbers(table, &numeric);
+    let decimal_comma = reading.csv.decimal_comma;
+    let texts = text_in_numbers(table, &numeric, decimal_comma);
     if texts.is_empty() {
         return Ok(screened);
+    }
+    let is_csv = table
+        .path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    if is_csv
+        && !decimal_comma
+        && texts
+            .iter()
+            .all(|t| t.unreadable == t.count && t.other_mark_reads == t.count)
+    {
+        return Err(SourceError::TextNumbers {
+            place: table.place(),
+            columns: texts
+                .iter()
+                .map(|t| t.describe())
+                .collect::<Vec<_>>()
+                .join("; "),
+            fix: "they read as numbers with a decimal comma: write `decimal = \",\"` under [input]"
+                .into(),
+        });
     }
     if !reading.text_numbers || texts.iter().any(|t| t.unreadable > 0) {
         return Err(SourceError::TextNumbers {
             place: table.place(),
             columns: texts
                 .iter()
-                .map(|t| t.describe(reading.text_numbers))
+                .map(|t| t.describe())
                 .collect::<Vec<_>>()
                 .join("; "),
             fix: if reading.text_numbers {
@@ -154,7 +176,7 @@ pub fn screen(
             .values
             .iter()
             .map(|v| match &v {
-                Value::Text(s) => read_number(s).map_or(v, Value::Number),
+                Value::Text(s) => read_number(s, decimal_comma).map_or(v, Value::Number),
                 _ => v,
             })
             .collect();
@@ -189,11 +211,11 @@ pub fn is_summary_label(text: &str) -> bool {
 }
 
 /// The number in cell `i` of `cells`: a number, or text that reads as one
-/// when `text_numbers` is on.
-fn number(cells: &Cells, i: usize, text_numbers: bool) -> Option<f64> {
+/// when the job reads text numbers.
+fn number(cells: &Cells, i: usize, reading: &Reading) -> Option<f64> {
     match cells.get(i) {
         Value::Number(x) if x.is_finite() => Some(x),
-        Value::Text(t) if text_numbers => read_number(&t),
+        Value::Text(t) if reading.text_numbers => read_number(&t, reading.csv.decimal_comma),
         _ => None,
     }
 }
@@ -203,11 +225,11 @@ fn summary_rows(
     table: &Table,
     labelled: &[usize],
     numeric: &[usize],
-    text_numbers: bool,
+    reading: &Reading,
 ) -> Vec<LeftOutRow> {
     let n = table.rows.len();
     let mut found: Vec<(usize, String)> = Vec::new();
-    if let Some(reason) = units_row(table, numeric, text_numbers) {
+    if let Some(reason) = units_row(table, numeric, reading) {
         found.push((0, reason));
     }
     // Rule 1 and 2: labels, with running sums since the last summary row.
@@ -240,7 +262,7 @@ fn summary_rows(
                 _ => None,
             }
         });
-        let values = row_numbers(table, numeric, i, text_numbers);
+        let values = row_numbers(table, numeric, i, reading);
         if let Some((cell, text, count)) = label {
             if count <= rare {
                 found.push((i, format!("'{text}' in {cell} reads as a summary label")));
@@ -268,11 +290,11 @@ fn summary_rows(
         let (above, tail) = data.split_at(data.len() - bottom);
         let mut sums = Sums::new(numeric.len());
         for &i in above {
-            sums.add(&row_numbers(table, numeric, i, text_numbers));
+            sums.add(&row_numbers(table, numeric, i, reading));
         }
         let matches: Vec<Option<&'static str>> = tail
             .iter()
-            .map(|&i| sums.matched(&row_numbers(table, numeric, i, text_numbers)))
+            .map(|&i| sums.matched(&row_numbers(table, numeric, i, reading)))
             .collect();
         if matches.iter().all(Option::is_some) {
             for (&i, what) in tail.iter().zip(matches) {
@@ -309,10 +331,10 @@ fn summary_rows(
 
 /// The numbers of row `i` in the `numeric` columns, `None` where a cell
 /// holds none.
-fn row_numbers(table: &Table, numeric: &[usize], i: usize, text_numbers: bool) -> Vec<Option<f64>> {
+fn row_numbers(table: &Table, numeric: &[usize], i: usize, reading: &Reading) -> Vec<Option<f64>> {
     numeric
         .iter()
-        .map(|&j| number(&table.columns[j].values, i, text_numbers))
+        .map(|&j| number(&table.columns[j].values, i, reading))
         .collect()
 }
 
@@ -385,7 +407,7 @@ impl Sums {
 /// "a units row ..." when the first data row holds, in columns of numbers,
 /// only text that does not read as a number while most of those columns'
 /// other cells are numbers.
-fn units_row(table: &Table, numeric: &[usize], text_numbers: bool) -> Option<String> {
+fn units_row(table: &Table, numeric: &[usize], reading: &Reading) -> Option<String> {
     let n = table.rows.len();
     if n < 3 {
         return None;
@@ -394,9 +416,9 @@ fn units_row(table: &Table, numeric: &[usize], text_numbers: bool) -> Option<Str
     for &j in numeric {
         let column = &table.columns[j];
         match column.values.get(0) {
-            Value::Text(t) if read_number(&t).is_none() => {
+            Value::Text(t) if read_number(&t, reading.csv.decimal_comma).is_none() => {
                 let numbers = (1..n)
-                    .filter(|&i| number(&column.values, i, text_numbers).is_some())
+                    .filter(|&i| number(&column.values, i, reading).is_some())
                     .count();
                 if numbers * 2 > n - 1 {
                     units.push(format!("'{t}' in {}", table.cell(column, 0)));
@@ -421,21 +443,23 @@ struct TextCells {
     name: String,
     count: usize,
     unreadable: usize,
+    /// Cells that would read with the other decimal mark.
+    other_mark_reads: usize,
     first: Vec<CellRef>,
 }
 
 impl TextCells {
-    fn describe(&self, reading: bool) -> String {
+    fn describe(&self) -> String {
         let cells: Vec<String> = self.first.iter().map(ToString::to_string).collect();
         let more = if self.count > self.first.len() {
             ", ..."
         } else {
             ""
         };
-        let readable = match (self.unreadable, reading) {
-            (0, _) => "all read as numbers".to_string(),
-            (u, _) if u == self.count => "none reads as a number".to_string(),
-            (u, _) => format!("{u} do not read as numbers"),
+        let readable = match self.unreadable {
+            0 => "all read as numbers".to_string(),
+            u if u == self.count => "none reads as a number".to_string(),
+            u => format!("{u} do not read as numbers"),
         };
         format!(
             "column '{}' holds {} text cell{} where numbers belong ({}{more}); {readable}",
@@ -447,8 +471,9 @@ impl TextCells {
     }
 }
 
-/// The text cells of each column of numbers that has any.
-fn text_in_numbers(table: &Table, numeric: &[usize]) -> Vec<TextCells> {
+/// The text cells of each column of numbers that has any that read as
+/// numbers (with `decimal_comma` or, for a hint, with the other mark).
+fn text_in_numbers(table: &Table, numeric: &[usize], decimal_comma: bool) -> Vec<TextCells> {
     numeric
         .iter()
         .filter_map(|&j| {
@@ -458,13 +483,17 @@ fn text_in_numbers(table: &Table, numeric: &[usize]) -> Vec<TextCells> {
                 name: column.name.clone(),
                 count: 0,
                 unreadable: 0,
+                other_mark_reads: 0,
                 first: Vec::new(),
             };
             for (i, v) in column.values.iter().enumerate() {
                 if let Value::Text(t) = v {
                     cells.count += 1;
-                    if read_number(&t).is_none() {
+                    if read_number(&t, decimal_comma).is_none() {
                         cells.unreadable += 1;
+                    }
+                    if read_number(&t, !decimal_comma).is_some() {
+                        cells.other_mark_reads += 1;
                     }
                     if cells.first.len() < 3 {
                         cells.first.push(table.cell(column, i));
@@ -473,7 +502,7 @@ fn text_in_numbers(table: &Table, numeric: &[usize]) -> Vec<TextCells> {
             }
             // Text that reads as no number at all is left to the model's
             // own message, which names the cell.
-            (cells.count > cells.unreadable).then_some(cells)
+            (cells.count > cells.unreadable || cells.other_mark_reads > 0).then_some(cells)
         })
         .collect()
 }
@@ -508,6 +537,11 @@ mod tests {
             area: Area::Sheet { header_row: 1 },
             summary_rows,
             text_numbers: false,
+            csv: crate::job::CsvFormat {
+                separator: None,
+                decimal_comma: false,
+                encoding: crate::job::Encoding::Detect,
+            },
         }
     }
 
