@@ -45,22 +45,28 @@ pub enum ForecastError {
         why: String,
     },
     /// The plan sheet lacks a predictor column.
-    #[error("model '{model}': the plan sheet '{sheet}' has no column '{column}'; it needs the date column and every predictor")]
+    #[error("model '{model}': plan sheet '{sheet}' has no column '{column}' in its header row {header_row} (its columns there: {available}); it needs the date column and every predictor; if its names are in another row, set `plan_header_row` under [model.forecast]")]
     PlanColumn {
         /// The model.
         model: String,
         /// The plan sheet.
         sheet: String,
+        /// The plan sheet's header row.
+        header_row: u32,
+        /// The columns the header row names.
+        available: String,
         /// The missing column.
         column: String,
     },
     /// A plan-sheet date that cannot be read.
-    #[error("model '{model}': plan sheet '{sheet}', cell {cell} holds '{value}', which is not a {frequency} date or period")]
+    #[error("model '{model}': plan sheet '{sheet}' (header row {header_row}), cell {cell} holds '{value}', which is not a {frequency} date or period")]
     PlanDate {
         /// The model.
         model: String,
         /// The plan sheet.
         sheet: String,
+        /// The plan sheet's header row.
+        header_row: u32,
         /// The cell.
         cell: CellRef,
         /// The value as text.
@@ -187,7 +193,7 @@ pub fn forecast(
                 })
                 .collect()
         }
-        (ForecastSpec::Plan { sheet }, Some(table)) => {
+        (ForecastSpec::Plan { sheet, .. }, Some(table)) => {
             plan_rows(spec, design, sheet, table, &predictors)?
         }
         (ForecastSpec::Plan { .. }, None) => Vec::new(),
@@ -252,6 +258,13 @@ fn plan_rows(
     let missing = |column: &str| ForecastError::PlanColumn {
         model: spec.name.clone(),
         sheet: sheet.to_string(),
+        header_row: table.header_row,
+        available: table
+            .columns
+            .iter()
+            .map(|c| format!("'{}'", c.name))
+            .collect::<Vec<_>>()
+            .join(", "),
         column: column.to_string(),
     };
     let date_column = match (&design.timing, spec.date_column()) {
@@ -275,6 +288,7 @@ fn plan_rows(
                     Some(period.ok_or_else(|| ForecastError::PlanDate {
                         model: spec.name.clone(),
                         sheet: sheet.to_string(),
+                        header_row: table.header_row,
                         cell: table.cell(column, i),
                         value: value.to_string(),
                         frequency: timing.frequency.name(),
@@ -286,7 +300,10 @@ fn plan_rows(
                 .iter()
                 .map(|c| (c.name.clone(), c.values.get(i)))
                 .collect();
-            let place = format!("row {} of plan sheet '{sheet}'", table.rows[i]);
+            let place = format!(
+                "row {} of plan sheet '{sheet}' (header row {})",
+                table.rows[i], table.header_row
+            );
             Ok((place, FutureRow { period, values }))
         })
         .collect()

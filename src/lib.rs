@@ -156,8 +156,8 @@ fn model_results(
         };
         inspect(spec, &design, &fit);
         let plan = match &spec.forecast {
-            Some(job::ForecastSpec::Plan { sheet }) => {
-                Some(input.read_table(Some(sheet), job.header_row, &job.limits)?)
+            Some(job::ForecastSpec::Plan { sheet, header_row }) => {
+                Some(input.read_table(Some(sheet), *header_row, &job.limits)?)
             }
             _ => None,
         };

@@ -579,7 +579,7 @@ fn header_row_below_the_data_is_reported() {
     assert_run_and_check_fail(
         &s,
         1,
-        &["sheet 'records' of data.xlsx has no column names in row 40; set `input.header_row`"],
+        &["sheet 'records' of data.xlsx has no column names in row 40; set the row that holds them: `header_row`"],
         &["data.xlsx", "job.toml"],
     );
 }

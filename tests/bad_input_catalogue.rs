@@ -330,7 +330,7 @@ fn sheet_with_nothing_at_all_has_no_column_names() {
     assert_refused(
         &s,
         1,
-        &["sheet 'records' of data.xlsx has no column names in row 1; set `input.header_row`"],
+        &["sheet 'records' of data.xlsx has no column names in row 1; set the row that holds them: `header_row`"],
     );
 }
 

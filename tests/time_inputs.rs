@@ -486,11 +486,49 @@ fn plan_sheet_with_an_unseen_level_names_the_sheet_and_its_row() {
         &s,
         1,
         &[
-            "model 'sales': forecast row 3 of plan sheet 'plan' gives 'region' the level 'East', \
+            "model 'sales': forecast row 3 of plan sheet 'plan' (header row 1) gives 'region' the level 'East', \
              which is not in the rows the model was fitted on; its levels are: 'North', 'South'",
         ],
         &INPUTS,
     );
+}
+
+#[test]
+fn a_plan_sheet_reads_its_own_header_row_and_names_it() {
+    let s = Scratch::new();
+    let plan = vec![
+        vec![T("Plan for the first quarter (invented)")],
+        vec![T("month"), T("x"), T("region")],
+        vec![T("2025-01"), N(12.0), T("North")],
+        vec![T("2025-02"), N(13.0), T("South")],
+    ];
+    s.workbook("data.xlsx", &[("records", driver_rows()), ("plan", plan)]);
+    s.write(
+        "job.toml",
+        &job_with(&format!(
+            "{DRIVER_MODEL}\n[model.forecast]\nplan_sheet = \"plan\""
+        )),
+    );
+    assert_run_fails(
+        &s,
+        1,
+        &[
+            "model 'sales': plan sheet 'plan' has no column 'month' in its header row 1 \
+             (its columns there: 'Plan for the first quarter (invented)')",
+            "set `plan_header_row` under [model.forecast]",
+        ],
+        &INPUTS,
+    );
+    s.write(
+        "job.toml",
+        &job_with(&format!(
+            "{DRIVER_MODEL}\n[model.forecast]\nplan_sheet = \"plan\"\nplan_header_row = 2"
+        )),
+    );
+    let model = run_ok(&s, &INPUTS);
+    let rows = list(&model["forecast"], "forecast");
+    assert_eq!(rows.len(), 2, "one forecast row per plan row below row 2");
+    assert_eq!(text(&rows[1], "period"), "2025-02");
 }
 
 #[test]

@@ -39,7 +39,9 @@ pub fn too_long(title: &str, models: &[ModelSpec]) -> Option<(String, String)> {
                     }
                 }
             }
-            Some(ForecastSpec::Plan { sheet }) => texts.push((key("forecast.plan_sheet"), sheet)),
+            Some(ForecastSpec::Plan { sheet, .. }) => {
+                texts.push((key("forecast.plan_sheet"), sheet))
+            }
             None => {}
         }
     }

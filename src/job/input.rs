@@ -71,7 +71,7 @@ pub struct InputFile {
 
 /// `header_row = 1`: a whole number; text or a fraction is refused with a
 /// message saying what to write.
-fn row_number<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u32>, D::Error> {
+pub(super) fn row_number<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<u32>, D::Error> {
     #[derive(Deserialize)]
     #[serde(
         untagged,
@@ -358,12 +358,14 @@ fn csv_format(input: &InputFile, is_csv: bool) -> Result<CsvFormat, (&'static st
         Some("windows-1252" | "cp1252" | "latin-1" | "latin1" | "iso-8859-1") => {
             Encoding::Windows1252
         }
-        Some(other) => return Err((
-            "input.encoding",
-            format!(
+        Some(other) => {
+            return Err((
+                "input.encoding",
+                format!(
                 "'{other}' is not an encoding the tool reads; use \"utf-8\" or \"windows-1252\""
             ),
-        )),
+            ))
+        }
     };
     Ok(CsvFormat {
         separator,

@@ -198,6 +198,10 @@ pub struct ForecastFile {
     /// Read the forecast rows (date column and predictors) from this sheet
     /// of the input workbook instead.
     pub plan_sheet: Option<String>,
+    /// With `plan_sheet`: the plan sheet's row of column names, counted
+    /// from 1; default 1.
+    #[serde(default, deserialize_with = "input::row_number")]
+    pub plan_header_row: Option<u32>,
     /// With `horizon`: the value of each predictor in the forecast rows.
     #[serde(default)]
     pub hold: IndexMap<String, toml::Value>,
@@ -314,6 +318,8 @@ pub enum ForecastSpec {
     Plan {
         /// The sheet name.
         sheet: String,
+        /// Its row of column names, counted from 1.
+        header_row: u32,
     },
 }
 
@@ -683,7 +689,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         ));
     }
     for (i, m) in models.iter().enumerate() {
-        if let (true, Some(ForecastSpec::Plan { sheet })) = (is_csv, &m.forecast) {
+        if let (true, Some(ForecastSpec::Plan { sheet, .. })) = (is_csv, &m.forecast) {
             return Err(invalid(
                 &format!("model[{}].forecast.plan_sheet", i + 1),
                 format!("the input is a CSV file, which has no sheet '{sheet}'; use `horizon` with `hold`, or a workbook input with a plan sheet"),
@@ -778,6 +784,12 @@ fn season_spec(s: SeasonFile) -> Result<SeasonSpec, (&'static str, String)> {
 }
 
 fn forecast_spec(f: ForecastFile) -> Result<ForecastSpec, (&'static str, String)> {
+    if f.plan_header_row.is_some() && f.plan_sheet.is_none() {
+        return Err((
+            "plan_header_row",
+            "goes with `plan_sheet`; remove it, or name the plan sheet".into(),
+        ));
+    }
     match (f.horizon, f.plan_sheet) {
         (Some(_), Some(_)) => Err((
             "plan_sheet",
@@ -796,7 +808,14 @@ fn forecast_spec(f: ForecastFile) -> Result<ForecastSpec, (&'static str, String)
                         .into(),
                 ));
             }
-            Ok(ForecastSpec::Plan { sheet })
+            let header_row = f.plan_header_row.unwrap_or(1);
+            if header_row == 0 {
+                return Err((
+                    "plan_header_row",
+                    "rows are counted from 1; use 1 for the first row".into(),
+                ));
+            }
+            Ok(ForecastSpec::Plan { sheet, header_row })
         }
         (Some(0), None) => Err(("horizon", "must be at least 1".into())),
         (Some(horizon), None) => {

@@ -78,7 +78,7 @@ pub enum SourceError {
         reason: String,
     },
     /// The header row holds no column names.
-    #[error("sheet '{sheet}' of {path} has no column names in row {row}; set `input.header_row` to the row that holds them")]
+    #[error("sheet '{sheet}' of {path} has no column names in row {row}; set the row that holds them: `header_row` (or the first row of `range`) under [input] for the data, `plan_header_row` under [model.forecast] for a plan sheet")]
     NoHeader {
         /// The input file.
         path: PathBuf,
