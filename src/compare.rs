@@ -368,6 +368,7 @@ mod tests {
             path: PathBuf::from("d.csv"),
             sheet: "d.csv".into(),
             header_row: 1,
+            formulas: Vec::new(),
             rows: (2..2 + n as u32).collect(),
             columns: vec![
                 column("y", 0, y.into_iter().map(Value::Number).collect()),

@@ -122,6 +122,7 @@ fn read_data(job: &Job, input: &source::Input) -> Result<(Table, source::screen:
         .flat_map(job::ModelSpec::numeric_columns)
         .collect();
     let screened = source::screen::screen(&mut table, &used, &numeric, &job.reading)?;
+    input.check_formulas(&table, &used)?;
     Ok((table, screened))
 }
 

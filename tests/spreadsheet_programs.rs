@@ -14,7 +14,6 @@
 
 mod common;
 
-use std::io::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
@@ -24,35 +23,13 @@ use common::grid::{
     assert_anova, assert_chart_points, assert_checks, assert_coefficients, assert_fit_quality,
     assert_forecast, assert_residuals, Grid,
 };
-use common::{read_json, sheetfit, stderr, Scratch, SHEETS};
+use common::{program, read_json, sheetfit, stderr, Scratch, SHEETS};
 
 /// Relative tolerance for stored values read back through CSV: LibreOffice
 /// writes 15 significant digits, Gnumeric 17. (LibreOffice writes some
 /// small numbers with 20 decimals and fewer significant digits; each value
 /// is also accepted to the precision its text shows.)
 const CSV_TOL: f64 = 1e-14;
-
-/// The program `name` on the PATH; `None` (with the reason printed) when it
-/// is not there and the environment does not require it.
-fn program(name: &str, package: &str) -> Option<PathBuf> {
-    let found = std::env::var_os("PATH").and_then(|paths| {
-        std::env::split_paths(&paths)
-            .map(|dir| dir.join(name))
-            .find(|p| p.is_file())
-    });
-    if found.is_none() {
-        let why = format!(
-            "`{name}` is not on the PATH; install the Debian package {package} (.ci/run does)"
-        );
-        if std::env::var_os("SHEETFIT_REQUIRE_SPREADSHEETS").is_some() {
-            panic!("{why}");
-        }
-        // Straight to the terminal: the test harness keeps what `eprintln!`
-        // prints from a passing test to itself.
-        let _ = writeln!(std::io::stderr(), "skipped: {why}");
-    }
-    found
-}
 
 /// A report written by a run of the tool.
 struct Report {

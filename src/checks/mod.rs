@@ -538,6 +538,7 @@ mod tests {
             path: PathBuf::from("d.csv"),
             sheet: "d.csv".into(),
             header_row: 1,
+            formulas: Vec::new(),
             rows: (2..8).collect(),
             columns: vec![
                 Column {

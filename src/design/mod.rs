@@ -994,6 +994,7 @@ mod tests {
             path: PathBuf::from("d.xlsx"),
             sheet: "records".into(),
             header_row: 1,
+            formulas: Vec::new(),
             rows: vec![2, 3, 4, 5, 6],
             columns: vec![
                 col("y", 0, vec![n(1.0), n(2.0), Value::Blank, n(4.0), n(5.0)]),

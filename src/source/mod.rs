@@ -11,6 +11,7 @@ use crate::job::{Area, CsvFormat, Limits};
 
 mod cells;
 mod csv;
+mod formulas;
 mod guard;
 mod input;
 pub mod screen;
@@ -21,7 +22,7 @@ mod workbook;
 
 pub use cells::{column_letters, CellRef, Cells, Value};
 pub use input::Input;
-pub use table::{Column, Table};
+pub use table::{Column, FormulaCell, Table};
 pub use tables::WorksheetTable;
 pub use text_number::{plain_number, read_number};
 
@@ -135,6 +136,19 @@ pub enum SourceError {
         /// What to write in the job or the sheet.
         fix: String,
     },
+    /// Formula cells in the data whose stored values are not their
+    /// results.
+    #[error("{place}: {cells} {why}; {fix}, then run again on the saved file")]
+    Formulas {
+        /// "sheet 'x' of file".
+        place: String,
+        /// "cells C5, C6, C7 (and 12 more)".
+        cells: String,
+        /// Why their values cannot be used.
+        why: String,
+        /// How to get the values calculated.
+        fix: String,
+    },
     /// Two columns share one name.
     #[error("sheet '{sheet}' of {path}: cells {first} and {second} both name a column '{name}'; give each column its own name")]
     DuplicateHeader {
@@ -242,6 +256,83 @@ impl Input {
             return Ok(Vec::new());
         }
         workbook::worksheet_tables(self.path(), self.rewound()?)
+    }
+
+    /// Refuses formula cells among the `used` columns of `table` (read
+    /// from this input) whose stored values are not their results: cells
+    /// stored without a value, or any formula cell when the workbook asks
+    /// to be recalculated when opened (the mark of a program that wrote the
+    /// formulas without calculating them).
+    ///
+    /// # Errors
+    /// [`SourceError::Formulas`] naming the first cells.
+    pub fn check_formulas(&self, table: &Table, used: &[&str]) -> Result<(), SourceError> {
+        if !self.is_zip_workbook() {
+            return Ok(());
+        }
+        let cols: Vec<u32> = table
+            .columns
+            .iter()
+            .filter(|c| used.contains(&c.name.as_str()))
+            .map(|c| c.col)
+            .collect();
+        let rows: std::collections::HashSet<u32> = table.rows.iter().copied().collect();
+        let in_data: Vec<&FormulaCell> = table
+            .formulas
+            .iter()
+            .filter(|f| cols.contains(&f.col) && rows.contains(&f.row))
+            .collect();
+        if in_data.is_empty() {
+            return Ok(());
+        }
+        let recalculate = formulas::recalculate_on_load(self.rewound()?);
+        let found: Vec<&FormulaCell> = in_data
+            .into_iter()
+            .filter(|f| recalculate || !f.has_value)
+            .collect();
+        let Some(first) = found.first() else {
+            return Ok(());
+        };
+        let named: Vec<String> = found
+            .iter()
+            .take(3)
+            .map(|f| {
+                CellRef {
+                    row: f.row,
+                    col: f.col,
+                }
+                .to_string()
+            })
+            .collect();
+        let more = match found.len() {
+            n if n > 3 => format!(" (and {} more)", n - 3),
+            _ => String::new(),
+        };
+        Err(SourceError::Formulas {
+            place: table.place(),
+            cells: format!(
+                "{} {}{more}",
+                if found.len() == 1 { "cell" } else { "cells" },
+                named.join(", ")
+            ),
+            why: if first.has_value {
+                "hold formulas, and the workbook was saved by a program that did not calculate them (it asks to be recalculated when opened), so their stored values may not be their results".into()
+            } else {
+                "hold formulas that were never calculated: the file stores no value with them"
+                    .into()
+            },
+            fix: if first.has_value {
+                "open the file in a spreadsheet program, recalculate every formula and save it (a conversion without recalculation keeps the stored values)".into()
+            } else {
+                format!(
+                    "open and save the file in a spreadsheet program, or calculate it without one (`soffice --headless --convert-to xlsx --outdir calculated {}`)",
+                    self.path()
+                        .file_name()
+                        .map(|n| n.to_string_lossy().into_owned())
+                        .unwrap_or_default()
+                )
+            },
+        })
     }
 
     fn extension(&self) -> String {

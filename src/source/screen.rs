@@ -519,6 +519,7 @@ mod tests {
             path: "d.xlsx".into(),
             sheet: "s".into(),
             header_row: 1,
+            formulas: Vec::new(),
             rows: (2..2 + n as u32).collect(),
             columns: columns
                 .iter()

@@ -30,6 +30,20 @@ pub struct Table {
     pub rows: Vec<u32>,
     /// The columns in sheet order.
     pub columns: Vec<Column>,
+    /// The formula cells of the named columns' data rows (.xlsx and .xlsm
+    /// only), for [`super::Input::check_formulas`].
+    pub formulas: Vec<FormulaCell>,
+}
+
+/// A cell that holds a formula.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct FormulaCell {
+    /// Sheet row, counted from 1.
+    pub row: u32,
+    /// Sheet column, counted from 0.
+    pub col: u32,
+    /// Whether the file stores a value with the formula.
+    pub has_value: bool,
 }
 
 impl Table {
@@ -128,6 +142,7 @@ pub(super) struct Builder {
     by_col: std::collections::HashMap<u32, usize>,
     header_done: bool,
     rows: Vec<u32>,
+    formulas: Vec<FormulaCell>,
 }
 
 impl Builder {
@@ -141,6 +156,7 @@ impl Builder {
             by_col: std::collections::HashMap::new(),
             header_done: false,
             rows: Vec::new(),
+            formulas: Vec::new(),
         }
     }
 
@@ -169,6 +185,30 @@ impl Builder {
             }
         }
         self.columns[j].values.set(index, value);
+        Ok(())
+    }
+
+    /// Notes that the cell at (`row0` from 0, `col`) holds a formula, with
+    /// or without a stored value, when it lies in a named column below the
+    /// header.
+    pub(super) fn formula(
+        &mut self,
+        row0: u32,
+        col: u32,
+        has_value: bool,
+    ) -> Result<(), SourceError> {
+        let row = row0.saturating_add(1);
+        if row <= self.header_row || !self.bounds.holds(row, col) {
+            return Ok(());
+        }
+        self.close_header()?;
+        if self.by_col.contains_key(&col) {
+            self.formulas.push(FormulaCell {
+                row,
+                col,
+                has_value,
+            });
+        }
         Ok(())
     }
 
@@ -215,6 +255,7 @@ impl Builder {
             header_row: self.header_row,
             rows: self.rows,
             columns: self.columns,
+            formulas: self.formulas,
         })
     }
 }

@@ -142,12 +142,18 @@ pub(super) fn read_workbook(
                 .worksheet_cells_reader(&name)
                 .map_err(|e| sheet_error(&e))?;
             let mut last_dates = LastDates::default();
-            while let Some(cell) = cells.next_cell().map_err(|e| sheet_error(&e))? {
-                let (row, col) = cell.get_position();
-                let value = match cell.get_value() {
+            while let Some(cell) = cells
+                .next_cell_with_formula_metadata()
+                .map_err(|e| sheet_error(&e))?
+            {
+                let (row, col) = cell.pos;
+                let value = match &cell.value {
                     DataRef::DateTime(dt) => last_dates.value(col, dt),
                     other => value_from_ref(other),
                 };
+                if cell.formula.is_some() {
+                    builder.formula(row, col, value != Value::Blank)?;
+                }
                 builder.push(row, col, value)?;
             }
         }

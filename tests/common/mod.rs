@@ -2,6 +2,7 @@
 //! binary, small fixture workbooks written on the fly, and JSON reading.
 #![allow(dead_code)]
 
+use std::io::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
@@ -238,4 +239,26 @@ pub fn small_xy_workbook(s: &Scratch) {
         rows.push(vec![Cell::N(x), Cell::N(1.0 + 2.0 * x + f64::from(i % 3))]);
     }
     s.workbook("data.xlsx", &[("records", rows)]);
+}
+
+/// The program `name` on the PATH; `None` (with the reason printed) when it
+/// is not there and the environment does not require it.
+pub fn program(name: &str, package: &str) -> Option<PathBuf> {
+    let found = std::env::var_os("PATH").and_then(|paths| {
+        std::env::split_paths(&paths)
+            .map(|dir| dir.join(name))
+            .find(|p| p.is_file())
+    });
+    if found.is_none() {
+        let why = format!(
+            "`{name}` is not on the PATH; install the Debian package {package} (.ci/run does)"
+        );
+        if std::env::var_os("SHEETFIT_REQUIRE_SPREADSHEETS").is_some() {
+            panic!("{why}");
+        }
+        // Straight to the terminal: the test harness keeps what `eprintln!`
+        // prints from a passing test to itself.
+        let _ = writeln!(std::io::stderr(), "skipped: {why}");
+    }
+    found
 }
