@@ -16,7 +16,7 @@ use serde::Serialize;
 use crate::design::{Design, EncodeError, FutureRow};
 use crate::fit::{fit, t_quantile, Fit, FitError};
 use crate::job::{ForecastSpec, HoldValue, ModelSpec};
-use crate::period::{parse_stamp, Period};
+use crate::period::{read_stamp, year_of_number, Period};
 use crate::source::{CellRef, Table, Value};
 
 /// An error that stops a model's forecast or back-test.
@@ -281,7 +281,8 @@ fn plan_rows(
                 Some((timing, column)) => {
                     let value = column.values.get(i);
                     let stamp = match &value {
-                        Value::Date(t) | Value::Text(t) => parse_stamp(t),
+                        Value::Date(t) | Value::Text(t) => read_stamp(t, spec.date_order).ok(),
+                        Value::Number(x) => year_of_number(*x),
                         _ => None,
                     };
                     let period: Option<Period> = stamp.and_then(|s| s.period(timing.frequency));

@@ -247,8 +247,8 @@ fn unreadable_date_text_names_the_cell_the_value_and_the_accepted_forms() {
         &[
             "model 'sales': sheet 'records' of data.xlsx, cell A6 in date column 'month' holds \
              text 'next month', not a date",
-            "use a date cell, an ISO date such as 2024-07-01, or a period such as 2024-07 or \
-             2024-Q3",
+            "use a date cell, an ISO date such as 2024-07-01, a period such as 2024-07, \
+             Jan-2024, 2024M01, 2024-Q3 or Q3 2024, or a year such as 1935",
         ],
         &INPUTS,
     );

@@ -106,7 +106,7 @@ pub enum DesignError {
         levels: String,
     },
     /// A cell of the date column is not a date or period.
-    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds {kind} '{value}', not a date; use a date cell, an ISO date such as 2024-07-01, or a period such as 2024-07 or 2024-Q3")]
+    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds {kind} '{value}', not a date; use a date cell, an ISO date such as 2024-07-01, a period such as 2024-07, Jan-2024, 2024M01, 2024-Q3 or Q3 2024, or a year such as 1935")]
     NotADate {
         /// The model.
         model: String,
@@ -120,6 +120,24 @@ pub enum DesignError {
         kind: &'static str,
         /// The value as text.
         value: String,
+    },
+    /// A date written with slashes reads both ways round.
+    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds '{value}', which reads as {day_first} (day first) or as {month_first} (month first), and no date of the column tells which; write `date_order = \"dmy\"` or `date_order = \"mdy\"` under [input]")]
+    AmbiguousDate {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The text.
+        value: String,
+        /// The reading with the day first, in words.
+        day_first: String,
+        /// The reading with the month first, in words.
+        month_first: String,
     },
     /// The dates fit no frequency.
     #[error("model '{model}': cannot tell the period of date column '{column}': the smallest gap between dates is {gap} days; set `frequency` (day, week, month, quarter or year) in the model")]

@@ -2,7 +2,10 @@
 //! its frequency, ordering rows by period, and the trend and season columns.
 
 use crate::job::SeasonSpec;
-use crate::period::{detect_frequency, parse_stamp, Frequency, Period, SeasonBy, Stamp};
+use crate::period::{
+    detect_frequency, order_of, read_stamp, year_of_number, Frequency, Period, SeasonBy, Stamp,
+    StampError,
+};
 use crate::source::{Column, Value};
 
 use std::sync::Arc;
@@ -40,14 +43,38 @@ impl Timing {
 
 impl Context<'_> {
     /// The column as date stamps; `None` where the cell is blank.
+    /// Dates written with slashes read in the job's `date_order`, or in
+    /// the order the column's own dates leave no doubt about.
     pub(super) fn stamps(&self, column: &Column) -> Result<Vec<Option<Stamp>>, DesignError> {
+        let order = self.model.date_order.or_else(|| {
+            order_of(column.values.distinct_others().filter_map(|v| match v {
+                Value::Text(t) => Some(t.as_str()),
+                _ => None,
+            }))
+        });
         column
             .values
             .iter()
             .enumerate()
             .map(|(i, v)| match v {
                 Value::Blank => Ok(None),
-                Value::Date(ref text) | Value::Text(ref text) => parse_stamp(text)
+                Value::Date(ref text) | Value::Text(ref text) => match read_stamp(text, order) {
+                    Ok(stamp) => Ok(Some(stamp)),
+                    Err(StampError::Unknown) => Err(self.bad_date(column, i, &v)),
+                    Err(StampError::Ambiguous {
+                        day_first,
+                        month_first,
+                    }) => Err(DesignError::AmbiguousDate {
+                        model: self.model.name.clone(),
+                        place: self.table.place(),
+                        column: column.name.clone(),
+                        cell: self.table.cell(column, i),
+                        value: text.to_string(),
+                        day_first: day_first.format("%-d %B %Y").to_string(),
+                        month_first: month_first.format("%B %-d %Y").to_string(),
+                    }),
+                },
+                Value::Number(x) => year_of_number(x)
                     .map(Some)
                     .ok_or_else(|| self.bad_date(column, i, &v)),
                 Value::Error(e) => Err(self.error_cell(column, i, &e)),

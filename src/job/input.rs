@@ -4,6 +4,8 @@ use std::path::PathBuf;
 
 use serde::Deserialize;
 
+use crate::period::DateOrder;
+
 /// The limits of the pre-scan; each can be raised in the job's `[input]`
 /// table (`max_cells`, `max_shared_strings`, `max_uncompressed_mb`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -67,6 +69,8 @@ pub struct InputFile {
     /// CSV: "utf-8" or "windows-1252"; UTF-8 unless the file is not valid
     /// UTF-8.
     pub encoding: Option<String>,
+    /// "dmy" or "mdy": how dates written with slashes (03/04/2024) read.
+    pub date_order: Option<String>,
 }
 
 /// `header_row = 1`: a whole number; text or a fraction is refused with a
@@ -198,6 +202,9 @@ pub struct Reading {
     pub text_numbers: bool,
     /// How a CSV input is written.
     pub csv: CsvFormat,
+    /// How dates written with slashes read; told from the dates when
+    /// `None`.
+    pub date_order: Option<DateOrder>,
 }
 
 impl Reading {
@@ -288,6 +295,15 @@ impl Reading {
             summary_rows,
             text_numbers,
             csv: csv_format(input, is_csv)?,
+            date_order: match input.date_order.as_deref() {
+                None => None,
+                Some(text) => Some(DateOrder::parse(text).ok_or_else(|| {
+                    (
+                        "input.date_order",
+                        format!("'{text}' is not an order; write \"dmy\" (03/04/2024 is 3 April) or \"mdy\" (03/04/2024 is March 4)"),
+                    )
+                })?),
+            },
         })
     }
 

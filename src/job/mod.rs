@@ -14,7 +14,7 @@ use std::path::{Path, PathBuf};
 use indexmap::IndexMap;
 use serde::Deserialize;
 
-use crate::period::{Frequency, SeasonBy};
+use crate::period::{DateOrder, Frequency, SeasonBy};
 
 mod cell_text;
 mod input;
@@ -376,6 +376,9 @@ pub struct ModelSpec {
     /// Most levels a categorical predictor (or a season) may have: the
     /// job's `max_levels` under [input].
     pub max_levels: usize,
+    /// How dates written with slashes are read: the job's `date_order`
+    /// under [input]; told from the dates when `None`.
+    pub date_order: Option<DateOrder>,
 }
 
 impl ModelSpec {
@@ -402,6 +405,7 @@ impl ModelSpec {
             standard_errors: None,
             suggest: true,
             max_levels: DEFAULT_MAX_LEVELS,
+            date_order: None,
         }
     }
 
@@ -678,6 +682,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             standard_errors,
             suggest: m.suggest.or(file.suggest).unwrap_or(true),
             max_levels: file.input.max_levels.unwrap_or(DEFAULT_MAX_LEVELS),
+            date_order: reading.date_order,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);

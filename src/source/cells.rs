@@ -139,6 +139,12 @@ impl Cells {
         self.words[i]
     }
 
+    /// The distinct values other than numbers, each once, in order of
+    /// first use.
+    pub fn distinct_others(&self) -> impl Iterator<Item = &Value> {
+        self.others.iter()
+    }
+
     /// Every cell, in order.
     pub fn iter(&self) -> impl Iterator<Item = Value> + '_ {
         (0..self.words.len()).map(|i| self.get(i))

@@ -287,6 +287,12 @@ fn write_table_rows<'a, R: AsRef<[Cell<'a>]>>(
                     };
                     12
                 }
+                // A workbook date cannot hold a day before 1900 (nor after
+                // 9999): such a date is written as ISO text.
+                Cell::Date(d) if !(1900..=9999).contains(&d.year()) => {
+                    sheet.write_string(r, c, d.to_string())?;
+                    10
+                }
                 Cell::Date(d) => {
                     let date = ExcelDateTime::from_ymd(
                         u16::try_from(d.year()).unwrap_or(1900),

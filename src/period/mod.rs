@@ -10,6 +10,10 @@ use std::fmt;
 
 use chrono::{Datelike, NaiveDate, Weekday};
 
+mod labels;
+
+pub use labels::{month_of_name, order_of, read_label, DateOrder, StampError};
+
 /// How often a series is observed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, serde::Serialize)]
 #[serde(rename_all = "snake_case")]
@@ -174,36 +178,60 @@ impl Stamp {
 
 /// Reads a date from cell text: ISO dates ("2024-07-15", optionally with a
 /// time), ISO weeks ("2024-W05"), months ("2024-07"), quarters ("2024-Q3",
-/// "2024Q3") and years ("2024").
+/// "2024Q3"), years ("2024"), and the labels [`read_label`] reads; `None`
+/// for anything else, an ambiguous slash date included.
 pub fn parse_stamp(text: &str) -> Option<Stamp> {
+    read_stamp(text, None).ok()
+}
+
+/// [`parse_stamp`], reading an ambiguous slash date ("03/04/2024") in
+/// `order` when given, and saying why a text is not a date.
+pub fn read_stamp(text: &str, order: Option<DateOrder>) -> Result<Stamp, StampError> {
     let t = text.trim();
     let date_part = t.split(['T', ' ']).next().unwrap_or(t);
     if let Ok(d) = NaiveDate::parse_from_str(date_part, "%Y-%m-%d") {
-        return Some(Stamp::Date(d));
+        return Ok(Stamp::Date(d));
     }
     let upper = t.to_ascii_uppercase();
     let label = |frequency, ordinal| Some(Stamp::Label(Period { frequency, ordinal }));
-    if let Some((y, q)) = upper.split_once('Q') {
-        let y: i64 = y.trim_end_matches('-').parse().ok()?;
-        let q: i64 = q.parse().ok().filter(|q| (1..=4).contains(q))?;
-        return label(Frequency::Quarter, y * 4 + q - 1);
+    let iso = || -> Option<Stamp> {
+        if let Some((y, q)) = upper.split_once('Q') {
+            let y: i64 = y.trim_end_matches('-').parse().ok()?;
+            let q: i64 = q.parse().ok().filter(|q| (1..=4).contains(q))?;
+            return label(Frequency::Quarter, y * 4 + q - 1);
+        }
+        if let Some((y, w)) = upper.split_once("-W") {
+            let y: i32 = y.parse().ok()?;
+            let w: u32 = w.parse().ok()?;
+            let monday = NaiveDate::from_isoywd_opt(y, w, Weekday::Mon)?;
+            return Some(Stamp::Label(Period::of_date(monday, Frequency::Week)));
+        }
+        if let Some((y, m)) = t.split_once('-') {
+            let y: i64 = y.parse().ok()?;
+            let m: i64 = m.parse().ok().filter(|m| (1..=12).contains(m))?;
+            return label(Frequency::Month, y * 12 + m - 1);
+        }
+        if t.len() == 4 {
+            let y: i64 = t.parse().ok()?;
+            return label(Frequency::Year, y);
+        }
+        None
+    };
+    match iso() {
+        Some(stamp) => Ok(stamp),
+        None => read_label(t, order),
     }
-    if let Some((y, w)) = upper.split_once("-W") {
-        let y: i32 = y.parse().ok()?;
-        let w: u32 = w.parse().ok()?;
-        let monday = NaiveDate::from_isoywd_opt(y, w, Weekday::Mon)?;
-        return Some(Stamp::Label(Period::of_date(monday, Frequency::Week)));
-    }
-    if let Some((y, m)) = t.split_once('-') {
-        let y: i64 = y.parse().ok()?;
-        let m: i64 = m.parse().ok().filter(|m| (1..=12).contains(m))?;
-        return label(Frequency::Month, y * 12 + m - 1);
-    }
-    if t.len() == 4 {
-        let y: i64 = t.parse().ok()?;
-        return label(Frequency::Year, y);
-    }
-    None
+}
+
+/// A whole number of four digits in a cell, read as a year (1935 for
+/// yearly data); `None` for any other number.
+pub fn year_of_number(x: f64) -> Option<Stamp> {
+    (x.fract() == 0.0 && (1000.0..=9999.0).contains(&x)).then(|| {
+        Stamp::Label(Period {
+            frequency: Frequency::Year,
+            ordinal: x as i64,
+        })
+    })
 }
 
 /// What seasons are counted by.
