@@ -226,12 +226,10 @@ pub fn read_stamp(text: &str, order: Option<DateOrder>) -> Result<Stamp, StampEr
 /// A whole number of four digits in a cell, read as a year (1935 for
 /// yearly data); `None` for any other number.
 pub fn year_of_number(x: f64) -> Option<Stamp> {
-    (x.fract() == 0.0 && (1000.0..=9999.0).contains(&x)).then(|| {
-        Stamp::Label(Period {
-            frequency: Frequency::Year,
-            ordinal: x as i64,
-        })
-    })
+    (x.fract() == 0.0 && (1000.0..=9999.0).contains(&x)).then_some(Stamp::Label(Period {
+        frequency: Frequency::Year,
+        ordinal: x as i64,
+    }))
 }
 
 /// What seasons are counted by.
