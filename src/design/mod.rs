@@ -121,6 +121,24 @@ pub enum DesignError {
         /// The value as text.
         value: String,
     },
+    /// Two-digit years that cannot be one series.
+    #[error("model '{model}': {place}, date column '{column}' writes years with two digits, read as 1970 to 2069: {low} is {low_year} and {high} is {high_year}, too far apart to be one series; write the years with four digits")]
+    TwoDigitYears {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The earliest label and its cell.
+        low: String,
+        /// Its year.
+        low_year: i64,
+        /// The latest label and its cell.
+        high: String,
+        /// Its year.
+        high_year: i64,
+    },
     /// A date written with slashes reads both ways round.
     #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds '{value}', which reads as {day_first} (day first) or as {month_first} (month first), and no date of the column tells which; write `date_order = \"dmy\"` or `date_order = \"mdy\"` under [input]")]
     AmbiguousDate {

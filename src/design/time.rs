@@ -1,16 +1,21 @@
 //! The time side of a design: reading a date column into periods, telling
 //! its frequency, ordering rows by period, and the trend and season columns.
 
+use chrono::Datelike;
+
 use crate::job::SeasonSpec;
 use crate::period::{
-    detect_frequency, order_of, read_stamp, year_of_number, Frequency, Period, SeasonBy, Stamp,
-    StampError,
+    detect_frequency, has_two_digit_year, order_of, read_stamp, year_of_number, Frequency, Period,
+    SeasonBy, Stamp, StampError,
 };
 use crate::source::{Column, Value};
 
 use std::sync::Arc;
 
 use super::{Context, DesignColumn, DesignError, NamedColumn};
+
+/// The widest span of years that two-digit years may cover.
+const TWO_DIGIT_SPAN: i64 = 60;
 
 /// The periods of a model's used rows.
 #[derive(Debug, Clone)]
@@ -46,6 +51,54 @@ impl Context<'_> {
     /// Dates written with slashes read in the job's `date_order`, or in
     /// the order the column's own dates leave no doubt about.
     pub(super) fn stamps(&self, column: &Column) -> Result<Vec<Option<Stamp>>, DesignError> {
+        let stamps = self.read_stamps(column)?;
+        self.check_two_digit_years(column, &stamps)?;
+        Ok(stamps)
+    }
+
+    /// Refuses two-digit years that the 1970-2069 reading spreads over
+    /// more than [`TWO_DIGIT_SPAN`] years: a series such as 1959-2009
+    /// written "Q1-59" to "Q3-09" would otherwise be read as 1970-2069
+    /// and put out of order.
+    fn check_two_digit_years(
+        &self,
+        column: &Column,
+        stamps: &[Option<Stamp>],
+    ) -> Result<(), DesignError> {
+        let mut years: Vec<(i64, usize)> = Vec::new();
+        for (i, stamp) in stamps.iter().enumerate() {
+            if let (Some(Stamp::Label(p)), Value::Text(t)) = (stamp, column.values.get(i)) {
+                if has_two_digit_year(&t) {
+                    years.push((i64::from(p.start().year()), i));
+                }
+            }
+        }
+        let (Some(low), Some(high)) = (years.iter().min(), years.iter().max()) else {
+            return Ok(());
+        };
+        if high.0 - low.0 <= TWO_DIGIT_SPAN {
+            return Ok(());
+        }
+        Err(DesignError::TwoDigitYears {
+            model: self.model.name.clone(),
+            place: self.table.place(),
+            column: column.name.clone(),
+            low: format!(
+                "'{}' ({})",
+                column.values.get(low.1),
+                self.table.cell(column, low.1)
+            ),
+            low_year: low.0,
+            high: format!(
+                "'{}' ({})",
+                column.values.get(high.1),
+                self.table.cell(column, high.1)
+            ),
+            high_year: high.0,
+        })
+    }
+
+    fn read_stamps(&self, column: &Column) -> Result<Vec<Option<Stamp>>, DesignError> {
         let order = self.model.date_order.or_else(|| {
             order_of(column.values.distinct_others().filter_map(|v| match v {
                 Value::Text(t) => Some(t.as_str()),

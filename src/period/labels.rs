@@ -87,6 +87,20 @@ fn year(token: &str) -> Option<i64> {
     }
 }
 
+/// Whether `text` is a label with a two-digit year ("Jan-24", "Q3-24").
+pub fn has_two_digit_year(text: &str) -> bool {
+    let Some(tokens) = tokens(text.trim()) else {
+        return false;
+    };
+    let t: Vec<&str> = tokens.iter().map(String::as_str).collect();
+    let two_digits = |y: &str| y.len() == 2 && y.bytes().all(|b| b.is_ascii_digit());
+    match t.as_slice() {
+        [name, y] => name.bytes().all(|b| b.is_ascii_alphabetic()) && two_digits(y),
+        ["Q", _, y] => two_digits(y),
+        _ => false,
+    }
+}
+
 /// `text` split into runs of letters and runs of digits, upper-cased; any
 /// other character separates runs. `None` when it holds anything but
 /// letters, digits, spaces, dashes, slashes, dots and commas.
@@ -300,6 +314,16 @@ mod tests {
             "32/01/2024",
         ] {
             assert!(read_label(text, None).is_err(), "{text}");
+        }
+    }
+
+    #[test]
+    fn only_labels_with_a_two_digit_year_say_so() {
+        for text in ["Jan-24", "Q3-24", "q1 99"] {
+            assert!(has_two_digit_year(text), "{text}");
+        }
+        for text in ["2023-01", "Jan-2024", "Q3 2024", "2024Q3", "2024M01"] {
+            assert!(!has_two_digit_year(text), "{text}");
         }
     }
 

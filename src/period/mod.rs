@@ -12,7 +12,7 @@ use chrono::{Datelike, NaiveDate, Weekday};
 
 mod labels;
 
-pub use labels::{month_of_name, order_of, read_label, DateOrder, StampError};
+pub use labels::{has_two_digit_year, month_of_name, order_of, read_label, DateOrder, StampError};
 
 /// How often a series is observed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, serde::Serialize)]
