@@ -281,11 +281,12 @@ fn plan_rows(
                 Some((timing, column)) => {
                     let value = column.values.get(i);
                     let stamp = match &value {
-                        Value::Date(t) | Value::Text(t) => read_stamp(t, spec.date_order).ok(),
+                        Value::Date(t) | Value::Text(t) => read_stamp(t, &spec.labels).ok(),
                         Value::Number(x) => year_of_number(*x),
                         _ => None,
                     };
-                    let period: Option<Period> = stamp.and_then(|s| s.period(timing.frequency));
+                    let period: Option<Period> =
+                        stamp.and_then(|s| s.period_in(timing.frequency, spec.labels.fiscal_start));
                     Some(period.ok_or_else(|| ForecastError::PlanDate {
                         model: spec.name.clone(),
                         sheet: sheet.to_string(),

@@ -208,3 +208,53 @@ fn slash_dates_that_read_both_ways_need_date_order() {
     assert_eq!(json["models"][0]["timing"]["first"], "2024-02-01");
     assert_eq!(json["models"][0]["timing"]["frequency"], "day");
 }
+
+#[test]
+fn fiscal_periods_read_label_forecast_and_count_seasons_in_the_fiscal_year() {
+    // El Nino months labelled in a fiscal year starting in April, named by
+    // the year it ends in: April 1950 is FY1951 P01.
+    let s = Scratch::new();
+    let csv: String = std::iter::once("period,temperature\n".to_string())
+        .chain(rows("elnino.csv").iter().map(|r| {
+            let (y, m) = (r[0] as i64, r[1] as i64);
+            let fiscal_year = if m >= 4 { y + 1 } else { y };
+            let p = (m + 12 - 4) % 12 + 1;
+            format!("FY{fiscal_year} P{p:02},{}\n", r[2])
+        }))
+        .collect();
+    s.write("data.csv", &csv);
+    let job = "suggest = false\n[input]\nworkbook = \"data.csv\"\nfiscal_year_start = \"Apr\"\n[[model]]\nname = \"elnino\"\nresponse = \"temperature\"\ntrend = \"period\"\nseason = { column = \"period\", by = \"month\" }\n[model.forecast]\nhorizon = 4\n";
+    let json = assert_matches(&s, job, "elnino_fiscal_april");
+    let model = &json["models"][0];
+    assert_eq!(model["timing"]["first"], "FY1950 P10");
+    let terms: Vec<&str> = model["coefficients"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|c| c["term"].as_str().unwrap())
+        .collect();
+    assert_eq!(terms[2], "season[P02]");
+    assert_eq!(terms[12], "season[P12]");
+    let periods: Vec<&str> = model["forecast"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["period"].as_str().unwrap())
+        .collect();
+    assert_eq!(
+        periods,
+        ["FY2011 P10", "FY2011 P11", "FY2011 P12", "FY2012 P01"]
+    );
+    // Without the fiscal year the labels are refused, saying which key.
+    s.write(
+        "job.toml",
+        &job.replace("fiscal_year_start = \"Apr\"\n", ""),
+    );
+    let out = sheetfit(&s.path(""), &["run", "--overwrite", "job.toml"]);
+    assert_status(&out, 1);
+    assert!(
+        stderr(&out).contains("holds 'FY1950 P10', which is a fiscal period; say when the fiscal year starts with `fiscal_year_start = \"Apr\"`"),
+        "{}",
+        stderr(&out)
+    );
+}

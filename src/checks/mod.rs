@@ -445,10 +445,7 @@ impl RowTable {
             .ordinals
             .get(i)
             .zip(self.first)
-            .map(|(&ordinal, first)| Period {
-                frequency: first.frequency,
-                ordinal,
-            });
+            .map(|(&ordinal, first)| Period { ordinal, ..first });
         let cook = standardized.map(|r| r * r * h / (p * (1.0 - h)));
         let studentized = standardized
             .filter(|r| df - r * r > 0.0)

@@ -121,6 +121,22 @@ pub enum DesignError {
         /// The value as text.
         value: String,
     },
+    /// A fiscal label the job cannot read.
+    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds '{value}', which {why}")]
+    FiscalLabel {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The text.
+        value: String,
+        /// Why and what to do.
+        why: &'static str,
+    },
     /// Two-digit years that cannot be one series.
     #[error("model '{model}': {place}, date column '{column}' writes years with two digits, read as 1970 to 2069: {low} is {low_year} and {high} is {high_year}, too far apart to be one series; write the years with four digits")]
     TwoDigitYears {

@@ -5,8 +5,8 @@ use chrono::Datelike;
 
 use crate::job::SeasonSpec;
 use crate::period::{
-    detect_frequency, has_two_digit_year, order_of, read_stamp, year_of_number, Frequency, Period,
-    SeasonBy, Stamp, StampError,
+    detect_frequency, has_two_digit_year, order_of, read_stamp, year_of_number, Frequency,
+    LabelRules, Period, SeasonBy, Stamp, StampError,
 };
 use crate::source::{Column, Value};
 
@@ -99,21 +99,34 @@ impl Context<'_> {
     }
 
     fn read_stamps(&self, column: &Column) -> Result<Vec<Option<Stamp>>, DesignError> {
-        let order = self.model.date_order.or_else(|| {
-            order_of(column.values.distinct_others().filter_map(|v| match v {
-                Value::Text(t) => Some(t.as_str()),
-                _ => None,
-            }))
-        });
+        let rules = LabelRules {
+            date_order: self.model.labels.date_order.or_else(|| {
+                order_of(column.values.distinct_others().filter_map(|v| match v {
+                    Value::Text(t) => Some(t.as_str()),
+                    _ => None,
+                }))
+            }),
+            ..self.model.labels
+        };
         column
             .values
             .iter()
             .enumerate()
             .map(|(i, v)| match v {
                 Value::Blank => Ok(None),
-                Value::Date(ref text) | Value::Text(ref text) => match read_stamp(text, order) {
+                Value::Date(ref text) | Value::Text(ref text) => match read_stamp(text, &rules) {
                     Ok(stamp) => Ok(Some(stamp)),
                     Err(StampError::Unknown) => Err(self.bad_date(column, i, &v)),
+                    Err(StampError::NoFiscalYear) => Err(self.fiscal_label(
+                        column,
+                        i,
+                        "is a fiscal period; say when the fiscal year starts with `fiscal_year_start = \"Apr\"` (its first month) under [input]",
+                    )),
+                    Err(StampError::FiscalQuarter) => Err(self.fiscal_label(
+                        column,
+                        i,
+                        "is a fiscal quarter, but the fiscal year does not start with a calendar quarter (Jan, Apr, Jul or Oct); use fiscal months (P01 to P12) or check `fiscal_year_start`",
+                    )),
                     Err(StampError::Ambiguous {
                         day_first,
                         month_first,
@@ -134,6 +147,17 @@ impl Context<'_> {
                 other => Err(self.bad_date(column, i, &other)),
             })
             .collect()
+    }
+
+    fn fiscal_label(&self, column: &Column, i: usize, why: &'static str) -> DesignError {
+        DesignError::FiscalLabel {
+            model: self.model.name.clone(),
+            place: self.table.place(),
+            column: column.name.clone(),
+            cell: self.table.cell(column, i),
+            value: column.values.get(i).to_string(),
+            why,
+        }
     }
 
     fn bad_date(&self, column: &Column, i: usize, value: &Value) -> DesignError {
@@ -177,7 +201,7 @@ pub(super) fn timing(
     for &i in keep {
         let stamp = stamps[i].ok_or_else(|| ctx.bad_date(column, i, &Value::Blank))?;
         let period = stamp
-            .period(frequency)
+            .period_in(frequency, ctx.model.labels.fiscal_start)
             .ok_or_else(|| DesignError::MixedFrequency {
                 model: ctx.model.name.clone(),
                 place: ctx.table.place(),
@@ -209,6 +233,7 @@ pub(super) fn timing(
     let first = counts.keys().next().copied().unwrap_or(Period {
         frequency,
         ordinal: 0,
+        fiscal: 0,
     });
     Ok(Timing {
         column: column.name.clone(),

@@ -4,7 +4,7 @@ use std::path::PathBuf;
 
 use serde::Deserialize;
 
-use crate::period::DateOrder;
+use crate::period::{month_of_name, DateOrder, LabelRules};
 
 /// The limits of the pre-scan; each can be raised in the job's `[input]`
 /// table (`max_cells`, `max_shared_strings`, `max_uncompressed_mb`).
@@ -71,6 +71,9 @@ pub struct InputFile {
     pub encoding: Option<String>,
     /// "dmy" or "mdy": how dates written with slashes (03/04/2024) read.
     pub date_order: Option<String>,
+    /// The month the fiscal year starts in ("Apr"): fiscal labels
+    /// ("FY2025 P03") and fiscal seasons.
+    pub fiscal_year_start: Option<String>,
 }
 
 /// `header_row = 1`: a whole number; text or a fraction is refused with a
@@ -202,9 +205,9 @@ pub struct Reading {
     pub text_numbers: bool,
     /// How a CSV input is written.
     pub csv: CsvFormat,
-    /// How dates written with slashes read; told from the dates when
-    /// `None`.
-    pub date_order: Option<DateOrder>,
+    /// How period labels read: the order of slash dates and the fiscal
+    /// year.
+    pub labels: LabelRules,
 }
 
 impl Reading {
@@ -295,14 +298,27 @@ impl Reading {
             summary_rows,
             text_numbers,
             csv: csv_format(input, is_csv)?,
-            date_order: match input.date_order.as_deref() {
-                None => None,
-                Some(text) => Some(DateOrder::parse(text).ok_or_else(|| {
-                    (
-                        "input.date_order",
-                        format!("'{text}' is not an order; write \"dmy\" (03/04/2024 is 3 April) or \"mdy\" (03/04/2024 is March 4)"),
-                    )
-                })?),
+            labels: LabelRules {
+                date_order: match input.date_order.as_deref() {
+                    None => None,
+                    Some(text) => Some(DateOrder::parse(text).ok_or_else(|| {
+                        (
+                            "input.date_order",
+                            format!("'{text}' is not an order; write \"dmy\" (03/04/2024 is 3 April) or \"mdy\" (03/04/2024 is March 4)"),
+                        )
+                    })?),
+                },
+                fiscal_start: match input.fiscal_year_start.as_deref() {
+                    None => 0,
+                    Some(text) => month_of_name(text.trim())
+                        .and_then(|m| u8::try_from(m).ok())
+                        .ok_or_else(|| {
+                            (
+                                "input.fiscal_year_start",
+                                format!("'{text}' is not a month; write the month the fiscal year starts in, such as \"Apr\""),
+                            )
+                        })?,
+                },
             },
         })
     }

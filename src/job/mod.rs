@@ -14,7 +14,7 @@ use std::path::{Path, PathBuf};
 use indexmap::IndexMap;
 use serde::Deserialize;
 
-use crate::period::{DateOrder, Frequency, SeasonBy};
+use crate::period::{Frequency, LabelRules, SeasonBy};
 
 mod cell_text;
 mod input;
@@ -376,9 +376,9 @@ pub struct ModelSpec {
     /// Most levels a categorical predictor (or a season) may have: the
     /// job's `max_levels` under [input].
     pub max_levels: usize,
-    /// How dates written with slashes are read: the job's `date_order`
-    /// under [input]; told from the dates when `None`.
-    pub date_order: Option<DateOrder>,
+    /// How period labels read: `date_order` and `fiscal_year_start` under
+    /// [input].
+    pub labels: LabelRules,
 }
 
 impl ModelSpec {
@@ -405,7 +405,7 @@ impl ModelSpec {
             standard_errors: None,
             suggest: true,
             max_levels: DEFAULT_MAX_LEVELS,
-            date_order: None,
+            labels: LabelRules::default(),
         }
     }
 
@@ -620,7 +620,10 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         }
         let season = m
             .season
-            .map(|s| season_spec(s).map_err(|(k, msg)| invalid(&key(&format!("season.{k}")), msg)))
+            .map(|s| {
+                season_spec(s, reading.labels.fiscal_start)
+                    .map_err(|(k, msg)| invalid(&key(&format!("season.{k}")), msg))
+            })
             .transpose()?;
         let frequency = m
             .frequency
@@ -682,7 +685,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             standard_errors,
             suggest: m.suggest.or(file.suggest).unwrap_or(true),
             max_levels: file.input.max_levels.unwrap_or(DEFAULT_MAX_LEVELS),
-            date_order: reading.date_order,
+            labels: reading.labels,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);
@@ -753,13 +756,18 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
     })
 }
 
-fn season_spec(s: SeasonFile) -> Result<SeasonSpec, (&'static str, String)> {
-    let by = SeasonBy::parse(&s.by).ok_or_else(|| {
-        (
-            "by",
-            format!("'{}' is not a season; use month, quarter or weekday", s.by),
-        )
-    })?;
+/// The season of a model, counted in the fiscal year starting in month
+/// `fiscal` when there is one (months and quarters become P01..P12 and
+/// FQ1..FQ4).
+fn season_spec(s: SeasonFile, fiscal: u8) -> Result<SeasonSpec, (&'static str, String)> {
+    let by = SeasonBy::parse(&s.by)
+        .ok_or_else(|| {
+            (
+                "by",
+                format!("'{}' is not a season; use month, quarter or weekday", s.by),
+            )
+        })?
+        .in_fiscal_year(fiscal);
     let labels = by.labels().join(", ");
     let baseline = match &s.baseline {
         None => 1,

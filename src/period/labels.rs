@@ -31,11 +31,26 @@ impl DateOrder {
     }
 }
 
+/// How a job reads period labels: the order of slash dates and the month
+/// its fiscal year starts in.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct LabelRules {
+    /// How dates with slashes read; told from the column when `None`.
+    pub date_order: Option<DateOrder>,
+    /// The month the fiscal year starts in (2-12), or 0 for none.
+    pub fiscal_start: u8,
+}
+
 /// Why a cell's text is not a date or period.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum StampError {
     /// It reads as no date or period.
     Unknown,
+    /// A fiscal label ("FY2024 P03") in a job without `fiscal_year_start`.
+    NoFiscalYear,
+    /// A fiscal quarter label when the fiscal year does not start with a
+    /// calendar quarter.
+    FiscalQuarter,
     /// Day and month could be either way round.
     Ambiguous {
         /// The reading with the day first.
@@ -133,13 +148,58 @@ fn tokens(text: &str) -> Option<Vec<String>> {
 }
 
 fn label(frequency: Frequency, ordinal: i64) -> Result<Stamp, StampError> {
-    Ok(Stamp::Label(Period { frequency, ordinal }))
+    Ok(Stamp::Label(Period {
+        frequency,
+        ordinal,
+        fiscal: 0,
+    }))
 }
 
-/// The period label or slash date in `text`, reading an ambiguous slash
-/// date in `order` when given.
-pub fn read_label(text: &str, order: Option<DateOrder>) -> Result<Stamp, StampError> {
-    if let Some(stamp) = slash_date(text, order)? {
+/// A fiscal label's period: `FY{year}` alone, with `P{month}` or with
+/// `Q{quarter}`, the year named by the calendar year the fiscal year ends
+/// in.
+fn fiscal_label(
+    rules: &LabelRules,
+    y: &str,
+    part: Option<(&str, &str)>,
+) -> Result<Stamp, StampError> {
+    let start = i64::from(rules.fiscal_start);
+    if start < 2 {
+        return Err(StampError::NoFiscalYear);
+    }
+    let year = year(y).ok_or(StampError::Unknown)?;
+    // The calendar month ordinal of the fiscal year's first month.
+    let first = (year - 1) * 12 + start - 1;
+    let period = |frequency, ordinal| {
+        Ok(Stamp::Label(Period {
+            frequency,
+            ordinal,
+            fiscal: rules.fiscal_start,
+        }))
+    };
+    match part {
+        None => period(Frequency::Year, year),
+        Some(("P", p)) => {
+            let p = p.parse::<i64>().ok().filter(|p| (1..=12).contains(p));
+            period(Frequency::Month, first + p.ok_or(StampError::Unknown)? - 1)
+        }
+        Some(("Q", q)) => {
+            let q = q.parse::<i64>().ok().filter(|q| (1..=4).contains(q));
+            if (start - 1) % 3 != 0 {
+                return Err(StampError::FiscalQuarter);
+            }
+            period(
+                Frequency::Quarter,
+                (first + 3 * (q.ok_or(StampError::Unknown)? - 1)) / 3,
+            )
+        }
+        _ => Err(StampError::Unknown),
+    }
+}
+
+/// The period label or slash date in `text`, read under `rules`.
+pub fn read_label(text: &str, rules: &LabelRules) -> Result<Stamp, StampError> {
+    if let Some(stamp) = slash_date(text, rules.date_order)? {
         return Ok(stamp);
     }
     let tokens = tokens(text.trim()).ok_or(StampError::Unknown)?;
@@ -148,6 +208,9 @@ pub fn read_label(text: &str, order: Option<DateOrder>) -> Result<Stamp, StampEr
         s.parse::<i64>().ok().filter(|n| range.contains(n))
     };
     match t.as_slice() {
+        // FY2024, FY24 P03, FY2024 Q1
+        ["FY", y] => fiscal_label(rules, y, None),
+        ["FY", y, part, n] => fiscal_label(rules, y, Some((part, n))),
         // 2024Q3, 2024-Q3, 2024 Q3
         [y, "Q", q] if y.len() == 4 => {
             let (y, q) = (year(y).ok_or(StampError::Unknown)?, number(q, 1..=4));
@@ -275,8 +338,48 @@ pub fn order_of(texts: impl Iterator<Item = impl AsRef<str>>) -> Option<DateOrde
 mod tests {
     use super::*;
 
+    fn rules(date_order: Option<DateOrder>, fiscal_start: u8) -> LabelRules {
+        LabelRules {
+            date_order,
+            fiscal_start,
+        }
+    }
+
+    #[test]
+    fn fiscal_labels_name_the_year_they_end_in() {
+        let april = rules(None, 4);
+        let read = |text: &str| match read_label(text, &april).unwrap() {
+            Stamp::Label(p) => (p.to_string(), p.start().to_string()),
+            Stamp::Date(d) => (d.to_string(), String::new()),
+        };
+        assert_eq!(
+            read("FY2025 P01"),
+            ("FY2025 P01".into(), "2024-04-01".into())
+        );
+        assert_eq!(read("FY25 P12"), ("FY2025 P12".into(), "2025-03-01".into()));
+        assert_eq!(read("FY2025 Q2"), ("FY2025 Q2".into(), "2024-07-01".into()));
+        assert_eq!(read("FY2025"), ("FY2025".into(), "2024-04-01".into()));
+        assert_eq!(
+            read_label("FY2025 P01", &LabelRules::default()),
+            Err(StampError::NoFiscalYear)
+        );
+        assert_eq!(
+            read_label("FY2025 Q1", &rules(None, 2)),
+            Err(StampError::FiscalQuarter)
+        );
+        let p = match read_label("FY2025 P10", &april).unwrap() {
+            Stamp::Label(p) => p,
+            Stamp::Date(_) => unreachable!(),
+        };
+        // P10 of FY2025 is January 2025: fiscal month 10, fiscal quarter 4.
+        assert_eq!(p.season(super::super::SeasonBy::FiscalMonth), Some(10));
+        assert_eq!(p.season(super::super::SeasonBy::FiscalQuarter), Some(4));
+        assert_eq!(p.season(super::super::SeasonBy::Month), Some(1));
+        assert_eq!(p.plus(3).to_string(), "FY2026 P01");
+    }
+
     fn shown(text: &str) -> String {
-        match read_label(text, None).unwrap_or_else(|e| panic!("{text}: {e:?}")) {
+        match read_label(text, &LabelRules::default()).unwrap_or_else(|e| panic!("{text}: {e:?}")) {
             Stamp::Label(p) => p.to_string(),
             Stamp::Date(d) => d.to_string(),
         }
@@ -313,7 +416,7 @@ mod tests {
             "1/2/24",
             "32/01/2024",
         ] {
-            assert!(read_label(text, None).is_err(), "{text}");
+            assert!(read_label(text, &LabelRules::default()).is_err(), "{text}");
         }
     }
 
@@ -330,18 +433,18 @@ mod tests {
     #[test]
     fn a_slash_date_that_reads_both_ways_is_ambiguous_until_told() {
         assert_eq!(
-            read_label("03/04/2024", None),
+            read_label("03/04/2024", &LabelRules::default()),
             Err(StampError::Ambiguous {
                 day_first: NaiveDate::from_ymd_opt(2024, 4, 3).unwrap(),
                 month_first: NaiveDate::from_ymd_opt(2024, 3, 4).unwrap(),
             })
         );
         assert_eq!(
-            read_label("03/04/2024", Some(DateOrder::Dmy)),
+            read_label("03/04/2024", &rules(Some(DateOrder::Dmy), 0)),
             Ok(Stamp::Date(NaiveDate::from_ymd_opt(2024, 4, 3).unwrap()))
         );
         assert_eq!(
-            read_label("03/04/2024", Some(DateOrder::Mdy)),
+            read_label("03/04/2024", &rules(Some(DateOrder::Mdy), 0)),
             Ok(Stamp::Date(NaiveDate::from_ymd_opt(2024, 3, 4).unwrap()))
         );
         assert_eq!(

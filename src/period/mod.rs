@@ -12,7 +12,9 @@ use chrono::{Datelike, NaiveDate, Weekday};
 
 mod labels;
 
-pub use labels::{has_two_digit_year, month_of_name, order_of, read_label, DateOrder, StampError};
+pub use labels::{
+    has_two_digit_year, month_of_name, order_of, read_label, DateOrder, LabelRules, StampError,
+};
 
 /// How often a series is observed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, serde::Serialize)]
@@ -63,8 +65,14 @@ impl Frequency {
 pub struct Period {
     /// The frequency.
     pub frequency: Frequency,
-    /// Periods since the frequency's origin.
+    /// Periods since the frequency's origin. Months and quarters count
+    /// calendar months and quarters whatever the fiscal year; a year is the
+    /// fiscal year's number when there is one.
     pub ordinal: i64,
+    /// The month the fiscal year starts in (2-12), or 0 for the calendar
+    /// year: it decides how the period is labelled ("FY2025 P01") and how
+    /// its seasons are counted.
+    pub fiscal: u8,
 }
 
 /// A period is written as its label ("2024-03", "2024-Q1", ...).
@@ -77,6 +85,14 @@ impl serde::Serialize for Period {
 impl Period {
     /// The period holding `date`.
     pub fn of_date(date: NaiveDate, frequency: Frequency) -> Self {
+        Period::of_date_in(date, frequency, 0)
+    }
+
+    /// The period holding `date`, in a fiscal year starting in month
+    /// `fiscal` (0 for the calendar year). A fiscal year is named by the
+    /// calendar year it ends in: with `fiscal` = 4, FY2025 runs from April
+    /// 2024 to March 2025.
+    pub fn of_date_in(date: NaiveDate, frequency: Frequency, fiscal: u8) -> Self {
         let days = i64::from(date.num_days_from_ce());
         let ordinal = match frequency {
             Frequency::Day => days,
@@ -84,17 +100,36 @@ impl Period {
             Frequency::Week => (days - 1).div_euclid(7),
             Frequency::Month => i64::from(date.year()) * 12 + i64::from(date.month0()),
             Frequency::Quarter => i64::from(date.year()) * 4 + i64::from(date.month0() / 3),
-            Frequency::Year => i64::from(date.year()),
+            Frequency::Year => {
+                i64::from(date.year()) + i64::from(fiscal > 1 && date.month() >= u32::from(fiscal))
+            }
         };
-        Period { frequency, ordinal }
+        Period {
+            frequency,
+            ordinal,
+            fiscal: if fiscal > 1 { fiscal } else { 0 },
+        }
     }
 
     /// The period `n` periods after this one.
     pub fn plus(self, n: i64) -> Self {
         Period {
-            frequency: self.frequency,
             ordinal: self.ordinal + n,
+            ..self
         }
+    }
+
+    /// The fiscal year (named by the year it ends in) and the month of it
+    /// (from 1) that this period's first day falls in.
+    fn fiscal_year_and_month(self) -> (i64, u32) {
+        let start = self.start();
+        let fiscal = u32::from(self.fiscal);
+        let (y, m) = (i64::from(start.year()), start.month());
+        if fiscal <= 1 {
+            return (y, m);
+        }
+        let year = y + i64::from(m >= fiscal);
+        (year, (m + 12 - fiscal) % 12 + 1)
     }
 
     /// The first day of the period.
@@ -116,6 +151,7 @@ impl Period {
             Frequency::Week => from_days(self.ordinal * 7 + 1),
             Frequency::Month => ymd(self.ordinal.div_euclid(12), self.ordinal.rem_euclid(12)),
             Frequency::Quarter => ymd(self.ordinal.div_euclid(4), self.ordinal.rem_euclid(4) * 3),
+            Frequency::Year if self.fiscal > 1 => ymd(self.ordinal - 1, i64::from(self.fiscal) - 1),
             Frequency::Year => ymd(self.ordinal, 0),
         }
     }
@@ -124,7 +160,20 @@ impl Period {
     /// `None` when the period is too coarse for it (a month has no weekday).
     pub fn season(self, by: SeasonBy) -> Option<u32> {
         let start = self.start();
+        let (_, fiscal_month) = self.fiscal_year_and_month();
         match (by, self.frequency) {
+            (SeasonBy::FiscalMonth, Frequency::Day | Frequency::Week | Frequency::Month) => {
+                Some(fiscal_month)
+            }
+            (SeasonBy::FiscalQuarter, Frequency::Day | Frequency::Week | Frequency::Month) => {
+                Some((fiscal_month - 1) / 3 + 1)
+            }
+            // A calendar quarter lies in one fiscal quarter only when the
+            // fiscal year starts with a calendar quarter.
+            (SeasonBy::FiscalQuarter, Frequency::Quarter) if (fiscal_month - 1) % 3 == 0 => {
+                Some((fiscal_month - 1) / 3 + 1)
+            }
+            (SeasonBy::FiscalMonth | SeasonBy::FiscalQuarter, _) => None,
             (SeasonBy::Month, Frequency::Day | Frequency::Week | Frequency::Month) => {
                 Some(start.month())
             }
@@ -141,6 +190,17 @@ impl fmt::Display for Period {
     /// "2024-Q3" (quarter), "2024" (year).
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         let start = self.start();
+        if self.fiscal > 1 {
+            let (year, month) = self.fiscal_year_and_month();
+            match self.frequency {
+                Frequency::Month => return write!(f, "FY{year} P{month:02}"),
+                Frequency::Quarter if (month - 1) % 3 == 0 => {
+                    return write!(f, "FY{year} Q{}", (month - 1) / 3 + 1)
+                }
+                Frequency::Year => return write!(f, "FY{}", self.ordinal),
+                _ => {}
+            }
+        }
         match self.frequency {
             Frequency::Day => write!(f, "{start}"),
             Frequency::Week => {
@@ -168,9 +228,17 @@ impl Stamp {
     /// any other frequency (a quarter label in a monthly series, or a month
     /// label in a quarterly one).
     pub fn period(self, frequency: Frequency) -> Option<Period> {
+        self.period_in(frequency, 0)
+    }
+
+    /// [`Stamp::period`] in a fiscal year starting in month `fiscal` (0
+    /// for the calendar year); a yearly label read as a calendar year stays
+    /// that year's number.
+    pub fn period_in(self, frequency: Frequency, fiscal: u8) -> Option<Period> {
+        let fiscal = if fiscal > 1 { fiscal } else { 0 };
         match self {
-            Stamp::Date(d) => Some(Period::of_date(d, frequency)),
-            Stamp::Label(p) if p.frequency == frequency => Some(p),
+            Stamp::Date(d) => Some(Period::of_date_in(d, frequency, fiscal)),
+            Stamp::Label(p) if p.frequency == frequency => Some(Period { fiscal, ..p }),
             Stamp::Label(_) => None,
         }
     }
@@ -181,19 +249,26 @@ impl Stamp {
 /// "2024Q3"), years ("2024"), and the labels [`read_label`] reads; `None`
 /// for anything else, an ambiguous slash date included.
 pub fn parse_stamp(text: &str) -> Option<Stamp> {
-    read_stamp(text, None).ok()
+    read_stamp(text, &LabelRules::default()).ok()
 }
 
-/// [`parse_stamp`], reading an ambiguous slash date ("03/04/2024") in
-/// `order` when given, and saying why a text is not a date.
-pub fn read_stamp(text: &str, order: Option<DateOrder>) -> Result<Stamp, StampError> {
+/// [`parse_stamp`] under the job's `rules` (the order of an ambiguous
+/// slash date such as "03/04/2024", and the fiscal year of labels such as
+/// "FY2025 P03"), saying why a text is not a date.
+pub fn read_stamp(text: &str, rules: &LabelRules) -> Result<Stamp, StampError> {
     let t = text.trim();
     let date_part = t.split(['T', ' ']).next().unwrap_or(t);
     if let Ok(d) = NaiveDate::parse_from_str(date_part, "%Y-%m-%d") {
         return Ok(Stamp::Date(d));
     }
     let upper = t.to_ascii_uppercase();
-    let label = |frequency, ordinal| Some(Stamp::Label(Period { frequency, ordinal }));
+    let label = |frequency, ordinal| {
+        Some(Stamp::Label(Period {
+            frequency,
+            ordinal,
+            fiscal: 0,
+        }))
+    };
     let iso = || -> Option<Stamp> {
         if let Some((y, q)) = upper.split_once('Q') {
             let y: i64 = y.trim_end_matches('-').parse().ok()?;
@@ -219,7 +294,7 @@ pub fn read_stamp(text: &str, order: Option<DateOrder>) -> Result<Stamp, StampEr
     };
     match iso() {
         Some(stamp) => Ok(stamp),
-        None => read_label(t, order),
+        None => read_label(t, rules),
     }
 }
 
@@ -229,6 +304,7 @@ pub fn year_of_number(x: f64) -> Option<Stamp> {
     (x.fract() == 0.0 && (1000.0..=9999.0).contains(&x)).then_some(Stamp::Label(Period {
         frequency: Frequency::Year,
         ordinal: x as i64,
+        fiscal: 0,
     }))
 }
 
@@ -242,6 +318,10 @@ pub enum SeasonBy {
     Quarter,
     /// Seven days, Mon..Sun.
     Weekday,
+    /// The twelve months of a fiscal year, P01..P12 (P01 its first month).
+    FiscalMonth,
+    /// The four quarters of a fiscal year, FQ1..FQ4.
+    FiscalQuarter,
 }
 
 const MONTHS: [&str; 12] = [
@@ -249,6 +329,10 @@ const MONTHS: [&str; 12] = [
 ];
 const QUARTERS: [&str; 4] = ["Q1", "Q2", "Q3", "Q4"];
 const WEEKDAYS: [&str; 7] = ["Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun"];
+const FISCAL_MONTHS: [&str; 12] = [
+    "P01", "P02", "P03", "P04", "P05", "P06", "P07", "P08", "P09", "P10", "P11", "P12",
+];
+const FISCAL_QUARTERS: [&str; 4] = ["FQ1", "FQ2", "FQ3", "FQ4"];
 
 impl SeasonBy {
     /// Parses `month`, `quarter` or `weekday`.
@@ -267,6 +351,18 @@ impl SeasonBy {
             SeasonBy::Month => &MONTHS,
             SeasonBy::Quarter => &QUARTERS,
             SeasonBy::Weekday => &WEEKDAYS,
+            SeasonBy::FiscalMonth => &FISCAL_MONTHS,
+            SeasonBy::FiscalQuarter => &FISCAL_QUARTERS,
+        }
+    }
+
+    /// This season counted within a fiscal year starting in month `fiscal`
+    /// (months and quarters become fiscal periods; 0 or 1 leaves it).
+    pub fn in_fiscal_year(self, fiscal: u8) -> Self {
+        match self {
+            SeasonBy::Month if fiscal > 1 => SeasonBy::FiscalMonth,
+            SeasonBy::Quarter if fiscal > 1 => SeasonBy::FiscalQuarter,
+            other => other,
         }
     }
 
@@ -290,6 +386,8 @@ impl SeasonBy {
             SeasonBy::Month => "month",
             SeasonBy::Quarter => "quarter",
             SeasonBy::Weekday => "weekday",
+            SeasonBy::FiscalMonth => "fiscal month",
+            SeasonBy::FiscalQuarter => "fiscal quarter",
         }
     }
 }

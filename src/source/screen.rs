@@ -543,7 +543,7 @@ mod tests {
                 decimal_comma: false,
                 encoding: crate::job::Encoding::Detect,
             },
-            date_order: None,
+            labels: crate::period::LabelRules::default(),
         }
     }
 

@@ -111,6 +111,19 @@ def main():
         "coefficients": coefficients(fit),
     }
 
+    # The same series in a fiscal year starting in April: the season
+    # baseline is April (P01) and the indicators run May (P02) to March
+    # (P12).
+    fit = smf.ols("temperature ~ trend + C(month, Treatment(4))", data=elnino).fit()
+    fiscal_order = [5, 6, 7, 8, 9, 10, 11, 12, 1, 2, 3]
+    by_name = {c["term"]: c for c in coefficients(fit)}
+    expected["elnino_fiscal_april"] = {
+        "formula": "temperature ~ trend + C(month, Treatment(4)), indicators in fiscal order May..Mar",
+        "n": int(fit.nobs),
+        "coefficients": [by_name["Intercept"], by_name["trend"]]
+        + [by_name["C(month, Treatment(4))[T.%d]" % m] for m in fiscal_order],
+    }
+
     with open(os.path.join(OUT, "expected.json"), "w") as f:
         json.dump(expected, f, indent=1)
         f.write("\n")
