@@ -23,6 +23,7 @@ pub mod period;
 pub mod report;
 pub mod results;
 pub mod source;
+pub mod starter;
 pub mod suggest;
 pub mod text;
 

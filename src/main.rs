@@ -53,6 +53,10 @@ enum Command {
         /// Where to write it; an existing file is never replaced.
         #[arg(default_value = "sheetfit-job.toml")]
         path: PathBuf,
+        /// Write the job from a look at this workbook or CSV file: where
+        /// the data is, its columns and the roles they could play.
+        #[arg(long, value_name = "DATA")]
+        from: Option<PathBuf>,
     },
 }
 
@@ -101,7 +105,7 @@ fn main() -> ExitCode {
                 exit_code(&e)
             }
         },
-        Command::Init { path } => init(&path),
+        Command::Init { path, from } => init(&path, from.as_deref()),
         Command::RunJob {
             job,
             overwrite,
@@ -449,12 +453,22 @@ fn summary_table(outcomes: &[Outcome]) -> String {
     out
 }
 
-fn init(path: &Path) -> u8 {
+fn init(path: &Path, from: Option<&Path>) -> u8 {
+    let text = match from {
+        None => STARTER_JOB.to_string(),
+        Some(data) => match sheetfit::starter::starter_job(data, &relative_to_job(data, path)) {
+            Ok(text) => text,
+            Err(e) => {
+                eprintln!("sheetfit: error: {e}");
+                return 1;
+            }
+        },
+    };
     let file = std::fs::OpenOptions::new()
         .write(true)
         .create_new(true)
         .open(path);
-    match file.and_then(|mut f| std::io::Write::write_all(&mut f, STARTER_JOB.as_bytes())) {
+    match file.and_then(|mut f| std::io::Write::write_all(&mut f, text.as_bytes())) {
         Ok(()) => {
             eprintln!(
                 "sheetfit: wrote starter job {}; edit it, then run `sheetfit check {}`",
@@ -475,4 +489,20 @@ fn init(path: &Path) -> u8 {
             1
         }
     }
+}
+
+/// The path of `data` as the job file at `job` names it: relative to the
+/// job's folder when the data lies under it, else absolute.
+fn relative_to_job(data: &Path, job: &Path) -> String {
+    let absolute = |p: &Path| std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
+    let data = absolute(data);
+    let folder = absolute(job)
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_default();
+    data.strip_prefix(&folder)
+        .map(|p| p.to_path_buf())
+        .unwrap_or(data)
+        .to_string_lossy()
+        .replace('\\', "/")
 }

@@ -433,3 +433,89 @@ fn a_european_csv_without_its_keys_says_which_to_set() {
         stderr(&out)
     );
 }
+
+// ---- sheetfit init --from ----------------------------------------------
+
+/// Runs `init --from data.xlsx job.toml` and then `check job.toml`,
+/// returning the job written.
+fn init_and_check(s: &Scratch) -> String {
+    let out = sheetfit(&s.path(""), &["init", "--from", "data.xlsx", "job.toml"]);
+    assert_status(&out, 0);
+    let job = std::fs::read_to_string(s.path("job.toml")).unwrap();
+    let out = sheetfit(&s.path(""), &["check", "job.toml"]);
+    assert_status(&out, 0);
+    job
+}
+
+#[test]
+fn init_from_a_table_with_a_totals_row_writes_a_job_check_accepts() {
+    let s = Scratch::new();
+    table_with_totals_row(&s);
+    let job = init_and_check(&s);
+    assert!(
+        job.contains("table = \"Prestige\"") && job.contains("(totals row 49 not read)"),
+        "{job}"
+    );
+    assert!(job.contains("response = \"prestige\""), "{job}");
+    assert!(
+        job.contains("numeric = [\"income\", \"education\"]"),
+        "{job}"
+    );
+    assert!(job.contains("categorical = [\"type\"]"), "{job}");
+    assert!(
+        job.contains("left out, identifiers rather than categories: occupation (45 levels)"),
+        "{job}"
+    );
+    // Choosing another response is the one edit: its name and the swap.
+    s.write(
+        "job.toml",
+        &job.replace("response = \"prestige\"", "response = \"income\"")
+            .replace(
+                "numeric = [\"income\", \"education\"]",
+                "numeric = [\"prestige\", \"education\"]",
+            ),
+    );
+    assert_status(&sheetfit(&s.path(""), &["check", "job.toml"]), 0);
+}
+
+#[test]
+fn init_from_a_sheet_finds_the_header_below_the_title_and_the_total_row() {
+    let s = Scratch::new();
+    title_block_and_total_row(&s);
+    let job = init_and_check(&s);
+    assert!(
+        job.contains(
+            "header_row = 4    # the column names; rows 1-3 above look like a title block"
+        ),
+        "{job}"
+    );
+    assert!(
+        job.contains("summary_rows = \"leave_out\"   # rows 50 look like summary rows"),
+        "{job}"
+    );
+    // Run as written, the fit is the data's alone: R's for that model.
+    let job = job.replace(
+        "categorical = [\"type\"]",
+        "categorical = { type = \"bc\" }",
+    );
+    s.write("job.toml", &job);
+    let out = sheetfit(&s.path(""), &["run", "job.toml"]);
+    assert_status(&out, 0);
+    assert_matches_r(&read_json(&s.path("job-report.json")), "additive");
+}
+
+#[test]
+fn init_from_the_demo_workbook_writes_a_job_check_accepts() {
+    let s = Scratch::new();
+    std::fs::copy(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/garden-centres.xlsx"),
+        s.path("data.xlsx"),
+    )
+    .unwrap();
+    let job = init_and_check(&s);
+    assert!(
+        job.contains("#   A 'month': dates, one month apart"),
+        "{job}"
+    );
+    assert!(job.contains("# trend = \"month\""), "{job}");
+}

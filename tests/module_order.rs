@@ -8,9 +8,9 @@ use std::path::{Path, PathBuf};
 
 /// The library's top-level modules, foundations first, then the pipeline's
 /// stages in the order data flows through them.
-const ORDER: [&str; 13] = [
+const ORDER: [&str; 14] = [
     "text", "suggest", "ddouble", "period", "job", "source", "design", "fit", "checks", "compare",
-    "forecast", "results", "report",
+    "forecast", "results", "report", "starter",
 ];
 
 /// The line of DEVELOPERS.md that states [`ORDER`].

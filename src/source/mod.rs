@@ -335,6 +335,36 @@ impl Input {
         })
     }
 
+    /// The sheet names (none for CSV), the sheet looked at (`sheet`, or the
+    /// first; the file name for CSV) and its first `count` rows, each
+    /// row's cells by column from A, for a first look at a file's layout.
+    ///
+    /// # Errors
+    /// [`SourceError`] when the file or sheet cannot be read.
+    pub fn first_rows(
+        &self,
+        sheet: Option<&str>,
+        count: u32,
+    ) -> Result<(Vec<String>, String, Vec<Vec<Value>>), SourceError> {
+        if self.extension() == "csv" {
+            let table = read_csv(
+                self.path(),
+                self.rewound()?,
+                Bounds::from_row(1),
+                &CsvFormat::default(),
+            );
+            // A CSV file's first line names its columns; its rows are the
+            // table's.
+            let table = table?;
+            let mut rows = vec![table.columns.iter().map(|c| Value::text(&c.name)).collect()];
+            for i in 0..table.rows.len().min(count as usize) {
+                rows.push(table.columns.iter().map(|c| c.values.get(i)).collect());
+            }
+            return Ok((Vec::new(), table.sheet.clone(), rows));
+        }
+        workbook::first_rows(self.path(), self.rewound()?, sheet, count)
+    }
+
     fn extension(&self) -> String {
         self.path()
             .extension()

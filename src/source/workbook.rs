@@ -168,6 +168,60 @@ pub(super) fn read_workbook(
     builder.finish()
 }
 
+/// The sheet names of the workbook open in `file`, and the first `count`
+/// rows of `sheet` (the first sheet when `None`), each row's cells by
+/// column from A up to its last value (at most [`PEEK_COLUMNS`]).
+pub(super) fn first_rows(
+    path: &Path,
+    file: &File,
+    sheet: Option<&str>,
+    count: u32,
+) -> Result<(Vec<String>, String, Vec<Vec<Value>>), SourceError> {
+    let mut workbook = open_workbook(path, file).map_err(|e| open_error(path, e))?;
+    let names = workbook.sheet_names();
+    let name = pick_sheet(path, &names, sheet)?;
+    let sheet_error = |e: &dyn fmt::Display| SourceError::Sheet {
+        path: path.to_path_buf(),
+        sheet: name.clone(),
+        reason: e.to_string(),
+    };
+    let mut rows: Vec<Vec<Value>> = vec![Vec::new(); count as usize];
+    let mut put = |row: u32, col: u32, value: Value| {
+        if row < count && col < PEEK_COLUMNS && value != Value::Blank {
+            let cells = &mut rows[row as usize];
+            if cells.len() <= col as usize {
+                cells.resize(col as usize + 1, Value::Blank);
+            }
+            cells[col as usize] = value;
+        }
+    };
+    match &mut workbook {
+        Sheets::Xlsx(xlsx) => {
+            let mut cells = xlsx
+                .worksheet_cells_reader(&name)
+                .map_err(|e| sheet_error(&e))?;
+            while let Some(cell) = cells.next_cell().map_err(|e| sheet_error(&e))? {
+                let (row, col) = cell.get_position();
+                if row >= count {
+                    break;
+                }
+                put(row, col, value_from_ref(cell.get_value()));
+            }
+        }
+        other => {
+            let range = other.worksheet_range(&name).map_err(|e| sheet_error(&e))?;
+            let (row0, col0) = range.start().unwrap_or((0, 0));
+            for (r, c, cell) in range.used_cells() {
+                put(row0 + r as u32, col0 + c as u32, value_from_cell(cell));
+            }
+        }
+    }
+    Ok((names, name, rows))
+}
+
+/// The most columns [`first_rows`] looks at.
+const PEEK_COLUMNS: u32 = 256;
+
 /// The worksheet tables of the workbook open in `file`, each with its
 /// sheet; none for files other than .xlsx and .xlsm.
 pub(super) fn worksheet_tables(
