@@ -12,7 +12,7 @@ use std::path::Path;
 use crate::job::{Area, CsvFormat, Limits, Reading, SummaryRows};
 use crate::period::{detect_frequency, parse_stamp};
 use crate::source::screen::screen;
-use crate::source::{column_letters, read_number, Input, SourceError, Table, Value};
+use crate::source::{column_letters, read_number, FirstRows, Input, SourceError, Table, Value};
 
 /// Rows looked at to find the header row.
 const LOOK_AT_ROWS: u32 = 30;
@@ -79,7 +79,11 @@ pub fn starter_job(data: &Path, data_in_job: &str) -> Result<String, SourceError
             (input.read_area(None, &area, &limits)?, area)
         }
         None => {
-            let (sheets, sheet, rows) = input.first_rows(None, LOOK_AT_ROWS)?;
+            let FirstRows {
+                sheets,
+                sheet,
+                rows,
+            } = input.first_rows(None, LOOK_AT_ROWS)?;
             let header_row = header_row(&rows);
             if !sheets.is_empty() {
                 let _ = writeln!(text, "sheet = \"{}\"", escape(&sheet));

@@ -190,6 +190,17 @@ pub fn read_table_with(
     Input::open(path)?.read_table(sheet, header_row, limits)
 }
 
+/// The first rows of a sheet, for a first look at a file's layout.
+#[derive(Debug, Clone)]
+pub struct FirstRows {
+    /// The workbook's sheet names (none for CSV).
+    pub sheets: Vec<String>,
+    /// The sheet looked at (the file name for CSV).
+    pub sheet: String,
+    /// Its first rows, each row's cells by column from A.
+    pub rows: Vec<Vec<Value>>,
+}
+
 impl Input {
     /// Reads `sheet` (the first sheet when `None`) of the open workbook or
     /// CSV file, with column names in `header_row` (counted from 1), as
@@ -341,11 +352,7 @@ impl Input {
     ///
     /// # Errors
     /// [`SourceError`] when the file or sheet cannot be read.
-    pub fn first_rows(
-        &self,
-        sheet: Option<&str>,
-        count: u32,
-    ) -> Result<(Vec<String>, String, Vec<Vec<Value>>), SourceError> {
+    pub fn first_rows(&self, sheet: Option<&str>, count: u32) -> Result<FirstRows, SourceError> {
         if self.extension() == "csv" {
             let table = read_csv(
                 self.path(),
@@ -360,7 +367,11 @@ impl Input {
             for i in 0..table.rows.len().min(count as usize) {
                 rows.push(table.columns.iter().map(|c| c.values.get(i)).collect());
             }
-            return Ok((Vec::new(), table.sheet.clone(), rows));
+            return Ok(FirstRows {
+                sheets: Vec::new(),
+                sheet: table.sheet.clone(),
+                rows,
+            });
         }
         workbook::first_rows(self.path(), self.rewound()?, sheet, count)
     }

@@ -11,7 +11,7 @@ use calamine::{Data, DataRef, Ods, Reader, Sheets, Xls, Xlsb, Xlsx};
 
 use super::table::{Bounds, Builder, Table};
 use super::tables::{table_parts, WorksheetTable};
-use super::{SourceError, Value};
+use super::{FirstRows, SourceError, Value};
 use crate::job::Area;
 use crate::suggest::closest;
 
@@ -176,7 +176,7 @@ pub(super) fn first_rows(
     file: &File,
     sheet: Option<&str>,
     count: u32,
-) -> Result<(Vec<String>, String, Vec<Vec<Value>>), SourceError> {
+) -> Result<FirstRows, SourceError> {
     let mut workbook = open_workbook(path, file).map_err(|e| open_error(path, e))?;
     let names = workbook.sheet_names();
     let name = pick_sheet(path, &names, sheet)?;
@@ -216,7 +216,11 @@ pub(super) fn first_rows(
             }
         }
     }
-    Ok((names, name, rows))
+    Ok(FirstRows {
+        sheets: names,
+        sheet: name,
+        rows,
+    })
 }
 
 /// The most columns [`first_rows`] looks at.
