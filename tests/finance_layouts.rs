@@ -519,3 +519,42 @@ fn init_from_the_demo_workbook_writes_a_job_check_accepts() {
     );
     assert!(job.contains("# trend = \"month\""), "{job}");
 }
+
+#[test]
+fn a_table_asked_of_an_ods_file_suggests_a_range() {
+    let Some(soffice) = common::program("soffice", "libreoffice-calc") else {
+        return;
+    };
+    let s = Scratch::new();
+    table_with_totals_row(&s);
+    let out = std::process::Command::new(soffice)
+        .args(["--headless", "--convert-to", "ods", "data.xlsx"])
+        .current_dir(s.path(""))
+        .env("HOME", s.path(""))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    s.write(
+        "job.toml",
+        &format!("[input]\nworkbook = \"data.ods\"\ntable = \"Prestige\"\n{ADDITIVE}"),
+    );
+    let out = sheetfit(&s.path(""), &["check", "job.toml"]);
+    assert_status(&out, 1);
+    assert!(
+        stderr(&out).contains("data.ods has no worksheet tables (only .xlsx and .xlsm files have them); give the data's cells with `range = \"B5:H200\"` under [input] instead of `table`"),
+        "{}",
+        stderr(&out)
+    );
+    // The range of the same cells reads the data, the totals row left out.
+    s.write(
+        "job.toml",
+        &format!("suggest = false\n[input]\nworkbook = \"data.ods\"\nsheet = \"Data\"\nrange = \"B3:F48\"\n{ADDITIVE}"),
+    );
+    let out = sheetfit(&s.path(""), &["run", "job.toml"]);
+    assert_status(&out, 0);
+    assert_matches_r(&read_json(&s.path("job-report.json")), "additive");
+}
