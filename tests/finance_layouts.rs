@@ -522,22 +522,11 @@ fn init_from_the_demo_workbook_writes_a_job_check_accepts() {
 
 #[test]
 fn a_table_asked_of_an_ods_file_suggests_a_range() {
-    let Some(soffice) = common::program("soffice", "libreoffice-calc") else {
-        return;
-    };
     let s = Scratch::new();
     table_with_totals_row(&s);
-    let out = std::process::Command::new(soffice)
-        .args(["--headless", "--convert-to", "ods", "data.xlsx"])
-        .current_dir(s.path(""))
-        .env("HOME", s.path(""))
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    if !common::libreoffice(&s.path(""), &["--convert-to", "ods", "data.xlsx"]) {
+        return;
+    }
     s.write(
         "job.toml",
         &format!("[input]\nworkbook = \"data.ods\"\ntable = \"Prestige\"\n{ADDITIVE}"),

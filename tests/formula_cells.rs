@@ -7,9 +7,8 @@
 mod common;
 
 use std::io::{Read, Write};
-use std::process::Command;
 
-use common::{assert_status, program, read_json, sheetfit, stderr, Scratch};
+use common::{assert_status, read_json, sheetfit, stderr, Scratch};
 use rust_xlsxwriter::{Formula, Workbook};
 
 const ROWS: u32 = 12;
@@ -103,31 +102,20 @@ fn formulas_stored_without_values_are_not_read_as_blanks() {
 
 #[test]
 fn the_headless_calculation_the_message_gives_makes_the_values() {
-    let Some(soffice) = program("soffice", "libreoffice-calc") else {
-        return;
-    };
     let s = Scratch::new();
     workbook(&s, "written.xlsx", true);
     without_values(&s, "written.xlsx", "data.xlsx");
     workbook(&s, "values.xlsx", false);
-    let out = Command::new(soffice)
-        .args([
-            "--headless",
-            "--convert-to",
-            "xlsx",
-            "--outdir",
-            "calculated",
-            "data.xlsx",
-        ])
-        .current_dir(s.path(""))
-        .env("HOME", s.path(""))
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    let calculate = [
+        "--convert-to",
+        "xlsx",
+        "--outdir",
+        "calculated",
+        "data.xlsx",
+    ];
+    if !common::libreoffice(&s.path(""), &calculate) {
+        return;
+    }
     let coefficients = |input: &str| {
         job(&s, input, "\"x\", \"x_squared\"");
         let out = sheetfit(&s.path(""), &["run", "--overwrite", "job.toml"]);

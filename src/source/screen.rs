@@ -547,6 +547,13 @@ mod tests {
         }
     }
 
+    /// Screens `t` with every column used and a column of numbers.
+    fn screen_all(t: &mut Table, summary_rows: SummaryRows) -> Result<Screened, SourceError> {
+        let names: Vec<String> = t.columns.iter().map(|c| c.name.clone()).collect();
+        let names: Vec<&str> = names.iter().map(String::as_str).collect();
+        screen(t, &names, &names, &reading(summary_rows))
+    }
+
     fn numbers(values: &[f64]) -> Vec<Value> {
         values.iter().map(|&x| Value::Number(x)).collect()
     }
@@ -619,13 +626,7 @@ mod tests {
             ("promo", numbers(&[0.0; 8])),
             ("y", numbers(&[3.0, 1.0, 4.0, 1.0, 5.0, 9.0, 2.0, 6.0])),
         ]);
-        let screened = screen(
-            &mut t,
-            &["promo", "y"],
-            &["promo", "y"],
-            &reading(SummaryRows::Stop),
-        )
-        .unwrap();
+        let screened = screen_all(&mut t, SummaryRows::Stop).unwrap();
         assert!(screened.summary_rows_left_out.is_empty());
     }
 
@@ -639,25 +640,13 @@ mod tests {
             ("y", numbers(&[&y[..], &[mean]].concat())),
             ("x", numbers(&[&x[..], &[xm]].concat())),
         ]);
-        let err = screen(
-            &mut t,
-            &["y", "x"],
-            &["y", "x"],
-            &reading(SummaryRows::Stop),
-        )
-        .unwrap_err();
+        let err = screen_all(&mut t, SummaryRows::Stop).unwrap_err();
         assert!(
             err.to_string()
                 .contains("row 7: A7, B7 hold the means of the rows above"),
             "{err}"
         );
-        let screened = screen(
-            &mut t,
-            &["y", "x"],
-            &["y", "x"],
-            &reading(SummaryRows::Keep),
-        )
-        .unwrap();
+        let screened = screen_all(&mut t, SummaryRows::Keep).unwrap();
         assert!(screened.summary_rows_left_out.is_empty());
         assert_eq!(t.rows.len(), 6);
     }

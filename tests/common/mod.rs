@@ -262,3 +262,26 @@ pub fn program(name: &str, package: &str) -> Option<PathBuf> {
     }
     found
 }
+
+/// Runs LibreOffice headless (`soffice --headless ARGS`) in `cwd`, with
+/// `cwd` as its home; `false` (with the reason printed) when it is not
+/// installed and the environment does not require it. A failed run fails
+/// the test.
+pub fn libreoffice(cwd: &Path, args: &[&str]) -> bool {
+    let Some(soffice) = program("soffice", "libreoffice-calc") else {
+        return false;
+    };
+    let out = Command::new(soffice)
+        .arg("--headless")
+        .args(args)
+        .current_dir(cwd)
+        .env("HOME", cwd)
+        .output()
+        .expect("start soffice");
+    assert!(
+        out.status.success(),
+        "soffice {args:?}: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    true
+}
