@@ -136,12 +136,23 @@ pub fn screen(
         .path
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
-    if is_csv
+    let fix = if is_csv
         && !decimal_comma
         && texts
             .iter()
             .all(|t| t.unreadable == t.count && t.other_mark_reads == t.count)
     {
+        Some("they read as numbers with a decimal comma: write `decimal = \",\"` under [input]")
+    } else if !reading.text_numbers && texts.iter().all(|t| t.unreadable == 0) {
+        Some("write `text_numbers = \"read\"` under [input] to read them as numbers")
+    } else if !reading.text_numbers {
+        Some("correct the cells that are not numbers (or clear them to leave their rows out); `text_numbers = \"read\"` under [input] reads the rest")
+    } else if texts.iter().any(|t| t.unreadable > 0) {
+        Some("correct those cells, or clear them to leave their rows out")
+    } else {
+        None
+    };
+    if let Some(fix) = fix {
         return Err(SourceError::TextNumbers {
             place: table.place(),
             columns: texts
@@ -149,25 +160,7 @@ pub fn screen(
                 .map(|t| t.describe())
                 .collect::<Vec<_>>()
                 .join("; "),
-            fix: "they read as numbers with a decimal comma: write `decimal = \",\"` under [input]"
-                .into(),
-        });
-    }
-    if !reading.text_numbers || texts.iter().any(|t| t.unreadable > 0) {
-        return Err(SourceError::TextNumbers {
-            place: table.place(),
-            columns: texts
-                .iter()
-                .map(|t| t.describe())
-                .collect::<Vec<_>>()
-                .join("; "),
-            fix: if reading.text_numbers {
-                "correct those cells, or clear them to leave their rows out".into()
-            } else if texts.iter().all(|t| t.unreadable == 0) {
-                "write `text_numbers = \"read\"` under [input] to read them as numbers".into()
-            } else {
-                "correct the cells that are not numbers (or clear them to leave their rows out); `text_numbers = \"read\"` under [input] reads the rest".into()
-            },
+            fix: fix.to_string(),
         });
     }
     for t in &texts {
