@@ -227,24 +227,14 @@ fn fiscal_periods_read_label_forecast_and_count_seasons_in_the_fiscal_year() {
     let json = assert_matches(&s, job, "elnino_fiscal_april");
     let model = &json["models"][0];
     assert_eq!(model["timing"]["first"], "FY1950 P10");
-    let terms: Vec<&str> = model["coefficients"]
-        .as_array()
-        .unwrap()
+    assert_eq!(model["coefficients"][2]["term"], "season[P02]");
+    assert_eq!(model["coefficients"][12]["term"], "season[P12]");
+    for (k, period) in ["FY2011 P10", "FY2011 P11", "FY2011 P12", "FY2012 P01"]
         .iter()
-        .map(|c| c["term"].as_str().unwrap())
-        .collect();
-    assert_eq!(terms[2], "season[P02]");
-    assert_eq!(terms[12], "season[P12]");
-    let periods: Vec<&str> = model["forecast"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|f| f["period"].as_str().unwrap())
-        .collect();
-    assert_eq!(
-        periods,
-        ["FY2011 P10", "FY2011 P11", "FY2011 P12", "FY2012 P01"]
-    );
+        .enumerate()
+    {
+        assert_eq!(model["forecast"][k]["period"], *period);
+    }
     // Without the fiscal year the labels are refused, saying which key.
     s.write(
         "job.toml",
