@@ -13,267 +13,27 @@
 // so their size does not matter.
 #![allow(clippy::result_large_err)]
 
+mod categorical;
+mod error;
+mod future;
 mod matrix;
+mod polynomial;
 mod time;
-
-use std::collections::HashMap;
-use std::sync::Arc;
 
 use nalgebra::DVector;
 
-use crate::ddouble::DoubleDouble;
-use crate::job::{Baseline, CategoricalSpec, ModelSpec};
-use crate::period::{Period, SeasonBy};
-use crate::source::{CellRef, Column, Table, Value};
+use crate::job::{Baseline, ModelSpec};
+use crate::period::SeasonBy;
+use crate::source::{Column, Table, Value};
 use crate::suggest::closest;
 
+pub use error::DesignError;
+pub use future::{EncodeError, FutureRow};
+
+use self::categorical::indicators;
+use self::polynomial::powers;
 pub use matrix::{DesignColumn, DesignMatrix, IndicatorGroup};
 pub use time::Timing;
-
-/// An error that stops one model: its columns do not fit its roles.
-#[derive(Debug, thiserror::Error)]
-pub enum DesignError {
-    /// A column named in the job is not in the table.
-    #[error("model '{model}': {place} has no column '{column}'{suggestion}; its columns are: {available}")]
-    NoSuchColumn {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The missing column.
-        column: String,
-        /// ", did you mean 'x'?" or nothing.
-        suggestion: String,
-        /// The table's column names.
-        available: String,
-    },
-    /// A cell in a numeric column holds something that is not a number.
-    #[error("model '{model}': {place}, cell {cell} in numeric column '{column}' holds {kind} '{value}', not a number{hint}; correct the cell, clear it to leave the row out, or list the column under `categorical`")]
-    NotANumber {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The kind of value found.
-        kind: &'static str,
-        /// The value as text.
-        value: String,
-        /// A hint when the text looks like a number stored as text.
-        hint: &'static str,
-    },
-    /// A cell holds an error value such as `#N/A`.
-    #[error("model '{model}': {place}, cell {cell} in column '{column}' holds the error value {value}; fix the formula or clear the cell to leave the row out")]
-    ErrorCell {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The error text.
-        value: String,
-    },
-    /// A number that is not finite.
-    #[error("model '{model}': {place}, cell {cell} in column '{column}' holds {value}, which is not a finite number; correct the cell, or clear it to leave the row out")]
-    NotFinite {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The value.
-        value: f64,
-    },
-    /// The baseline named in the job is not a level of the column.
-    #[error("model '{model}': baseline '{baseline}' is not a level of column '{column}' in the rows used; its levels are: {levels}")]
-    NoSuchBaseline {
-        /// The model.
-        model: String,
-        /// The column.
-        column: String,
-        /// The baseline asked for.
-        baseline: String,
-        /// The levels found, quoted.
-        levels: String,
-    },
-    /// A cell of the date column is not a date or period.
-    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds {kind} '{value}', not a date; use a date cell, an ISO date such as 2024-07-01, a period such as 2024-07, Jan-2024, 2024M01, 2024-Q3 or Q3 2024, or a year such as 1935")]
-    NotADate {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The kind of value found.
-        kind: &'static str,
-        /// The value as text.
-        value: String,
-    },
-    /// A fiscal label the job cannot read.
-    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds '{value}', which {why}")]
-    FiscalLabel {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The text.
-        value: String,
-        /// Why and what to do.
-        why: &'static str,
-    },
-    /// Two-digit years that cannot be one series.
-    #[error("model '{model}': {place}, date column '{column}' writes years with two digits, read as 1970 to 2069: {low} is {low_year} and {high} is {high_year}, too far apart to be one series; write the years with four digits")]
-    TwoDigitYears {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The earliest label and its cell.
-        low: String,
-        /// Its year.
-        low_year: i64,
-        /// The latest label and its cell.
-        high: String,
-        /// Its year.
-        high_year: i64,
-    },
-    /// A date written with slashes reads both ways round.
-    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds '{value}', which reads as {day_first} (day first) or as {month_first} (month first), and no date of the column tells which; write `date_order = \"dmy\"` or `date_order = \"mdy\"` under [input]")]
-    AmbiguousDate {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The text.
-        value: String,
-        /// The reading with the day first, in words.
-        day_first: String,
-        /// The reading with the month first, in words.
-        month_first: String,
-    },
-    /// The dates fit no frequency.
-    #[error("model '{model}': cannot tell the period of date column '{column}': the smallest gap between dates is {gap} days; set `frequency` (day, week, month, quarter or year) in the model")]
-    UnknownFrequency {
-        /// The model.
-        model: String,
-        /// The column.
-        column: String,
-        /// Smallest gap in days.
-        gap: i64,
-    },
-    /// A period label of another frequency than the series.
-    #[error("model '{model}': {place}, cell {cell} in date column '{column}' holds '{value}', which is not a {frequency}; the series is by {frequency}, so write every period in the same way")]
-    MixedFrequency {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The value as text.
-        value: String,
-        /// The series' frequency.
-        frequency: &'static str,
-    },
-    /// A single series with two rows in one period.
-    #[error("model '{model}': {place}: cells {first} and {second} are both in period {period}; a single series has one row per period (remove the duplicate, or set `frequency` if the dates are finer than it)")]
-    DuplicatePeriod {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The period label.
-        period: String,
-        /// The first cell.
-        first: CellRef,
-        /// The second cell.
-        second: CellRef,
-    },
-    /// A season finer than the data.
-    #[error("model '{model}': seasons by {by} need dates finer than a {frequency}; use a coarser season or daily dates")]
-    SeasonTooFine {
-        /// The model.
-        model: String,
-        /// The season.
-        by: &'static str,
-        /// The series' frequency.
-        frequency: &'static str,
-    },
-    /// A response that cannot be logged.
-    #[error("model '{model}': {place}, cell {cell} in response '{column}' holds {value}; `transform = \"log\"` needs every response value above zero")]
-    NotPositive {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The column.
-        column: String,
-        /// The cell.
-        cell: CellRef,
-        /// The value.
-        value: f64,
-    },
-    /// Every row has a blank in at least one used column.
-    #[error("model '{model}': no usable rows in {place}: every row has a blank cell in at least one of the columns {columns}")]
-    NoUsableRows {
-        /// The model.
-        model: String,
-        /// Sheet and file.
-        place: String,
-        /// The columns the model uses, quoted.
-        columns: String,
-    },
-    /// A categorical column has more levels than a regression can use.
-    #[error("model '{model}': categorical column '{column}' in {place} has {levels} levels in the {rows} rows used, {why}; a predictor with that many levels is an identifier rather than a category (list it nowhere, or group its levels into fewer), or raise `max_levels` under [input] if the levels are genuine")]
-    TooManyLevels {
-        /// The model.
-        model: String,
-        /// Where the column is, in words.
-        place: String,
-        /// The column.
-        column: String,
-        /// Its level count.
-        levels: usize,
-        /// Rows used.
-        rows: usize,
-        /// Which limit, in words.
-        why: String,
-    },
-    /// A categorical column has a single level in the rows used.
-    #[error("model '{model}': categorical column '{column}' has only one level ('{level}') in the rows used; a categorical predictor needs two or more levels")]
-    OneLevel {
-        /// The model.
-        model: String,
-        /// The column.
-        column: String,
-        /// Its only level.
-        level: String,
-    },
-}
 
 /// What a design-matrix column stands for.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -559,50 +319,6 @@ fn number(column: &Column, i: usize) -> f64 {
     }
 }
 
-/// A row to predict: its period (for trend and season) and its predictor
-/// values by column.
-#[derive(Debug, Clone, Default)]
-pub struct FutureRow {
-    /// The period, when the model has a date column.
-    pub period: Option<Period>,
-    /// Predictor values by column name.
-    pub values: HashMap<String, Value>,
-}
-
-/// Why a future row cannot be put in the design's terms.
-#[derive(Debug, Clone, PartialEq, thiserror::Error)]
-pub enum EncodeError {
-    /// A predictor has no value.
-    #[error("has no value for '{column}'")]
-    Missing {
-        /// The predictor.
-        column: String,
-    },
-    /// A numeric predictor's value is not a number.
-    #[error("gives '{column}' the {kind} '{value}', not a number")]
-    NotANumber {
-        /// The predictor.
-        column: String,
-        /// The kind of value.
-        kind: &'static str,
-        /// The value as text.
-        value: String,
-    },
-    /// A categorical predictor's level is not in the data.
-    #[error("gives '{column}' the level '{level}', which is not in the rows the model was fitted on; its levels are: {levels}")]
-    UnseenLevel {
-        /// The predictor.
-        column: String,
-        /// The level given.
-        level: String,
-        /// The known levels, quoted.
-        levels: String,
-    },
-    /// The model needs a period and the row has none.
-    #[error("has no period for the trend or season")]
-    NoPeriod,
-}
-
 impl Design {
     /// Row `i` of the design matrix, low parts included.
     pub fn row(&self, i: usize) -> Vec<f64> {
@@ -679,94 +395,6 @@ impl Design {
             ..self.clone()
         }
     }
-
-    /// The design-matrix row of `row`, in the columns of `x`: the same
-    /// coding as the data (powers, indicators against the baselines, the
-    /// trend index counted from the first period, season indicators).
-    ///
-    /// # Errors
-    /// [`EncodeError`] for a missing or unsuitable value, or an unseen level.
-    pub fn encode(&self, row: &FutureRow) -> Result<Vec<f64>, EncodeError> {
-        let mut out = Vec::with_capacity(self.x.ncols());
-        let number = |column: &str| -> Result<f64, EncodeError> {
-            match row.values.get(column) {
-                None | Some(Value::Blank) => Err(EncodeError::Missing {
-                    column: column.to_string(),
-                }),
-                Some(Value::Number(x)) if x.is_finite() => Ok(*x),
-                Some(other) => Err(EncodeError::NotANumber {
-                    column: column.to_string(),
-                    kind: other.kind(),
-                    value: other.to_string(),
-                }),
-            }
-        };
-        let period = || row.period.ok_or(EncodeError::NoPeriod);
-        for term in &self.terms {
-            match &term.kind {
-                TermKind::Intercept => out.push(1.0),
-                TermKind::Numeric => out.push(number(&term.column)?),
-                TermKind::Polynomial { degree } => {
-                    let x = number(&term.column)?;
-                    out.extend(
-                        powers(&term.column, &[x], *degree)
-                            .iter()
-                            .map(|c| c.column.get(0) + c.column.low(0)),
-                    );
-                }
-                TermKind::Trend => {
-                    let p = period()?;
-                    let index = self.timing.as_ref().map_or(0, |t| t.index(p));
-                    out.push(index as f64);
-                }
-                TermKind::Season { by, baseline, .. } => {
-                    let season = period()?.season(*by).ok_or(EncodeError::NoPeriod)?;
-                    out.extend(
-                        (1..=by.labels().len() as u32)
-                            .filter(|s| s != baseline)
-                            .map(|s| f64::from(u8::from(s == season))),
-                    );
-                }
-                TermKind::Interaction { left, right } => {
-                    let (l, r) = (
-                        self.terms[*left].columns.clone(),
-                        self.terms[*right].columns.clone(),
-                    );
-                    for i in l {
-                        for j in r.clone() {
-                            out.push(out[i] * out[j]);
-                        }
-                    }
-                }
-                TermKind::Categorical {
-                    baseline, levels, ..
-                } => {
-                    let level = match row.values.get(&term.column) {
-                        None | Some(Value::Blank) => {
-                            return Err(EncodeError::Missing {
-                                column: term.column.clone(),
-                            })
-                        }
-                        Some(v) => v.to_string(),
-                    };
-                    if !levels.contains(&level) {
-                        return Err(EncodeError::UnseenLevel {
-                            column: term.column.clone(),
-                            level,
-                            levels: quoted(levels),
-                        });
-                    }
-                    out.extend(
-                        levels
-                            .iter()
-                            .filter(|l| *l != baseline)
-                            .map(|l| f64::from(u8::from(*l == level))),
-                    );
-                }
-            }
-        }
-        Ok(out)
-    }
 }
 
 /// One design-matrix column and its coefficient's name, while the design
@@ -803,129 +431,6 @@ impl Assembly {
             columns: start..self.columns.len(),
         });
     }
-}
-
-/// The columns x, x^2, …, x^degree, each power formed from the one before
-/// in double-double arithmetic and kept as a rounded value plus its
-/// remainder (an ill-conditioned polynomial fit such as NIST StRD Filip
-/// needs those digits).
-fn powers(column: &str, x: &[f64], degree: u32) -> Vec<NamedColumn> {
-    let mut current: Vec<DoubleDouble> = x.iter().map(|&v| DoubleDouble::from_f64(v)).collect();
-    let mut out = vec![NamedColumn::new(column, DesignColumn::values(x.to_vec()))];
-    for k in 2..=degree {
-        for (c, &v) in current.iter_mut().zip(x) {
-            *c = *c * v;
-        }
-        out.push(NamedColumn::new(
-            &format!("{column}^{k}"),
-            DesignColumn::Values {
-                hi: current.iter().map(|d| d.hi()).collect(),
-                lo: Some(current.iter().map(|d| d.lo()).collect()),
-            },
-        ));
-    }
-    out
-}
-
-/// A categorical with more levels than this and more than half as many
-/// levels as rows is refused: nearly a level per row is an identifier, and
-/// its indicators would fit the rows almost exactly. Small textbook
-/// layouts (a few groups of a few rows) stay under it.
-const HALF_ROWS_ABOVE: usize = 20;
-
-/// Treatment coding of one factor over the rows `keep`: levels sorted,
-/// one 0/1 column per level other than the baseline, all reading one code
-/// per row.
-fn indicators(
-    ctx: &Context<'_>,
-    spec: &CategoricalSpec,
-    column: &Column,
-    keep: &[usize],
-) -> Result<(TermKind, Vec<NamedColumn>), DesignError> {
-    // Codes in order of first appearance, each cell's label formed once
-    // per distinct cell.
-    let mut by_cell: HashMap<u64, u32> = HashMap::new();
-    let mut by_label: HashMap<String, u32> = HashMap::new();
-    let mut found: Vec<String> = Vec::new();
-    let first_codes: Vec<u32> = keep
-        .iter()
-        .map(|&i| {
-            *by_cell.entry(column.values.key(i)).or_insert_with(|| {
-                let label = column.values.get(i).to_string();
-                *by_label.entry(label.clone()).or_insert_with(|| {
-                    found.push(label);
-                    (found.len() - 1) as u32
-                })
-            })
-        })
-        .collect();
-    let limit = ctx.model.max_levels;
-    if found.len() > limit || (found.len() > HALF_ROWS_ABOVE && found.len() * 2 > keep.len()) {
-        return Err(DesignError::TooManyLevels {
-            model: ctx.model.name.clone(),
-            place: ctx.table.place(),
-            column: spec.column.clone(),
-            levels: found.len(),
-            rows: keep.len(),
-            why: if found.len() > limit {
-                format!("more than the limit of {limit}")
-            } else {
-                "more than half as many levels as rows".into()
-            },
-        });
-    }
-    let mut order: Vec<u32> = (0..found.len() as u32).collect();
-    order.sort_by(|&a, &b| found[a as usize].cmp(&found[b as usize]));
-    let mut sorted_code = vec![0u32; found.len()];
-    for (k, &code) in order.iter().enumerate() {
-        sorted_code[code as usize] = k as u32;
-    }
-    let levels: Vec<String> = order.iter().map(|&c| found[c as usize].clone()).collect();
-    let baseline = match &spec.baseline {
-        Baseline::Given(level) if levels.contains(level) => level.clone(),
-        Baseline::Given(level) => {
-            return Err(DesignError::NoSuchBaseline {
-                model: ctx.model.name.clone(),
-                column: spec.column.clone(),
-                baseline: level.clone(),
-                levels: quoted(&levels),
-            })
-        }
-        Baseline::FirstSorted => levels.first().cloned().unwrap_or_default(),
-    };
-    if levels.len() < 2 {
-        return Err(DesignError::OneLevel {
-            model: ctx.model.name.clone(),
-            column: spec.column.clone(),
-            level: baseline,
-        });
-    }
-    let codes: Arc<[u32]> = first_codes
-        .iter()
-        .map(|&c| sorted_code[c as usize])
-        .collect();
-    let cols = levels
-        .iter()
-        .zip(0..)
-        .filter(|(l, _)| **l != baseline)
-        .map(|(level, code)| {
-            NamedColumn::new(
-                &format!("{}[{}]", spec.column, level),
-                DesignColumn::Indicator {
-                    codes: Arc::clone(&codes),
-                    code,
-                },
-            )
-        })
-        .collect();
-    Ok((
-        TermKind::Categorical {
-            baseline,
-            chosen: spec.baseline.clone(),
-            levels,
-        },
-        cols,
-    ))
 }
 
 fn quoted(items: &[String]) -> String {
@@ -1032,6 +537,7 @@ fn looks_like_a_number(text: &str) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::job::CategoricalSpec;
     use std::path::PathBuf;
 
     fn table() -> Table {
