@@ -1,0 +1,415 @@
+//! One model of the job as checked: its roles, season, forecast and the
+//! rules a model's roles follow.
+
+use std::collections::HashSet;
+use std::fmt;
+
+use indexmap::IndexMap;
+
+use super::{ForecastFile, Robust, SeasonFile};
+use crate::period::{Frequency, LabelRules, SeasonBy};
+
+/// How a categorical predictor's baseline level was chosen.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Baseline {
+    /// Named in the job file.
+    Given(String),
+    /// Not named: the first level in sorted order is used.
+    FirstSorted,
+}
+
+/// A categorical predictor and its baseline.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CategoricalSpec {
+    /// Column name.
+    pub column: String,
+    /// How the baseline is chosen.
+    pub baseline: Baseline,
+}
+
+/// Seasonal indicators of a model.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SeasonSpec {
+    /// The date column.
+    pub column: String,
+    /// What seasons are counted by.
+    pub by: SeasonBy,
+    /// The baseline season, counted from 1.
+    pub baseline: u32,
+    /// Whether the job named the baseline.
+    pub baseline_given: bool,
+}
+
+/// A value held fixed in the forecast rows.
+#[derive(Debug, Clone, PartialEq)]
+pub enum HoldValue {
+    /// A number, for a numeric or polynomial predictor.
+    Number(f64),
+    /// A level, for a categorical predictor.
+    Level(String),
+}
+
+/// Where forecast rows come from.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ForecastSpec {
+    /// The next `horizon` periods, other predictors held at `hold`.
+    Horizon {
+        /// Number of periods.
+        horizon: u32,
+        /// Predictor values, by column.
+        hold: IndexMap<String, HoldValue>,
+    },
+    /// Rows of a sheet of the input workbook.
+    Plan {
+        /// The sheet name.
+        sheet: String,
+        /// Its row of column names, counted from 1.
+        header_row: u32,
+    },
+}
+
+/// The highest polynomial degree accepted: beyond it the powers of any
+/// real data are collinear to working precision.
+pub const MAX_DEGREE: u32 = 12;
+
+/// A polynomial predictor: a column and its powers 1..=degree.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PolySpec {
+    /// Column name.
+    pub column: String,
+    /// Highest power, 1 to [`MAX_DEGREE`].
+    pub degree: u32,
+}
+
+/// One checked model.
+#[derive(Debug, Clone)]
+pub struct ModelSpec {
+    /// Unique name.
+    pub name: String,
+    /// Response column.
+    pub response: String,
+    /// Numeric predictors in job order.
+    pub numeric: Vec<String>,
+    /// Polynomial predictors in job order.
+    pub poly: Vec<PolySpec>,
+    /// Categorical predictors in job order.
+    pub categorical: Vec<CategoricalSpec>,
+    /// Whether an intercept is fitted.
+    pub intercept: bool,
+    /// Confidence level for intervals.
+    pub confidence: f64,
+    /// Date column of the trend term.
+    pub trend: Option<String>,
+    /// Seasonal indicators.
+    pub season: Option<SeasonSpec>,
+    /// The period of the date column, when the job sets it.
+    pub frequency: Option<Frequency>,
+    /// Whether the response is fitted on the natural-log scale.
+    pub log_response: bool,
+    /// Back-test: number of final periods held out.
+    pub backtest: Option<u32>,
+    /// Back-test also from a rolling origin.
+    pub backtest_rolling: bool,
+    /// Forecast rows.
+    pub forecast: Option<ForecastSpec>,
+    /// Interactions between two predictors, in job order.
+    pub interactions: Vec<(String, String)>,
+    /// Heteroscedasticity-consistent standard errors, when asked for.
+    pub standard_errors: Option<Robust>,
+    /// Whether a suggested smaller model is searched for.
+    pub suggest: bool,
+    /// Most levels a categorical predictor (or a season) may have: the
+    /// job's `max_levels` under [input].
+    pub max_levels: usize,
+    /// How period labels read: `date_order` and `fiscal_year_start` under
+    /// [input].
+    pub labels: LabelRules,
+}
+
+impl ModelSpec {
+    /// A model named `m` of `response` on nothing yet, with every default
+    /// filled: the base the unit tests of later stages build on.
+    #[cfg(test)]
+    pub(crate) fn plain(response: &str) -> ModelSpec {
+        ModelSpec {
+            name: "m".into(),
+            response: response.into(),
+            numeric: vec![],
+            poly: vec![],
+            categorical: vec![],
+            intercept: true,
+            confidence: super::DEFAULT_CONFIDENCE,
+            trend: None,
+            season: None,
+            frequency: None,
+            log_response: false,
+            backtest: None,
+            backtest_rolling: false,
+            forecast: None,
+            interactions: vec![],
+            standard_errors: None,
+            suggest: true,
+            max_levels: super::DEFAULT_MAX_LEVELS,
+            labels: LabelRules::default(),
+        }
+    }
+
+    /// The date column that orders the rows and counts periods: the trend
+    /// column, else the season column.
+    pub fn date_column(&self) -> Option<&str> {
+        self.trend
+            .as_deref()
+            .or(self.season.as_ref().map(|s| s.column.as_str()))
+    }
+
+    /// Whether the model reads the column `name` (a predictor, the
+    /// response or the date column).
+    pub fn reads(&self, name: &str) -> bool {
+        self.columns().any(|c| c == name) || self.date_column() == Some(name)
+    }
+
+    /// The columns whose cells must be numbers: the response, then the
+    /// numeric and polynomial predictors.
+    pub fn numeric_columns(&self) -> impl Iterator<Item = &str> {
+        std::iter::once(self.response.as_str())
+            .chain(self.numeric.iter().map(String::as_str))
+            .chain(self.poly.iter().map(|p| p.column.as_str()))
+    }
+
+    /// Every column the model reads: the response first, then predictors in
+    /// job order.
+    pub fn columns(&self) -> impl Iterator<Item = &str> {
+        std::iter::once(self.response.as_str())
+            .chain(self.numeric.iter().map(String::as_str))
+            .chain(self.poly.iter().map(|p| p.column.as_str()))
+            .chain(self.categorical.iter().map(|c| c.column.as_str()))
+    }
+}
+
+impl fmt::Display for Baseline {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Baseline::Given(level) => write!(f, "'{level}' (given in the job)"),
+            Baseline::FirstSorted => f.write_str("the first level in sorted order"),
+        }
+    }
+}
+
+/// The season of a model, counted in the fiscal year starting in month
+/// `fiscal` when there is one (months and quarters become P01..P12 and
+/// FQ1..FQ4).
+pub(super) fn season_spec(s: SeasonFile, fiscal: u8) -> Result<SeasonSpec, (&'static str, String)> {
+    let by = SeasonBy::parse(&s.by)
+        .ok_or_else(|| {
+            (
+                "by",
+                format!("'{}' is not a season; use month, quarter or weekday", s.by),
+            )
+        })?
+        .in_fiscal_year(fiscal);
+    let labels = by.labels().join(", ");
+    let baseline = match &s.baseline {
+        None => 1,
+        Some(v) => {
+            let text = match v {
+                toml::Value::String(t) => t.clone(),
+                toml::Value::Integer(i) => i.to_string(),
+                other => other.to_string(),
+            };
+            by.season_of(&text).ok_or_else(|| {
+                (
+                    "baseline",
+                    format!(
+                        "'{text}' is not a {} season; use one of {labels} or its number",
+                        by.name()
+                    ),
+                )
+            })?
+        }
+    };
+    Ok(SeasonSpec {
+        column: s.column,
+        by,
+        baseline,
+        baseline_given: s.baseline.is_some(),
+    })
+}
+
+pub(super) fn forecast_spec(f: ForecastFile) -> Result<ForecastSpec, (&'static str, String)> {
+    if f.plan_header_row.is_some() && f.plan_sheet.is_none() {
+        return Err((
+            "plan_header_row",
+            "goes with `plan_sheet`; remove it, or name the plan sheet".into(),
+        ));
+    }
+    match (f.horizon, f.plan_sheet) {
+        (Some(_), Some(_)) => Err((
+            "plan_sheet",
+            "give either `horizon` (with `hold`) or `plan_sheet`, not both".into(),
+        )),
+        (None, None) => Err((
+            "horizon",
+            "is missing; give `horizon` (periods after the data, with `hold` values) or `plan_sheet`"
+                .into(),
+        )),
+        (None, Some(sheet)) => {
+            if !f.hold.is_empty() {
+                return Err((
+                    "hold",
+                    "is used with `horizon`; with `plan_sheet` the sheet gives the predictor values"
+                        .into(),
+                ));
+            }
+            let header_row = f.plan_header_row.unwrap_or(1);
+            if header_row == 0 {
+                return Err((
+                    "plan_header_row",
+                    "rows are counted from 1; use 1 for the first row".into(),
+                ));
+            }
+            Ok(ForecastSpec::Plan { sheet, header_row })
+        }
+        (Some(0), None) => Err(("horizon", "must be at least 1".into())),
+        (Some(horizon), None) => {
+            let mut hold = IndexMap::new();
+            for (column, value) in f.hold {
+                let v = match value {
+                    toml::Value::Integer(i) => HoldValue::Number(i as f64),
+                    toml::Value::Float(x) => HoldValue::Number(x),
+                    toml::Value::String(t) => HoldValue::Level(t),
+                    toml::Value::Boolean(b) => HoldValue::Number(f64::from(u8::from(b))),
+                    other => {
+                        return Err((
+                            "hold",
+                            format!("the value for '{column}' ({other}) must be a number or a level in quotes"),
+                        ))
+                    }
+                };
+                hold.insert(column, v);
+            }
+            Ok(ForecastSpec::Horizon { horizon, hold })
+        }
+    }
+}
+
+/// Each column plays one role in a model; a model needs a predictor or an
+/// intercept.
+pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)> {
+    if spec.response.trim().is_empty() {
+        return Err(("response", "is empty; name the response column".into()));
+    }
+    let mut seen: HashSet<&str> = HashSet::new();
+    seen.insert(&spec.response);
+    for (key, col) in spec
+        .numeric
+        .iter()
+        .map(|c| ("numeric", c))
+        .chain(spec.poly.iter().map(|p| ("poly", &p.column)))
+        .chain(spec.categorical.iter().map(|c| ("categorical", &c.column)))
+    {
+        if *col == spec.response {
+            return Err((
+                key,
+                format!("'{col}' is the response; a column cannot also be a predictor"),
+            ));
+        }
+        if !seen.insert(col) {
+            return Err((
+                key,
+                format!("'{col}' is listed twice; list each predictor once, under one role"),
+            ));
+        }
+    }
+    let time: Vec<&str> = spec
+        .trend
+        .iter()
+        .map(String::as_str)
+        .chain(spec.season.iter().map(|s| s.column.as_str()))
+        .collect();
+    if let [trend, season] = time[..] {
+        if trend != season {
+            return Err((
+                "season",
+                format!("the season column '{season}' differs from the trend column '{trend}'; read both from one date column"),
+            ));
+        }
+    }
+    if let Some(&date) = time.first() {
+        if seen.contains(date) {
+            return Err((
+                if spec.trend.is_some() { "trend" } else { "season" },
+                format!("'{date}' is already the response or a predictor; the date column plays no other role"),
+            ));
+        }
+    }
+    if time.is_empty() {
+        if spec.backtest.is_some() {
+            return Err((
+                "backtest",
+                "needs periods: add `trend` or `season` with the date column".into(),
+            ));
+        }
+        if matches!(spec.forecast, Some(ForecastSpec::Horizon { .. })) {
+            return Err((
+                "forecast.horizon",
+                "needs periods to advance: add `trend` or `season` with the date column, or use `plan_sheet`".into(),
+            ));
+        }
+    }
+    let mut pairs = HashSet::new();
+    for (a, b) in &spec.interactions {
+        for side in [a, b] {
+            let known =
+                spec.numeric.contains(side) || spec.categorical.iter().any(|c| c.column == *side);
+            if !known {
+                return Err((
+                    "interactions",
+                    format!("'{side}' is not a numeric or categorical predictor of this model; list it there first (an interaction needs its main effects)"),
+                ));
+            }
+        }
+        if a == b {
+            return Err((
+                "interactions",
+                format!("['{a}', '{b}'] pairs a predictor with itself; use `poly` for powers"),
+            ));
+        }
+        let key = if a < b { (a, b) } else { (b, a) };
+        if !pairs.insert(key) {
+            return Err(("interactions", format!("['{a}', '{b}'] is listed twice")));
+        }
+    }
+    if spec.backtest == Some(0) {
+        return Err(("backtest", "must be at least 1 period".into()));
+    }
+    if let Some(ForecastSpec::Horizon { hold, .. }) = &spec.forecast {
+        let predictors: Vec<&str> = spec.columns().skip(1).collect();
+        if let Some(missing) = predictors.iter().find(|c| !hold.contains_key(**c)) {
+            return Err((
+                "forecast.hold",
+                format!("has no value for the predictor '{missing}'; give every predictor a value, e.g. hold = {{ {missing} = ... }}"),
+            ));
+        }
+        if let Some(extra) = hold.keys().find(|k| !predictors.contains(&k.as_str())) {
+            return Err((
+                "forecast.hold",
+                format!(
+                    "'{extra}' is not a predictor of this model; the predictors are: {}",
+                    predictors.join(", ")
+                ),
+            ));
+        }
+    }
+    if spec.numeric.is_empty()
+        && spec.poly.is_empty()
+        && spec.categorical.is_empty()
+        && time.is_empty()
+        && !spec.intercept
+    {
+        return Err((
+            "intercept",
+            "the model has no predictors and no intercept; add a predictor".into(),
+        ));
+    }
+    Ok(())
+}
