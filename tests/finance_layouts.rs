@@ -203,8 +203,8 @@ fn a_total_row_without_a_label_is_found_by_its_sums() {
     );
 }
 
-/// Notes on the first sheet; on the second a worksheet table "Prestige"
-/// at B3 whose totals row (row 49) averages every column.
+/// Notes on the first sheet; on the second a title in B1 and a worksheet
+/// table "Prestige" at B3 whose totals row (row 49) averages every column.
 fn table_with_totals_row(s: &Scratch) {
     let data = duncan();
     let mut wb = Workbook::new();
@@ -214,6 +214,8 @@ fn table_with_totals_row(s: &Scratch) {
         .write_string(0, 0, "The data are on the next sheet.")
         .unwrap();
     let ws = wb.add_worksheet().set_name("Data").unwrap();
+    ws.write_string(0, 1, "Occupational prestige, 1950 (carData Duncan)")
+        .unwrap();
     write_data(ws, 2, 1, &data);
     let columns = vec![
         TableColumn::new()
