@@ -22,7 +22,7 @@ use crate::ddouble::DoubleDouble;
 use crate::design::{Design, DesignMatrix};
 use crate::job::Robust;
 
-pub use qr::ALIAS_TOLERANCE;
+pub use qr::{Effects as Auxiliary, ALIAS_TOLERANCE};
 
 /// Condition number above which the solve is repeated in double-double
 /// arithmetic. A double-precision QR loses about log10(κ) digits, and up to
@@ -110,21 +110,6 @@ pub fn least_squares(x: &DesignMatrix, y: &DVector<f64>) -> LeastSquares {
     }
 }
 
-/// What a check needs of an auxiliary regression: which columns were
-/// estimable, their effects, the residual sum of squares and R.
-#[derive(Debug, Clone)]
-pub struct Auxiliary {
-    /// Indices of the estimable columns, in order.
-    pub kept: Vec<usize>,
-    /// The first `kept.len()` entries of Qᵀy; their squares sum to the
-    /// explained sum of squares.
-    pub effects: Vec<f64>,
-    /// Residual sum of squares ‖y − Xb‖².
-    pub sse: f64,
-    /// The triangular factor of the kept columns scaled to unit length.
-    pub r: DMatrix<f64>,
-}
-
 /// An auxiliary regression, one that only feeds a test statistic
 /// (Breusch-Godfrey, Breusch-Pagan, RESET, ...): double precision at any
 /// condition number, with aliased columns set aside by the same rule as the
@@ -143,14 +128,7 @@ pub fn auxiliary_least_squares_with(
     y: &[f64],
 ) -> Auxiliary {
     let joined = x.joined(extra);
-    let y = DVector::from_column_slice(y);
-    let solved = qr::solve::<f64>(Columns::of(&joined), &y, Leverage::Skipped);
-    Auxiliary {
-        sse: solved.residuals.norm_squared(),
-        kept: solved.kept,
-        effects: solved.effects,
-        r: solved.r,
-    }
+    qr::effects(Columns::of(&joined), &DVector::from_column_slice(y))
 }
 
 impl LeastSquares {

@@ -165,32 +165,35 @@ impl<'a> Columns<'a> {
     }
 }
 
+/// A categorical term with at least this many indicator columns is reduced
+/// by its codes ([`Absorbed`]); a narrower one costs less as dense columns
+/// (the reduction reads the other columns three times more).
+pub const ABSORB_FROM: usize = 32;
+
 /// Solves least squares for `columns` (their low parts included when
 /// [`Columns::with_low_parts`] asked for them) and response `y`, in the
 /// arithmetic `T`. The columns are read in blocks of rows, never formed
 /// whole.
 pub fn solve<T: Real>(columns: Columns<'_>, y: &DVector<f64>, leverage: Leverage) -> Solved {
-    let (n, p) = (columns.rows(), columns.count());
-    let zero = T::of(0.0);
-    // [X y] reduced to at most p + 1 rows with the same column lengths and
-    // inner products: the column by column factorization below, on this
-    // small problem, finds what it would on the n rows, and no n-row factor
-    // is ever stored. The indicators of the widest categorical term, when
-    // there is one, are reduced by their codes ([`Absorbed`]), the other
-    // columns block by block.
-    let absorbed = columns
-        .base
-        .widest_indicator_group()
-        .map(|group| Absorbed::<T>::of(columns, y, group));
-    let small = match &absorbed {
-        Some(absorbed) => absorbed.reduced(columns, y),
-        None => reduce_rows::<T>(n, p + 1, |j, rows, out| columns.fill_or_y(y, j, rows, out)),
-    };
-    let factor = Triangle::of(&small[..p], small[p].len());
-    let rank = factor.kept.len();
+    solve_absorbing::<T>(columns, y, leverage, ABSORB_FROM)
+}
 
-    let mut qty: Vec<T> = small[p].clone();
-    factor.reflect(&mut qty);
+/// [`solve`], reducing the widest categorical term by its codes when it
+/// has at least `absorb_from` indicator columns.
+pub(super) fn solve_absorbing<T: Real>(
+    columns: Columns<'_>,
+    y: &DVector<f64>,
+    leverage: Leverage,
+    absorb_from: usize,
+) -> Solved {
+    let n = columns.rows();
+    let zero = T::of(0.0);
+    let Factored {
+        absorbed,
+        factor,
+        qty,
+    } = factored::<T>(columns, y, absorb_from);
+    let rank = factor.kept.len();
     let effects = &qty[..rank];
     let r_inv = factor.r_inverse();
     let scale = &factor.scale;
@@ -218,31 +221,18 @@ pub fn solve<T: Real>(columns: Columns<'_>, y: &DVector<f64>, leverage: Leverage
         (lower[b][a - b] / (scale[kept[a]] * scale[kept[b]])).value()
     });
 
-    let leverage = match (leverage, &absorbed) {
-        (Leverage::Skipped, _) => Vec::new(),
-        (Leverage::Wanted, None) => {
-            factor.leverage_of_rows(n, |j, rows, out| columns.fill(j, rows, out))
-        }
-        (Leverage::Wanted, Some(absorbed)) => absorbed.leverage(columns, y),
-    };
-    // The residuals y − Xb, the columns' terms taken in order, reading the
-    // kept columns a block of rows at a time.
-    let mut residuals: Vec<T> = Vec::with_capacity(n);
-    let mut block: Vec<Vec<T>> = vec![Vec::with_capacity(BLOCK); rank];
-    for start in (0..n).step_by(BLOCK) {
-        let end = (start + BLOCK).min(n);
-        for (values, &j) in block.iter_mut().zip(kept) {
-            values.clear();
-            columns.fill(j, start..end, values);
-        }
-        for i in 0..end - start {
-            let mut residual = T::of(y[start + i]);
-            for (values, &b) in block.iter().zip(&beta) {
-                residual = residual - values[i] * b;
-            }
-            residuals.push(residual);
-        }
+    // One pass over the rows gives the residuals and, unless the widest
+    // categorical term was reduced by its codes (its leverage comes from
+    // the reduction), each row's leverage.
+    let plain_leverage = leverage == Leverage::Wanted && absorbed.is_none();
+    let fill =
+        |j: usize, rows: std::ops::Range<usize>, out: &mut Vec<T>| columns.fill(j, rows, out);
+    let (mut leverage_of_rows, residuals) =
+        factor.rows_pass(n, fill, plain_leverage, Some((y, &beta)));
+    if let (Leverage::Wanted, Some(absorbed)) = (leverage, &absorbed) {
+        leverage_of_rows = absorbed.leverage(columns, y);
     }
+    let leverage = leverage_of_rows;
     Solved {
         beta: DVector::from_iterator(rank, beta.iter().map(|b| b.value())),
         xtx_inv,
@@ -251,6 +241,73 @@ pub fn solve<T: Real>(columns: Columns<'_>, y: &DVector<f64>, leverage: Leverage
         residuals: DVector::from_iterator(n, residuals.iter().map(|r| r.value())),
         r: DMatrix::from_fn(rank, rank, |i, j| factor.r(i, j).value()),
         aliased: factor.aliased,
+        kept: factor.kept,
+    }
+}
+
+/// [X y] reduced and factored: what [`solve`] and [`effects`] share.
+struct Factored<T> {
+    /// The reduction of the widest categorical term, when it had one.
+    absorbed: Option<Absorbed<T>>,
+    /// The factorization of the columns of X.
+    factor: Triangle<T>,
+    /// Qᵀy over the reduced rows.
+    qty: Vec<T>,
+}
+
+/// [X y] reduced to at most p + 1 rows with the same column lengths and
+/// inner products, then factored column by column: on this small problem
+/// the factorization finds what it would on the n rows, and no n-row factor
+/// is ever stored. The indicators of the widest categorical term, when it
+/// has `absorb_from` or more, are reduced by their codes ([`Absorbed`]),
+/// the other columns block by block.
+fn factored<T: Real>(columns: Columns<'_>, y: &DVector<f64>, absorb_from: usize) -> Factored<T> {
+    let (n, p) = (columns.rows(), columns.count());
+    let absorbed = columns
+        .base
+        .widest_indicator_group()
+        .filter(|group| group.columns.len() >= absorb_from)
+        .map(|group| Absorbed::<T>::of(columns, y, group));
+    let small = match &absorbed {
+        Some(absorbed) => absorbed.reduced(columns, y),
+        None => reduce_rows::<T>(n, p + 1, |j, rows, out| columns.fill_or_y(y, j, rows, out)),
+    };
+    let factor = Triangle::of(&small[..p], small[p].len());
+    let mut qty: Vec<T> = small[p].clone();
+    factor.reflect(&mut qty);
+    Factored {
+        absorbed,
+        factor,
+        qty,
+    }
+}
+
+/// What an auxiliary regression (one that only feeds a test statistic)
+/// needs: the estimable columns, Qᵀy's first entries (the effects, whose
+/// squares sum to the explained sum of squares), the residual sum of
+/// squares from Qᵀy's other entries, and R; in double precision, without a
+/// pass for residuals.
+#[derive(Debug, Clone)]
+pub struct Effects {
+    /// Indices of the estimable columns, in order.
+    pub kept: Vec<usize>,
+    /// The first `kept.len()` entries of Qᵀy.
+    pub effects: Vec<f64>,
+    /// Residual sum of squares, the sum of the squares of Qᵀy's other
+    /// entries.
+    pub sse: f64,
+    /// The triangular factor of the kept columns scaled to unit length.
+    pub r: DMatrix<f64>,
+}
+
+/// [`Effects`] of the regression of `y` on `columns`.
+pub fn effects(columns: Columns<'_>, y: &DVector<f64>) -> Effects {
+    let Factored { factor, qty, .. } = factored::<f64>(columns, y, ABSORB_FROM);
+    let rank = factor.kept.len();
+    Effects {
+        sse: qty[rank..].iter().map(|e| e * e).sum(),
+        effects: qty[..rank].to_vec(),
+        r: DMatrix::from_fn(rank, rank, |i, j| factor.r(i, j)),
         kept: factor.kept,
     }
 }
@@ -351,15 +408,19 @@ impl<T: Real> Triangle<T> {
             .collect()
     }
 
-    /// Each row's leverage h = ‖row of Q‖², with Q = X_s R⁻¹ (X_s the kept
-    /// columns scaled to unit length): one forward substitution zR = xᵢ per
-    /// row. `fill(j, rows, out)` appends entries `rows` of column `j` of
-    /// the `n` rows that were factored.
-    pub(super) fn leverage_of_rows(
+    /// One pass over the `n` rows that were factored, the kept columns read
+    /// a block of rows at a time (`fill(j, rows, out)` appends entries
+    /// `rows` of column `j`): with `leverage`, each row's leverage h = ‖row
+    /// of Q‖², Q = X_s R⁻¹ (X_s the kept columns scaled to unit length), by
+    /// one forward substitution zR = xᵢ per row; with `residual_of` = (y,
+    /// b), each row's residual y − Xb, the columns' terms taken in order.
+    pub(super) fn rows_pass(
         &self,
         n: usize,
         fill: impl Fn(usize, std::ops::Range<usize>, &mut Vec<T>),
-    ) -> Vec<f64> {
+        leverage: bool,
+        residual_of: Option<(&DVector<f64>, &[T])>,
+    ) -> (Vec<f64>, Vec<T>) {
         let zero = T::of(0.0);
         let rank = self.kept.len();
         let inverse_scale: Vec<T> = self
@@ -372,7 +433,8 @@ impl<T: Real> Triangle<T> {
             .iter()
             .map(|c| T::of(1.0) / c[c.len() - 1])
             .collect();
-        let mut leverage = Vec::with_capacity(n);
+        let mut leverages = Vec::with_capacity(if leverage { n } else { 0 });
+        let mut residuals = Vec::with_capacity(if residual_of.is_some() { n } else { 0 });
         let mut z = vec![zero; rank];
         let mut block: Vec<Vec<T>> = vec![Vec::with_capacity(BLOCK); rank];
         for start in (0..n).step_by(BLOCK) {
@@ -381,20 +443,31 @@ impl<T: Real> Triangle<T> {
                 values.clear();
                 fill(j, start..end, values);
             }
-            leverage.extend((0..end - start).map(|i| {
-                let mut sum = zero;
-                for c in 0..rank {
-                    let mut v = block[c][i] * inverse_scale[c];
-                    for (&zm, &rm) in z[..c].iter().zip(&self.r_cols[c]) {
-                        v = v - zm * rm;
+            if leverage {
+                leverages.extend((0..end - start).map(|i| {
+                    let mut sum = zero;
+                    for c in 0..rank {
+                        let mut v = block[c][i] * inverse_scale[c];
+                        for (&zm, &rm) in z[..c].iter().zip(&self.r_cols[c]) {
+                            v = v - zm * rm;
+                        }
+                        z[c] = v * inverse_diagonal[c];
+                        sum = sum + z[c] * z[c];
                     }
-                    z[c] = v * inverse_diagonal[c];
-                    sum = sum + z[c] * z[c];
-                }
-                sum.value()
-            }));
+                    sum.value()
+                }));
+            }
+            if let Some((y, beta)) = residual_of {
+                residuals.extend((0..end - start).map(|i| {
+                    let mut residual = T::of(y[start + i]);
+                    for (values, &b) in block.iter().zip(beta) {
+                        residual = residual - values[i] * b;
+                    }
+                    residual
+                }));
+            }
         }
-        leverage
+        (leverages, residuals)
     }
 }
 

@@ -145,6 +145,18 @@ impl Cells {
         self.others.iter()
     }
 
+    /// The keys ([`Cells::key`]) of the distinct values other than numbers
+    /// that `pick` picks, with the values: a test per distinct value
+    /// rather than per cell.
+    pub fn keys_where(&self, pick: impl Fn(&Value) -> bool) -> Vec<(u64, Value)> {
+        self.others
+            .iter()
+            .enumerate()
+            .filter(|(_, v)| pick(v))
+            .map(|(k, v)| (OTHER_TAG | k as u64, v.clone()))
+            .collect()
+    }
+
     /// Every cell, in order.
     pub fn iter(&self) -> impl Iterator<Item = Value> + '_ {
         (0..self.words.len()).map(|i| self.get(i))

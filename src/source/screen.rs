@@ -23,8 +23,6 @@
 //! job with a count per column, since a driver typed as text is not a
 //! category.
 
-use std::sync::Arc;
-
 use super::text_number::read_number;
 use super::{CellRef, Cells, SourceError, Table, Value};
 use crate::job::{Reading, SummaryRows};
@@ -226,43 +224,52 @@ fn summary_rows(
         found.push((0, reason));
     }
     // Rule 1 and 2: labels, with running sums since the last summary row.
-    let label_counts: Vec<std::collections::HashMap<Arc<String>, usize>> = labelled
+    // Each distinct text is tested once; the rows are then matched by key.
+    let label_keys: Vec<Vec<(u64, Value, usize)>> = labelled
         .iter()
         .map(|&j| {
-            let mut counts = std::collections::HashMap::new();
-            for v in table.columns[j].values.iter() {
-                if let Value::Text(t) = v {
-                    if is_summary_label(&t) {
-                        *counts.entry(t).or_insert(0) += 1;
+            let values = &table.columns[j].values;
+            let mut keys: Vec<(u64, Value, usize)> = values
+                .keys_where(|v| matches!(v, Value::Text(t) if is_summary_label(t)))
+                .into_iter()
+                .map(|(key, value)| (key, value, 0))
+                .collect();
+            if !keys.is_empty() {
+                for i in 0..n {
+                    let key = values.key(i);
+                    if let Some(entry) = keys.iter_mut().find(|(k, _, _)| *k == key) {
+                        entry.2 += 1;
                     }
                 }
             }
-            counts
+            keys
         })
         .collect();
+    let any_labels = label_keys.iter().any(|keys| !keys.is_empty());
     let rare = (n / 20).max(3);
     let mut group = Sums::new(numeric.len());
     for i in 0..n {
         if found.iter().any(|(k, _)| *k == i) {
             continue;
         }
-        let label = labelled.iter().zip(&label_counts).find_map(|(&j, counts)| {
-            let column = &table.columns[j];
-            match column.values.get(i) {
-                Value::Text(t) if is_summary_label(&t) => {
-                    Some((table.cell(column, i), t.clone(), counts[&t]))
-                }
-                _ => None,
-            }
-        });
-        let values = row_numbers(table, numeric, i, reading);
+        let label = any_labels
+            .then(|| {
+                labelled.iter().zip(&label_keys).find_map(|(&j, keys)| {
+                    let column = &table.columns[j];
+                    let key = column.values.key(i);
+                    keys.iter()
+                        .find(|(k, _, _)| *k == key)
+                        .map(|(_, text, count)| (table.cell(column, i), text.clone(), *count))
+                })
+            })
+            .flatten();
         if let Some((cell, text, count)) = label {
             if count <= rare {
                 found.push((i, format!("'{text}' in {cell} reads as a summary label")));
                 group = Sums::new(numeric.len());
                 continue;
             }
-            if let Some(what) = group.matched(&values) {
+            if let Some(what) = group.matched(&row_numbers(table, numeric, i, reading)) {
                 found.push((
                     i,
                     format!(
@@ -273,17 +280,25 @@ fn summary_rows(
                 continue;
             }
         }
-        group.add(&values);
+        if any_labels {
+            group.add_row(table, numeric, i, reading);
+        }
     }
-    // Rule 3: the last rows, against all the rows above them.
+    // Rule 3: the last rows, against all the rows above them; the rows
+    // above the last few are summed once.
     let data: Vec<usize> = (0..n)
         .filter(|i| !found.iter().any(|(k, _)| k == i))
         .collect();
-    for bottom in 1..=BOTTOM_ROWS.min(data.len().saturating_sub(2)) {
+    let most = BOTTOM_ROWS.min(data.len().saturating_sub(2));
+    let mut base = Sums::new(numeric.len());
+    for &i in &data[..data.len() - most] {
+        base.add_row(table, numeric, i, reading);
+    }
+    for bottom in 1..=most {
         let (above, tail) = data.split_at(data.len() - bottom);
-        let mut sums = Sums::new(numeric.len());
-        for &i in above {
-            sums.add(&row_numbers(table, numeric, i, reading));
+        let mut sums = base.clone();
+        for &i in &above[data.len() - most..] {
+            sums.add_row(table, numeric, i, reading);
         }
         let matches: Vec<Option<&'static str>> = tail
             .iter()
@@ -333,6 +348,7 @@ fn row_numbers(table: &Table, numeric: &[usize], i: usize, reading: &Reading) ->
 
 /// Running sums, counts and the first value of each numeric column over a
 /// group of rows.
+#[derive(Clone)]
 struct Sums {
     sum: Vec<f64>,
     count: Vec<usize>,
@@ -350,9 +366,10 @@ impl Sums {
         }
     }
 
-    fn add(&mut self, values: &[Option<f64>]) {
-        for (k, v) in values.iter().enumerate() {
-            if let Some(x) = *v {
+    /// Adds row `i` of the `numeric` columns of `table`.
+    fn add_row(&mut self, table: &Table, numeric: &[usize], i: usize, reading: &Reading) {
+        for (k, &j) in numeric.iter().enumerate() {
+            if let Some(x) = number(&table.columns[j].values, i, reading) {
                 self.sum[k] += x;
                 self.count[k] += 1;
                 match self.first[k] {
