@@ -491,6 +491,39 @@ fn duncan_durbin_watson_matches_dwtest() {
     let g = check(model(results, "additive"), "durbin-watson");
     close_key("durbin-watson", g, e, "statistic", TOL);
     close_key("durbin-watson", g, e, "p_value", DW_P_TOL);
+    // p = 0.019 by lmtest::dwtest, but the occupations have no time order:
+    // the statistic describes the sheet's order and is not flagged.
+    assert!(num(e, "p_value", "reference") < 0.05);
+    assert_eq!(g["flagged"], false);
+    assert!(
+        text(g, "verdict").starts_with("not a test of time dependence"),
+        "{}",
+        text(g, "verdict")
+    );
+}
+
+/// A model of one categorical predictor is saturated for RESET: its fitted
+/// values are the level means, whose squares and cubes are again functions
+/// of the level and lie in the indicators' span. The check says so instead
+/// of blaming the rows or the residuals.
+#[test]
+fn reset_of_a_saturated_model_says_why_it_is_not_computed() {
+    let job = DUNCAN_JOB
+        .split("[[model]]")
+        .next()
+        .unwrap()
+        .to_string()
+        + "[[model]]\nname = \"type only\"\nresponse = \"prestige\"\ncategorical = { type = \"bc\" }\n";
+    let results = run(&job, "duncan.csv");
+    let g = check(model(&results, "type only"), "reset");
+    assert!(g["statistic"].is_null());
+    assert!(
+        text(g, "verdict").starts_with(
+            "not computed: the squared and cubed fitted values already lie in the model's columns"
+        ),
+        "{}",
+        text(g, "verdict")
+    );
 }
 
 #[test]

@@ -8,7 +8,8 @@ pub mod assumptions;
 pub mod collinearity;
 
 use assumptions::{
-    breusch_godfrey, breusch_pagan, durbin_watson, jarque_bera, reset, shapiro_wilk, TestResult,
+    breusch_godfrey, breusch_pagan, durbin_watson, jarque_bera, reset_or_why, shapiro_wilk,
+    TestResult,
 };
 
 use crate::design::{Design, Term, TermKind};
@@ -187,18 +188,30 @@ pub const TEST_LEVEL: f64 = 0.05;
 
 /// A test result as a check: flagged when p < [`TEST_LEVEL`].
 fn test_check(name: &str, result: Option<TestResult>, rule: &str, good: &str, bad: &str) -> Check {
-    let p = result.as_ref().and_then(|r| r.p_value);
+    let result = result.ok_or("too few rows, or no variation in the residuals");
+    test_check_or_why(name, result, rule, good, bad)
+}
+
+/// [`test_check`] of a test that says why it was not computed.
+fn test_check_or_why(
+    name: &str,
+    result: Result<TestResult, &str>,
+    rule: &str,
+    good: &str,
+    bad: &str,
+) -> Check {
+    let p = result.as_ref().ok().and_then(|r| r.p_value);
     let flagged = p.is_some_and(|p| p < TEST_LEVEL);
     Check {
         name: name.into(),
-        statistic: result.as_ref().map(|r| r.statistic),
+        statistic: result.as_ref().ok().map(|r| r.statistic),
         p_value: p,
         rule: format!("{rule}; flagged when p < {TEST_LEVEL}"),
         flagged,
         verdict: match (&result, flagged) {
-            (None, _) => "not computed: too few rows, or no variation in the residuals".into(),
-            (Some(_), true) => bad.into(),
-            (Some(_), false) => good.into(),
+            (Err(why), _) => format!("not computed: {why}"),
+            (Ok(_), true) => bad.into(),
+            (Ok(_), false) => good.into(),
         },
     }
 }
@@ -225,13 +238,24 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
     } else {
         "rows in sheet order; meaningful only when that order is time"
     };
-    let mut checks = vec![test_check(
+    let durbin_watson_check = test_check(
         "durbin-watson",
         durbin_watson(e, &design.x),
         &format!("Durbin & Watson (1950, 1971); p for positive autocorrelation, exact below 100 rows, else normal approximation; {order_words}"),
         "residuals look independent from one row to the next",
         "residuals of neighbouring rows move together (positive autocorrelation): standard errors and p-values are too optimistic; consider a trend, seasons or fewer, longer periods",
-    )];
+    );
+    // Without a date column the rows have no time order: the statistic
+    // describes the sheet's order only, which is no ground for a flag.
+    let durbin_watson_check = match (&design.timing, durbin_watson_check.statistic) {
+        (None, Some(_)) => Check {
+            flagged: false,
+            verdict: "not a test of time dependence: the model has no date column, so the statistic only describes how rows next to each other in the sheet move together; it is not flagged".into(),
+            ..durbin_watson_check
+        },
+        _ => durbin_watson_check,
+    };
+    let mut checks = vec![durbin_watson_check];
     if let Some(timing) = &design.timing {
         let order = design
             .terms
@@ -273,9 +297,9 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
         "residuals look normal",
         "residuals depart from the normal: p-values and intervals are approximate; look at the normal plot",
     ));
-    checks.push(test_check(
+    checks.push(test_check_or_why(
         "reset",
-        reset(y, &design.x, &fit.fitted),
+        reset_or_why(y, &design.x, &fit.fitted),
         "Ramsey (1969) RESET: do the squared and cubed fitted values add anything?",
         "no sign of missing curvature",
         "the relation looks curved: consider a polynomial term, an interaction or a log response",

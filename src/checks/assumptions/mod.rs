@@ -192,6 +192,21 @@ pub fn jarque_bera(residuals: &[f64]) -> Option<TestResult> {
 /// model fits exactly: its residuals are below [`ALIAS_TOLERANCE`] of the
 /// length of y, the rule by which the fit sets aside a column.
 pub fn reset(y: &[f64], x: &DesignMatrix, fitted: &[f64]) -> Option<TestResult> {
+    reset_or_why(y, x, fitted).ok()
+}
+
+/// [`reset`], or why it is not computed, in words.
+///
+/// # Errors
+/// The reason: values that are not finite, powers of the fitted values
+/// that already lie in the model's columns (a saturated model, such as one
+/// categorical predictor alone), no residual degrees of freedom, or an
+/// augmented model that fits exactly.
+pub fn reset_or_why(
+    y: &[f64],
+    x: &DesignMatrix,
+    fitted: &[f64],
+) -> Result<TestResult, &'static str> {
     let n = y.len();
     if x.nrows() != n
         || fitted.len() != n
@@ -199,7 +214,7 @@ pub fn reset(y: &[f64], x: &DesignMatrix, fitted: &[f64]) -> Option<TestResult> 
         || !all_finite(fitted)
         || !x.all_finite()
     {
-        return None;
+        return Err("values that are not finite numbers");
     }
     let p = x.ncols();
     let powers = DesignMatrix::new(
@@ -218,18 +233,24 @@ pub fn reset(y: &[f64], x: &DesignMatrix, fitted: &[f64]) -> Option<TestResult> 
         .map(|(_, e)| e * e)
         .sum();
     let df1 = ls.kept.iter().filter(|&&j| j >= p).count();
-    if df1 == 0 || ls.kept.len() >= n {
-        return None;
+    if df1 == 0 {
+        return Err("the squared and cubed fitted values already lie in the model's columns (a saturated model, such as one categorical predictor alone), so there is no curvature for RESET to find");
+    }
+    if ls.kept.len() >= n {
+        return Err(
+            "too few rows: no residual degrees of freedom are left once the powers are added",
+        );
     }
     let df2 = n - ls.kept.len();
     let sse = ls.sse;
     let total: f64 = y.iter().map(|v| v * v).sum();
     if !is_positive(sse - (ALIAS_TOLERANCE * ALIAS_TOLERANCE) * total) {
-        return None;
+        return Err("the model with the powers added fits every row exactly");
     }
     let (d1, d2) = (df1 as f64, df2 as f64);
     let statistic = (added / d1) / (sse / d2);
     result(statistic, Some(d1), Some(d2), f_sf(statistic, d1, d2))
+        .ok_or("sums of squares too large to compute")
 }
 
 /// A [`TestResult`], or `None` when the statistic is not finite (sums of
