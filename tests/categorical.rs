@@ -168,3 +168,60 @@ fn residuals_and_influence_match_the_reference_library() {
         }
     }
 }
+
+/// Labels that differ only in case ("North" and "north") stop the job,
+/// naming both and their first cells, unless the job says they are
+/// different levels; then each is a level of its own.
+#[test]
+fn levels_that_differ_only_in_case_stop_unless_told() {
+    let scratch = Scratch::new();
+    let data = std::fs::read_to_string(fixture("data.csv")).expect("read fixture");
+    let mut seen = 0;
+    let changed: String = data
+        .lines()
+        .map(|line| {
+            let mut line = line.to_string();
+            if line.contains(",North,") {
+                seen += 1;
+                if seen == 2 {
+                    line = line.replace(",North,", ",north,");
+                }
+            }
+            line + "\n"
+        })
+        .collect();
+    scratch.write("data.csv", &changed);
+    let row = changed
+        .lines()
+        .position(|l| l.contains(",north,"))
+        .expect("a changed row")
+        + 1;
+    let first = changed
+        .lines()
+        .position(|l| l.contains(",North,"))
+        .expect("a North row")
+        + 1;
+    scratch.write("job.toml", JOB);
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert_eq!(out.status.code(), Some(1));
+    let err = common::stderr(&out);
+    assert!(
+        err.contains(&format!(
+            "categorical column 'region' has the levels 'North' (D{first}) and 'north' (D{row}), which differ only in case or spaces"
+        )) && err.contains("`case_sensitive_levels = true` under [input]"),
+        "{err}"
+    );
+    scratch.write(
+        "job.toml",
+        &JOB.replace("[input]\n", "[input]\ncase_sensitive_levels = true\n"),
+    );
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(out.status.success(), "{}", common::stderr(&out));
+    let terms: Vec<String> = read_json(&scratch.path("report.json"))["models"][0]["coefficients"]
+        .as_array()
+        .expect("coefficients")
+        .iter()
+        .map(|c| c["term"].as_str().unwrap_or_default().to_string())
+        .collect();
+    assert!(terms.contains(&"region[north]".to_string()), "{terms:?}");
+}

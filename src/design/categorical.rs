@@ -28,6 +28,8 @@ pub(super) fn indicators(
     let mut by_cell: HashMap<u64, u32> = HashMap::new();
     let mut by_label: HashMap<String, u32> = HashMap::new();
     let mut found: Vec<String> = Vec::new();
+    // The row where each label is first met, for messages.
+    let mut first_rows: Vec<usize> = Vec::new();
     let first_codes: Vec<u32> = keep
         .iter()
         .map(|&i| {
@@ -35,11 +37,36 @@ pub(super) fn indicators(
                 let label = column.values.get(i).to_string();
                 *by_label.entry(label.clone()).or_insert_with(|| {
                     found.push(label);
+                    first_rows.push(i);
                     (found.len() - 1) as u32
                 })
             })
         })
         .collect();
+    if !ctx.model.case_sensitive_levels {
+        let mut by_folded: HashMap<String, usize> = HashMap::new();
+        for (k, label) in found.iter().enumerate() {
+            let folded = label
+                .split_whitespace()
+                .collect::<Vec<_>>()
+                .join(" ")
+                .to_lowercase();
+            if let Some(&first) = by_folded.get(&folded) {
+                return Err(DesignError::LevelsDifferInCase {
+                    model: ctx.model.name.clone(),
+                    place: ctx.table.place(),
+                    column: spec.column.clone(),
+                    first: format!(
+                        "'{}' ({})",
+                        found[first],
+                        ctx.table.cell(column, first_rows[first])
+                    ),
+                    second: format!("'{label}' ({})", ctx.table.cell(column, first_rows[k])),
+                });
+            }
+            by_folded.insert(folded, k);
+        }
+    }
     let limit = ctx.model.max_levels;
     if found.len() > limit || (found.len() > HALF_ROWS_ABOVE && found.len() * 2 > keep.len()) {
         return Err(DesignError::TooManyLevels {

@@ -237,6 +237,20 @@ pub enum DesignError {
         /// Which limit, in words.
         why: String,
     },
+    /// Two levels differ only in case or inner spaces.
+    #[error("model '{model}': {place}, categorical column '{column}' has the levels {first} and {second}, which differ only in case or spaces; write them alike in the sheet, or write `case_sensitive_levels = true` under [input] if they are truly different levels")]
+    LevelsDifferInCase {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The first label and its first cell.
+        first: String,
+        /// The other label and its first cell.
+        second: String,
+    },
     /// A categorical column has a single level in the rows used.
     #[error("model '{model}': categorical column '{column}' has only one level ('{level}') in the rows used; a categorical predictor needs two or more levels")]
     OneLevel {

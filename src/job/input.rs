@@ -51,6 +51,9 @@ pub struct InputFile {
     /// Most levels a categorical column may have; default
     /// [`DEFAULT_MAX_LEVELS`].
     pub max_levels: Option<usize>,
+    /// `true`: levels that differ only in case or inner spaces ("North",
+    /// "north") are different levels; by default they stop the job.
+    pub case_sensitive_levels: Option<bool>,
     /// A worksheet table by name: its header and data rows, never its
     /// totals row.
     pub table: Option<String>,

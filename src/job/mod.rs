@@ -504,6 +504,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             standard_errors,
             suggest: m.suggest.or(file.suggest).unwrap_or(true),
             max_levels: file.input.max_levels.unwrap_or(DEFAULT_MAX_LEVELS),
+            case_sensitive_levels: file.input.case_sensitive_levels.unwrap_or(false),
             labels: reading.labels,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;

@@ -121,6 +121,10 @@ pub struct ModelSpec {
     /// Most levels a categorical predictor (or a season) may have: the
     /// job's `max_levels` under [input].
     pub max_levels: usize,
+    /// Whether levels that differ only in case or inner spaces are
+    /// different levels (`case_sensitive_levels` under [input]); when
+    /// false such levels stop the job.
+    pub case_sensitive_levels: bool,
     /// How period labels read: `date_order` and `fiscal_year_start` under
     /// [input].
     pub labels: LabelRules,
@@ -150,6 +154,7 @@ impl ModelSpec {
             standard_errors: None,
             suggest: true,
             max_levels: super::DEFAULT_MAX_LEVELS,
+            case_sensitive_levels: false,
             labels: LabelRules::default(),
         }
     }
