@@ -17,7 +17,7 @@ use std::path::{Path, PathBuf};
 use serde_json::Value;
 use sheetfit::checks::collinearity::collinearity;
 use sheetfit::design::Design;
-use sheetfit::fit::robust::{robust_covariance, unit_leverage_rows};
+use sheetfit::fit::robust::{moved_by_unit_leverage_rows, robust_covariance, unit_leverage_rows};
 use sheetfit::fit::{least_squares, LeastSquares};
 use sheetfit::job::Robust;
 
@@ -295,7 +295,7 @@ fn collinear_predictors_beside_a_factor_match_car() {
 }
 
 #[test]
-fn a_row_with_leverage_one_is_left_out_of_hc3() {
+fn a_row_with_leverage_one_leaves_only_its_coefficient_undefined_in_hc3() {
     let name = "duncan_singleton";
     let case = fixture(name);
     let (design, ls) = build(&case);
@@ -309,7 +309,16 @@ fn a_row_with_leverage_one_is_left_out_of_hc3() {
     let singleton = unit_leverage_rows(&ls.leverage);
     assert_eq!(singleton.len(), 1, "{name}: rows with leverage 1");
     let v = robust(&design, &ls, Robust::Hc3);
-    assert!(v.iter().all(|v| v.is_finite()), "{name}: HC3 {v}");
+    // The coefficient the row moves (its level's indicator) is undefined,
+    // as in R; the others are not.
+    let moved = moved_by_unit_leverage_rows(&design.x, &ls.kept, &ls.xtx_inv, &ls.leverage);
+    assert_eq!(moved.len(), 1, "{name}: coefficients the row moves");
+    for j in 0..v.nrows() {
+        for k in 0..v.ncols() {
+            let undefined = moved.contains(&j) || moved.contains(&k);
+            assert_eq!(v[(j, k)].is_nan(), undefined, "{name}: HC3 ({j}, {k}) {v}");
+        }
+    }
     // The coefficients the row does not move get what R gives them in the
     // fit without that row and its indicator.
     let reduced = &case["hc3_without_singleton"];

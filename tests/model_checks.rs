@@ -676,3 +676,65 @@ fn mtcars_suggestion_is_compared_with_the_full_model() {
     // anova(lm(mpg ~ wt + qsec + am), lm(mpg ~ wt + hp + qsec + drat + am)).
     assert_comparisons(expected, results);
 }
+
+/// HC3 with a row of leverage 1: pilot given a type of its own ("solo").
+/// The standard error of type[solo] needs that row's own error variance and
+/// is undefined (null, with its t, p and interval); every other
+/// coefficient's equals statsmodels' HC3 on the other 44 rows
+/// (duncan_solo.json, tests/reference/make_unit_leverage_reference.py);
+/// the Checks sheet names the row.
+#[test]
+fn hc3_with_a_row_of_leverage_one_leaves_that_level_undefined() {
+    let expected = read_json(&fixture("duncan_solo.json"));
+    let data = std::fs::read_to_string(fixture("duncan.csv")).expect("read duncan.csv");
+    let data: String = data
+        .lines()
+        .map(|line| {
+            if line.starts_with("pilot,") {
+                let mut fields: Vec<&str> = line.split(',').collect();
+                fields[4] = "solo";
+                fields.join(",") + "\n"
+            } else {
+                format!("{line}\n")
+            }
+        })
+        .collect();
+    let scratch = Scratch::new();
+    scratch.write("duncan.csv", &data);
+    scratch.write(
+        "job.toml",
+        "suggest = false\n[input]\nworkbook = \"duncan.csv\"\n[output]\nworkbook = \"report.xlsx\"\n\
+         [[model]]\nname = \"solo\"\nresponse = \"prestige\"\nnumeric = [\"income\", \"education\"]\n\
+         categorical = { type = \"bc\" }\nstandard_errors = \"HC3\"\n",
+    );
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(out.status.success(), "{}", common::stderr(&out));
+    let results = read_json(&scratch.path("report.json"));
+    let m = model(&results, "solo");
+    for c in arr(m, "coefficients", "solo") {
+        let term = text(c, "term");
+        if term == "type[solo]" {
+            for key in ["std_error", "t_stat", "p_value", "ci_lower", "ci_upper"] {
+                assert!(c[key].is_null(), "{term} {key}: {}", c[key]);
+            }
+        } else {
+            let want = expected["hc3_std_errors"][term]
+                .as_f64()
+                .unwrap_or_else(|| panic!("no reference for {term}"));
+            close(&format!("{term} HC3"), num(c, "std_error", term), want, TOL);
+        }
+    }
+    let g = check(m, "robust standard errors");
+    assert_eq!(g["flagged"], true);
+    let pilot = data
+        .lines()
+        .position(|l| l.starts_with("pilot,"))
+        .expect("pilot")
+        + 1;
+    assert!(
+        text(g, "verdict").starts_with(&format!("sheet row {pilot} has leverage 1"))
+            && text(g, "verdict").contains("the HC3 standard errors of type[solo] are undefined"),
+        "{}",
+        text(g, "verdict")
+    );
+}

@@ -183,6 +183,61 @@ pub fn condition_check(fit: &Fit) -> Check {
     }
 }
 
+/// With robust standard errors, the rows of leverage 1 and what they do to
+/// them: the fit passes through such a row whatever its value, so its own
+/// error variance cannot be estimated (MacKinnon & White 1985; Long &
+/// Ervin 2000). HC3's standard errors of the coefficients such rows move
+/// are undefined (left blank); HC1's are too small. `None` without robust
+/// standard errors or without such rows.
+pub fn robust_check(design: &Design, fit: &Fit) -> Option<Check> {
+    let kind = fit.standard_errors?;
+    let ls = &fit.solution;
+    let rows = crate::fit::robust::unit_leverage_rows(&ls.leverage);
+    if rows.is_empty() {
+        return None;
+    }
+    let moved: Vec<String> = crate::fit::robust::moved_by_unit_leverage_rows(
+        &design.x,
+        &ls.kept,
+        &ls.xtx_inv,
+        &ls.leverage,
+    )
+    .into_iter()
+    .filter_map(|k| fit.coefficients.get(k).map(|c| c.term.clone()))
+    .collect();
+    let sheet_rows: Vec<u32> = rows
+        .iter()
+        .filter_map(|&i| design.rows.get(i).copied())
+        .collect();
+    let which = if sheet_rows.len() == 1 {
+        format!(
+            "sheet row {} has leverage 1 (the fit passes through it whatever its value, as the only row of a level), so its own error variance cannot be estimated",
+            sheet_rows[0]
+        )
+    } else {
+        format!(
+            "sheet rows {} have leverage 1 (the fit passes through them whatever their values, as the only rows of their levels), so their own error variance cannot be estimated",
+            crate::text::row_ranges(&sheet_rows)
+        )
+    };
+    let coefficients = moved.join(", ");
+    Some(Check {
+        name: "robust standard errors".into(),
+        statistic: Some(rows.len() as f64),
+        p_value: None,
+        rule: "rows of leverage 1 (to within 1e-10) among the rows used; HC3 weights such a row 0/0, HC1 by its zero residual (MacKinnon & White 1985; Long & Ervin 2000)".into(),
+        flagged: true,
+        verdict: match kind {
+            crate::job::Robust::Hc3 => format!(
+                "{which}: the HC3 standard errors of {coefficients} are undefined and left blank, with their t, p and intervals; the other coefficients' do not depend on those rows. HC1 would give these coefficients standard errors that are too small"
+            ),
+            crate::job::Robust::Hc1 => format!(
+                "{which}: the HC1 standard errors of {coefficients} leave that variance out and are too small (HC3 reports them as undefined); read those coefficients with care"
+            ),
+        },
+    })
+}
+
 /// The level at which the assumption tests flag a problem.
 pub const TEST_LEVEL: f64 = 0.05;
 

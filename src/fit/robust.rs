@@ -43,6 +43,34 @@ pub fn unit_leverage_rows(leverage: &[f64]) -> Vec<usize> {
         .collect()
 }
 
+/// The coefficients (positions in `kept`) that rows of leverage 1 move:
+/// those with a non-zero entry in cᵢ = (X'X)⁻¹xᵢ for such a row i, as the
+/// indicator of a level with one row. The other coefficients do not depend
+/// on those rows' responses at all.
+pub fn moved_by_unit_leverage_rows(
+    x: &DesignMatrix,
+    kept: &[usize],
+    xtx_inv: &DMatrix<f64>,
+    leverage: &[f64],
+) -> Vec<usize> {
+    let p = kept.len();
+    let mut moved = vec![false; p];
+    for i in unit_leverage_rows(leverage) {
+        if i >= x.nrows() || xtx_inv.shape() != (p, p) {
+            continue;
+        }
+        let row = x.dense_block(i..i + 1, kept);
+        let c = xtx_inv * row.transpose();
+        let largest = c.amax();
+        for (k, v) in c.iter().enumerate() {
+            if v.abs() > 1e-9 * largest {
+                moved[k] = true;
+            }
+        }
+    }
+    (0..p).filter(|&k| moved[k]).collect()
+}
+
 /// The heteroscedasticity-consistent covariance matrix of the coefficients
 /// over the estimable columns `kept` of `x`, in the order of `kept`.
 ///
@@ -60,15 +88,15 @@ pub fn unit_leverage_rows(leverage: &[f64]) -> Vec<usize> {
 /// diagonal.
 ///
 /// A row with leverage 1 (see [`UNIT_LEVERAGE_TOLERANCE`]) has a zero
-/// residual whatever its error, so its HC3 weight is 0/0. HC3 leaves such
-/// rows out of the sum (weight zero) instead of letting the 0/0 make every
-/// entry NaN. The coefficients such a row does not move (those the other
-/// rows determine alone) then get exactly the variance they would get
-/// without it; the coefficient it alone determines (the indicator of a level
-/// with one row) gets a variance that leaves out that row's own error
-/// variance, which no residual can estimate, and so is too small.
-/// [`unit_leverage_rows`] finds these rows. HC1 needs no such rule: the
-/// row's residual is zero and so is its weight.
+/// residual whatever its error, so its HC3 weight is 0/0. The coefficients
+/// such a row does not move (those the other rows determine alone) get
+/// exactly the variance they would get without it; the variance and
+/// covariances of a coefficient it moves ([`moved_by_unit_leverage_rows`],
+/// the indicator of a level with one row) would need that row's own error
+/// variance, which no residual can estimate, and are NaN: undefined, as the
+/// reference libraries report them. HC1's weight for the row is its zero
+/// residual, so HC1 gives those coefficients a variance that leaves that
+/// error variance out: too small, which the Checks sheet says.
 ///
 /// When the shapes disagree (`xtx_inv` not p × p, `residuals` or, for HC3,
 /// `leverage` not one per row, an index of `kept` past the columns of `x`)
@@ -115,6 +143,12 @@ pub fn robust_covariance(
             row *= root_weight;
         }
         v += w.transpose() * &w;
+    }
+    if kind == Robust::Hc3 {
+        for k in moved_by_unit_leverage_rows(x, kept, xtx_inv, leverage) {
+            v.row_mut(k).fill(f64::NAN);
+            v.column_mut(k).fill(f64::NAN);
+        }
     }
     v
 }
@@ -180,7 +214,7 @@ mod tests {
     }
 
     #[test]
-    fn a_row_with_leverage_one_is_left_out_of_hc3() {
+    fn a_row_with_leverage_one_leaves_only_the_coefficient_it_moves_undefined() {
         // The last column is the indicator of the last row alone: its
         // leverage is 1 and its residual 0.
         let (x, y) = line();
@@ -198,7 +232,20 @@ mod tests {
             &ls.leverage,
             Robust::Hc3,
         );
-        assert!(v.iter().all(|v| v.is_finite()), "{v}");
+        // The indicator's variance would need that row's own error variance:
+        // undefined, with its covariances.
+        assert_eq!(
+            moved_by_unit_leverage_rows(
+                &DesignMatrix::from_dense(&x, None),
+                &ls.kept,
+                &ls.xtx_inv,
+                &ls.leverage
+            ),
+            vec![2]
+        );
+        for k in 0..3 {
+            assert!(v[(2, k)].is_nan() && v[(k, 2)].is_nan(), "{v}");
+        }
         // Intercept and slope: as from the first five rows alone.
         let (x5, y5) = (
             x.rows(0, 5).columns(0, 2).into_owned(),

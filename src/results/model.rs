@@ -6,8 +6,8 @@ use serde::Serialize;
 use crate::checks::{
     assumption_checks,
     collinearity::{collinearity, TermCollinearity},
-    collinearity_checks, condition_check, each_term_last_anova, influence_check, sequential_anova,
-    AnovaRow, Check, RowTable,
+    collinearity_checks, condition_check, each_term_last_anova, influence_check, robust_check,
+    sequential_anova, AnovaRow, Check, RowTable,
 };
 use crate::compare::DroppedTerm;
 use crate::design::{Design, TermKind};
@@ -154,6 +154,7 @@ pub fn analyse(
     let mut checks = assumption_checks(design, fit);
     let residuals = RowTable::of(design, fit);
     checks.extend([condition_check(fit), influence_check(&residuals)]);
+    checks.extend(robust_check(design, fit));
     checks.extend(collinearity_checks(&collinearity));
     let normal_plot = normal_plot(residuals.iter().filter_map(|d| d.standardized_residual));
     let baselines = design
