@@ -466,6 +466,19 @@ fn hold_with_an_unseen_level_names_the_level_and_lists_the_known_ones() {
     );
 }
 
+/// The driver data on sheet `records` and `plan` on sheet `plan`, with the
+/// driver model forecasting from the plan sheet (`extra` added under
+/// [model.forecast]).
+fn with_plan(s: &Scratch, plan: Vec<Vec<Cell>>, extra: &str) {
+    s.workbook("data.xlsx", &[("records", driver_rows()), ("plan", plan)]);
+    s.write(
+        "job.toml",
+        &job_with(&format!(
+            "{DRIVER_MODEL}\n[model.forecast]\nplan_sheet = \"plan\"{extra}"
+        )),
+    );
+}
+
 #[test]
 fn plan_sheet_with_an_unseen_level_names_the_sheet_and_its_row() {
     let s = Scratch::new();
@@ -475,13 +488,7 @@ fn plan_sheet_with_an_unseen_level_names_the_sheet_and_its_row() {
         vec![T("2025-02"), N(13.0), T("East")],
         vec![T("2025-03"), N(11.5), T("South")],
     ];
-    s.workbook("data.xlsx", &[("records", driver_rows()), ("plan", plan)]);
-    s.write(
-        "job.toml",
-        &job_with(&format!(
-            "{DRIVER_MODEL}\n[model.forecast]\nplan_sheet = \"plan\""
-        )),
-    );
+    with_plan(&s, plan, "");
     assert_run_fails(
         &s,
         1,
@@ -502,13 +509,7 @@ fn a_plan_sheet_reads_its_own_header_row_and_names_it() {
         vec![T("2025-01"), N(12.0), T("North")],
         vec![T("2025-02"), N(13.0), T("South")],
     ];
-    s.workbook("data.xlsx", &[("records", driver_rows()), ("plan", plan)]);
-    s.write(
-        "job.toml",
-        &job_with(&format!(
-            "{DRIVER_MODEL}\n[model.forecast]\nplan_sheet = \"plan\""
-        )),
-    );
+    with_plan(&s, plan.clone(), "");
     assert_run_fails(
         &s,
         1,
@@ -519,12 +520,7 @@ fn a_plan_sheet_reads_its_own_header_row_and_names_it() {
         ],
         &INPUTS,
     );
-    s.write(
-        "job.toml",
-        &job_with(&format!(
-            "{DRIVER_MODEL}\n[model.forecast]\nplan_sheet = \"plan\"\nplan_header_row = 2"
-        )),
-    );
+    with_plan(&s, plan, "\nplan_header_row = 2");
     let model = run_ok(&s, &INPUTS);
     let rows = list(&model["forecast"], "forecast");
     assert_eq!(rows.len(), 2, "one forecast row per plan row below row 2");
@@ -543,13 +539,7 @@ fn plan_sheet_rows_are_coded_as_the_data_were() {
     for (month, x, region) in plan_values {
         plan.push(vec![T(month), N(x), T(region)]);
     }
-    s.workbook("data.xlsx", &[("records", driver_rows()), ("plan", plan)]);
-    s.write(
-        "job.toml",
-        &job_with(&format!(
-            "{DRIVER_MODEL}\n[model.forecast]\nplan_sheet = \"plan\""
-        )),
-    );
+    with_plan(&s, plan, "");
     let model = run_ok(&s, &INPUTS);
     assert_eq!(
         coefficient_names(&model),
