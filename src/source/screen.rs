@@ -120,7 +120,7 @@ pub fn screen(
                     units: found[0].reason.starts_with("a units row"),
                 });
             }
-            let rows: Vec<u32> = found.iter().map(|f| f.row).collect();
+            let rows: std::collections::HashSet<u32> = found.iter().map(|f| f.row).collect();
             table.remove_rows(|row| rows.contains(&row));
             screened.summary_rows_left_out = found;
         }
@@ -248,8 +248,11 @@ fn summary_rows(
     let any_labels = label_keys.iter().any(|keys| !keys.is_empty());
     let rare = (n / 20).max(3);
     let mut group = Sums::new(numeric.len());
+    // Only the units row (row 0) is found before the loop; the loop's own
+    // finds are behind it.
+    let units_found = !found.is_empty();
     for i in 0..n {
-        if found.iter().any(|(k, _)| *k == i) {
+        if i == 0 && units_found {
             continue;
         }
         let label = any_labels
@@ -286,9 +289,11 @@ fn summary_rows(
     }
     // Rule 3: the last rows, against all the rows above them; the rows
     // above the last few are summed once.
-    let data: Vec<usize> = (0..n)
-        .filter(|i| !found.iter().any(|(k, _)| k == i))
-        .collect();
+    let mut is_found = vec![false; n];
+    for (k, _) in &found {
+        is_found[*k] = true;
+    }
+    let data: Vec<usize> = (0..n).filter(|&i| !is_found[i]).collect();
     let most = BOTTOM_ROWS.min(data.len().saturating_sub(2));
     let mut base = Sums::new(numeric.len());
     for &i in &data[..data.len() - most] {
