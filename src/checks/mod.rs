@@ -368,8 +368,23 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
 /// (1992) make comparable across terms of different df.
 pub const VIF_LIMIT: f64 = 10.0;
 
-/// One check per term from its (generalized) variance inflation factor.
-pub fn collinearity_checks(terms: &[collinearity::TermCollinearity]) -> Vec<Check> {
+/// One check per term from its (generalized) variance inflation factor; for
+/// a model of several terms without an intercept, one check saying why there
+/// are none.
+pub fn collinearity_checks(
+    design: &Design,
+    terms: &[collinearity::TermCollinearity],
+) -> Vec<Check> {
+    if !design.intercept && design.terms.len() > 1 {
+        return vec![Check {
+            name: "variance inflation".into(),
+            statistic: None,
+            p_value: None,
+            rule: "variance inflation factors compare each term with the others about their means, which needs an intercept (Fox & Monette 1992)".into(),
+            flagged: false,
+            verdict: "not computed: without an intercept the predictors are not centred, so a variance inflation factor would mix their overlap with their distance from zero; the condition number describes collinearity instead".into(),
+        }];
+    }
     let limit = VIF_LIMIT.sqrt();
     terms
         .iter()

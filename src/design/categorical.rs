@@ -15,13 +15,14 @@ use crate::source::Column;
 const HALF_ROWS_ABOVE: usize = 20;
 
 /// Treatment coding of one factor over the rows `keep`: levels sorted,
-/// one 0/1 column per level other than the baseline, all reading one code
-/// per row.
+/// one 0/1 column per level other than the baseline (per level when
+/// `every_level`), all reading one code per row.
 pub(super) fn indicators(
     ctx: &Context<'_>,
     spec: &CategoricalSpec,
     column: &Column,
     keep: &[usize],
+    every_level: bool,
 ) -> Result<(TermKind, Vec<NamedColumn>), DesignError> {
     // Codes in order of first appearance, each cell's label formed once
     // per distinct cell.
@@ -115,7 +116,7 @@ pub(super) fn indicators(
     let cols = levels
         .iter()
         .zip(0..)
-        .filter(|(l, _)| **l != baseline)
+        .filter(|(l, _)| every_level || **l != baseline)
         .map(|(level, code)| {
             NamedColumn::new(
                 &format!("{}[{}]", spec.column, level),
@@ -131,6 +132,7 @@ pub(super) fn indicators(
             baseline,
             chosen: spec.baseline.clone(),
             levels,
+            every_level,
         },
         cols,
     ))

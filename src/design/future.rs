@@ -92,27 +92,35 @@ impl Design {
                     let index = self.timing.as_ref().map_or(0, |t| t.index(p));
                     out.push(index as f64);
                 }
-                TermKind::Season { by, baseline, .. } => {
+                TermKind::Season {
+                    by,
+                    baseline,
+                    every_level,
+                    ..
+                } => {
                     let season = period()?.season(*by).ok_or(EncodeError::NoPeriod)?;
                     out.extend(
                         (1..=by.labels().len() as u32)
-                            .filter(|s| s != baseline)
+                            .filter(|s| *every_level || s != baseline)
                             .map(|s| f64::from(u8::from(s == season))),
                     );
                 }
                 TermKind::Interaction { left, right } => {
                     let (l, r) = (
-                        self.terms[*left].columns.clone(),
-                        self.terms[*right].columns.clone(),
+                        self.terms[*left].contrast_columns(),
+                        self.terms[*right].contrast_columns(),
                     );
                     for i in l {
-                        for j in r.clone() {
+                        for &j in &r {
                             out.push(out[i] * out[j]);
                         }
                     }
                 }
                 TermKind::Categorical {
-                    baseline, levels, ..
+                    baseline,
+                    levels,
+                    every_level,
+                    ..
                 } => {
                     let level = match row.values.get(&term.column) {
                         None | Some(Value::Blank) => {
@@ -132,7 +140,7 @@ impl Design {
                     out.extend(
                         levels
                             .iter()
-                            .filter(|l| *l != baseline)
+                            .filter(|l| *every_level || *l != baseline)
                             .map(|l| f64::from(u8::from(*l == level))),
                     );
                 }

@@ -44,7 +44,8 @@ pub enum TermKind {
     Numeric,
     /// The period index 1, 2, … of the date column.
     Trend,
-    /// Season indicators against a baseline season.
+    /// Season indicators against a baseline season, or one per season when
+    /// `every_level`.
     Season {
         /// What seasons are counted by.
         by: SeasonBy,
@@ -52,6 +53,9 @@ pub enum TermKind {
         baseline: u32,
         /// Whether the job named the baseline.
         given: bool,
+        /// Whether every season has its own indicator, the baseline's
+        /// included: the first factor of a model without an intercept.
+        every_level: bool,
     },
     /// The product of two earlier terms (numeric or categorical).
     Interaction {
@@ -65,7 +69,8 @@ pub enum TermKind {
         /// Highest power.
         degree: u32,
     },
-    /// A categorical predictor: one indicator per non-baseline level.
+    /// A categorical predictor: one indicator per non-baseline level, or
+    /// per level when `every_level`.
     Categorical {
         /// The baseline level.
         baseline: String,
@@ -73,6 +78,9 @@ pub enum TermKind {
         chosen: Baseline,
         /// Every level found in the rows used, sorted, baseline included.
         levels: Vec<String>,
+        /// Whether every level has its own indicator, the baseline's
+        /// included: the first factor of a model without an intercept.
+        every_level: bool,
     },
 }
 
@@ -89,6 +97,34 @@ pub struct Term {
     pub kind: TermKind,
     /// Indices of this term's columns in the design matrix.
     pub columns: std::ops::Range<usize>,
+}
+
+impl Term {
+    /// The term's columns against its baseline: all of them, less the
+    /// baseline level's indicator when the term has one for every level.
+    /// Interactions multiply these, so a factor coded in full for its own
+    /// effect keeps treatment coding in its interactions, as the standard
+    /// formula coding does when both main effects are in the model.
+    pub fn contrast_columns(&self) -> Vec<usize> {
+        let baseline = match &self.kind {
+            TermKind::Categorical {
+                every_level: true,
+                baseline,
+                levels,
+                ..
+            } => levels.iter().position(|l| l == baseline),
+            TermKind::Season {
+                every_level: true,
+                baseline,
+                ..
+            } => Some(*baseline as usize - 1),
+            _ => None,
+        };
+        self.columns
+            .clone()
+            .filter(|&j| Some(j - self.columns.start) != baseline)
+            .collect()
+    }
 }
 
 /// The response and design matrix of one model, over its usable rows.
@@ -230,6 +266,11 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         );
     }
     drop(dates);
+    // Without an intercept the first factor (seasons come before the
+    // categorical predictors) gets an indicator for every level, so that
+    // each level has its own level and the fit does not depend on the
+    // baseline; later factors keep their baselines.
+    let mut every_level = !model.intercept;
     if let Some(t) = &timing {
         if model.trend.is_some() {
             let index = t.periods.iter().map(|&p| t.index(p) as f64).collect();
@@ -242,6 +283,7 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         }
         if let Some(season) = &model.season {
             let seasons = time::seasons(&ctx, season, t)?;
+            let baseline = (!every_level).then_some(season.baseline);
             parts.push(
                 &t.column,
                 "season",
@@ -249,13 +291,15 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
                     by: season.by,
                     baseline: season.baseline,
                     given: season.baseline_given,
+                    every_level: std::mem::take(&mut every_level),
                 },
-                time::season_columns(season.by, season.baseline, seasons),
+                time::season_columns(season.by, baseline, seasons),
             );
         }
     }
     for (spec, column) in model.categorical.iter().zip(&labels) {
-        let (kind, indicators) = indicators(&ctx, spec, column, &keep)?;
+        let (kind, indicators) =
+            indicators(&ctx, spec, column, &keep, std::mem::take(&mut every_level))?;
         parts.push(&spec.column, &spec.column, kind, indicators);
     }
     for (a, b) in &model.interactions {
@@ -269,8 +313,9 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             continue;
         };
         let mut products = Vec::new();
-        for i in parts.terms[left].columns.clone() {
-            for j in parts.terms[right].columns.clone() {
+        let right_columns = parts.terms[right].contrast_columns();
+        for i in parts.terms[left].contrast_columns() {
+            for &j in &right_columns {
                 let (ci, cj) = (&parts.columns[i], &parts.columns[j]);
                 products.push(NamedColumn::new(
                     &format!("{}:{}", ci.name, cj.name),
@@ -323,6 +368,25 @@ impl Design {
     /// Row `i` of the design matrix, low parts included.
     pub fn row(&self, i: usize) -> Vec<f64> {
         self.x.row(i)
+    }
+
+    /// The factor that has an indicator for every level (the first factor
+    /// of a model without an intercept): its indicators sum to one in every
+    /// row, so the model's columns hold a constant though it has no
+    /// intercept column.
+    pub fn every_level_term(&self) -> Option<&Term> {
+        self.terms.iter().find(|t| {
+            matches!(
+                t.kind,
+                TermKind::Categorical {
+                    every_level: true,
+                    ..
+                } | TermKind::Season {
+                    every_level: true,
+                    ..
+                }
+            )
+        })
     }
 
     /// The design restricted to the rows `keep` (indices into this design),

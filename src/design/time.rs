@@ -265,16 +265,20 @@ pub(super) fn seasons(
         .collect()
 }
 
-/// One 0/1 column per season other than the baseline, named
-/// `season[Feb]`, `season[Q2]`, `season[Tue]`, all reading the rows'
-/// `seasons`. A season with no rows gives a column of zeros, which the fit
-/// reports as aliased.
-pub(super) fn season_columns(by: SeasonBy, baseline: u32, seasons: Vec<u32>) -> Vec<NamedColumn> {
+/// One 0/1 column per season other than the `baseline` (per season when
+/// there is none), named `season[Feb]`, `season[Q2]`, `season[Tue]`, all
+/// reading the rows' `seasons`. A season with no rows gives a column of
+/// zeros, which the fit reports as aliased.
+pub(super) fn season_columns(
+    by: SeasonBy,
+    baseline: Option<u32>,
+    seasons: Vec<u32>,
+) -> Vec<NamedColumn> {
     let codes: Arc<[u32]> = seasons.into();
     by.labels()
         .iter()
         .zip(1..)
-        .filter(|(_, s)| *s != baseline)
+        .filter(|(_, s)| Some(*s) != baseline)
         .map(|(label, s)| NamedColumn {
             name: format!("season[{label}]"),
             column: DesignColumn::Indicator {

@@ -191,8 +191,10 @@ mod tests {
     /// A design with an intercept, a numeric column, a categorical term
     /// (code 0 the baseline, code 4 without rows, so aliased) and the
     /// numeric column's interaction with one level; once with the term's
-    /// indicators as codes and once as stored 0/1 values.
-    fn designs() -> (DesignMatrix, DesignMatrix, DVector<f64>) {
+    /// indicators as codes and once as stored 0/1 values. With
+    /// `every_level`, the design of a model without an intercept: no column
+    /// of ones, and code 0 has its own indicator.
+    fn designs(every_level: bool) -> (DesignMatrix, DesignMatrix, DVector<f64>) {
         let n = 40;
         let mut state = 7u64;
         let mut next = || {
@@ -224,7 +226,11 @@ mod tests {
             DesignMatrix::new(
                 n,
                 vec![
-                    DesignColumn::Ones,
+                    if every_level {
+                        level(0)
+                    } else {
+                        DesignColumn::Ones
+                    },
                     numeric.clone(),
                     level(1),
                     level(2),
@@ -247,9 +253,9 @@ mod tests {
         }
     }
 
-    fn agree<T: Real>() {
+    fn agree<T: Real>(every_level: bool) {
         let (absorbed, plain) = {
-            let (codes, stored, y) = designs();
+            let (codes, stored, y) = designs(every_level);
             assert!(codes.widest_indicator_group().is_some());
             assert!(stored.widest_indicator_group().is_none());
             let solve_on = |x: &DesignMatrix| -> Solved {
@@ -290,12 +296,18 @@ mod tests {
 
     #[test]
     fn absorbed_indicators_give_the_dense_solution_in_double() {
-        agree::<f64>();
+        agree::<f64>(false);
     }
 
     #[test]
     fn absorbed_indicators_give_the_dense_solution_in_double_double() {
-        agree::<DoubleDouble>();
+        agree::<DoubleDouble>(false);
+    }
+
+    #[test]
+    fn absorbed_indicators_for_every_level_give_the_dense_solution() {
+        agree::<f64>(true);
+        agree::<DoubleDouble>(true);
     }
 
     #[test]

@@ -201,15 +201,18 @@ pub struct Coefficient {
 /// Overall fit statistics.
 #[derive(Debug, Clone, serde::Serialize)]
 pub struct FitQuality {
-    /// R² = 1 − SSE/SST, SST about the mean with an intercept and about zero
-    /// without one (uncentred), as NIST StRD certifies it.
+    /// R² = 1 − SSE/SST, SST about the mean when the columns hold a
+    /// constant (an intercept, or a factor with an indicator for every
+    /// level) and about zero otherwise (uncentred), as NIST StRD certifies
+    /// it.
     pub r_squared: Option<f64>,
-    /// Adjusted R² = 1 − (1 − R²)(n − i)/(n − p), i = 1 with an intercept, else 0.
+    /// Adjusted R² = 1 − (1 − R²)(n − i)/(n − p), i = 1 when the columns
+    /// hold a constant, else 0.
     pub adj_r_squared: Option<f64>,
     /// Residual standard error s = √(SSE/(n − p)).
     pub sigma: f64,
-    /// Overall F = (SSR/df_model)/(SSE/df_resid) against the intercept-only
-    /// model (or the zero model without an intercept).
+    /// Overall F = (SSR/df_model)/(SSE/df_resid) against the constant-only
+    /// model (or the zero model when the columns hold no constant).
     pub f_stat: Option<f64>,
     /// P(F > f) from the survival function.
     pub f_p_value: Option<f64>,
@@ -306,7 +309,13 @@ pub fn fit(model: &str, design: &Design, confidence: f64) -> Result<Fit, FitErro
         });
     }
     let df_resid = n - p;
-    let intercept = usize::from(design.intercept && solution.kept.first() == Some(&0));
+    // A factor with an indicator for every level holds the constant as
+    // well as an intercept column does: R² and F are then about the mean.
+    let intercept = usize::from(if design.intercept {
+        solution.kept.first() == Some(&0)
+    } else {
+        design.every_level_term().is_some()
+    });
     let df_model = p - intercept;
     // A fit exact to rounding (residuals within a few rounding errors of
     // the response's size) is an exact fit: its residual variance is zero,

@@ -28,6 +28,14 @@ pub struct BaselineNote {
     pub reason: String,
     /// All levels in the rows used, sorted.
     pub levels: Vec<String>,
+    /// Whether every level has its own coefficient, the baseline's
+    /// included (the first factor of a model without an intercept): each
+    /// coefficient is then that level's own level, and the baseline serves
+    /// only the term's interactions.
+    pub every_level: bool,
+    /// Whether the term enters an interaction, where its levels are always
+    /// compared with the baseline.
+    pub in_interactions: bool,
 }
 
 /// The periods of a model with a date column.
@@ -155,16 +163,18 @@ pub fn analyse(
     let residuals = RowTable::of(design, fit);
     checks.extend([condition_check(fit), influence_check(&residuals)]);
     checks.extend(robust_check(design, fit));
-    checks.extend(collinearity_checks(&collinearity));
+    checks.extend(collinearity_checks(design, &collinearity));
     let normal_plot = normal_plot(residuals.iter().filter_map(|d| d.standardized_residual));
     let baselines = design
         .terms
         .iter()
-        .filter_map(|t| match &t.kind {
+        .enumerate()
+        .filter_map(|(k, t)| match &t.kind {
             TermKind::Categorical {
                 baseline,
                 chosen,
                 levels,
+                every_level,
             } => Some(BaselineNote {
                 column: t.name.clone(),
                 level: baseline.clone(),
@@ -173,11 +183,14 @@ pub fn analyse(
                     Baseline::FirstSorted => "first level in sorted order".into(),
                 },
                 levels: levels.clone(),
+                every_level: *every_level,
+                in_interactions: !design.interaction_columns_of(k).is_empty(),
             }),
             TermKind::Season {
                 by,
                 baseline,
                 given,
+                every_level,
             } => Some(BaselineNote {
                 column: "season".into(),
                 level: by.labels()[*baseline as usize - 1].to_string(),
@@ -187,6 +200,8 @@ pub fn analyse(
                     "the first season".into()
                 },
                 levels: by.labels().iter().map(|l| l.to_string()).collect(),
+                every_level: *every_level,
+                in_interactions: false,
             }),
             _ => None,
         })

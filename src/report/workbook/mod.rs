@@ -672,12 +672,25 @@ fn lines(text: &str, width: usize) -> Vec<&str> {
 pub fn model_notes(m: &ModelResults) -> Vec<String> {
     let mut notes = Vec::new();
     if !m.intercept {
-        notes.push(
-            "Fitted without an intercept: R² and F are measured about zero, not about the mean."
-                .to_string(),
-        );
+        notes.push(match m.baselines.iter().find(|b| b.every_level) {
+            Some(b) => format!("Fitted without an intercept, but the {} indicators together act as one (one of them is 1 in every row): R² and F are measured about the mean, as with an intercept.", b.column),
+            None => "Fitted without an intercept: R² and F are measured about zero, not about the mean.".to_string(),
+        });
     }
     for b in &m.baselines {
+        if b.every_level {
+            notes.push(format!(
+                "{0}: without an intercept every level has its own coefficient, {0}[level], the level of the response for that level with the other predictors at zero; the fit does not depend on a baseline{1}. Levels: {2}.",
+                b.column,
+                if b.in_interactions {
+                    format!(", but its interactions compare each level with '{}' ({})", b.level, b.reason)
+                } else {
+                    String::new()
+                },
+                b.levels.join(", ")
+            ));
+            continue;
+        }
         notes.push(format!(
             "{}: baseline level '{}' ({}); each {}[level] coefficient is the difference from it. Levels: {}.",
             b.column,
