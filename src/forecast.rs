@@ -285,8 +285,7 @@ fn plan_rows(
                         Value::Number(x) => year_of_number(*x),
                         _ => None,
                     };
-                    let period: Option<Period> =
-                        stamp.and_then(|s| s.period_in(timing.frequency, spec.labels.fiscal_start));
+                    let period: Option<Period> = stamp.and_then(|s| s.period_like(timing.first));
                     Some(period.ok_or_else(|| ForecastError::PlanDate {
                         model: spec.name.clone(),
                         sheet: sheet.to_string(),

@@ -248,3 +248,35 @@ fn fiscal_periods_read_label_forecast_and_count_seasons_in_the_fiscal_year() {
         stderr(&out)
     );
 }
+
+#[test]
+fn weekly_dates_take_their_month_and_label_from_their_own_day() {
+    // Saturdays: the weeks start on Saturday, so 1994-01-01 is a January
+    // week (its ISO week starts on 1993-12-27) and is labelled by its date.
+    let s = Scratch::new();
+    std::fs::copy(fixture("co2_weekly.csv"), s.path("data.csv")).unwrap();
+    let job = "suggest = false\n[input]\nworkbook = \"data.csv\"\n[[model]]\nname = \"co2\"\nresponse = \"co2\"\ntrend = \"date\"\nseason = { column = \"date\", by = \"month\" }\n[model.forecast]\nhorizon = 6\n";
+    let json = assert_matches(&s, job, "co2_weekly");
+    let model = &json["models"][0];
+    assert_eq!(model["timing"]["frequency"], "week");
+    assert_eq!(model["timing"]["first"], "1990-01-06");
+    let residuals = model["residuals"].as_array().unwrap();
+    assert!(residuals.iter().any(|r| r["period"] == "1994-01-01"));
+    // Source: statsmodels get_prediction on the reference fit.
+    let want = read_json(&fixture("expected.json"))["co2_weekly"]["forecast"].clone();
+    let got = model["forecast"].as_array().unwrap();
+    assert_eq!(got.len(), want.as_array().unwrap().len());
+    for (g, w) in got.iter().zip(want.as_array().unwrap()) {
+        assert_eq!(g["period"], w["period"]);
+        assert_eq!(g["date"], w["period"]);
+        assert_eq!(g["index"], w["index"]);
+        for key in ["estimate", "pred_lower", "pred_upper"] {
+            assert_close(
+                &format!("forecast {} {key}", w["period"]),
+                g[key].as_f64().unwrap(),
+                w[key].as_f64().unwrap(),
+                1e-9,
+            );
+        }
+    }
+}

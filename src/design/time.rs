@@ -197,11 +197,21 @@ pub(super) fn timing(
             }
         },
     };
+    let fiscal = ctx.model.labels.fiscal_start;
+    let calendar = Period {
+        fiscal: if fiscal > 1 { fiscal } else { 0 },
+        week_start: if frequency == Frequency::Week {
+            week_start(&used)
+        } else {
+            0
+        },
+        ..Period::first_of(frequency)
+    };
     let mut periods = Vec::with_capacity(keep.len());
     for &i in keep {
         let stamp = stamps[i].ok_or_else(|| ctx.bad_date(column, i, &Value::Blank))?;
         let period = stamp
-            .period_in(frequency, ctx.model.labels.fiscal_start)
+            .period_like(calendar)
             .ok_or_else(|| DesignError::MixedFrequency {
                 model: ctx.model.name.clone(),
                 place: ctx.table.place(),
@@ -230,11 +240,7 @@ pub(super) fn timing(
             });
         }
     }
-    let first = counts.keys().next().copied().unwrap_or(Period {
-        frequency,
-        ordinal: 0,
-        fiscal: 0,
-    });
+    let first = counts.keys().next().copied().unwrap_or(calendar);
     Ok(Timing {
         column: column.name.clone(),
         frequency,
@@ -243,6 +249,25 @@ pub(super) fn timing(
         first,
         panel: median > 1,
     })
+}
+
+/// The weekday weekly periods start on (1 for Monday to 7 for Sunday): the
+/// one most of the dates fall on, so that each row's week starts on its own
+/// date and takes that date's month; 0 (ISO weeks from Monday, labelled
+/// "2024-W05") when the stamps are week labels, not dates.
+fn week_start(stamps: &[Stamp]) -> u8 {
+    let mut counts = [0usize; 8];
+    for stamp in stamps {
+        if let Stamp::Date(d) = stamp {
+            counts[d.weekday().number_from_monday() as usize] += 1;
+        }
+    }
+    // The first of the most common weekdays; 0 when no stamp is a date.
+    (1..=7u8)
+        .rev()
+        .max_by_key(|&w| counts[usize::from(w)])
+        .filter(|&w| counts[usize::from(w)] > 0)
+        .unwrap_or(0)
 }
 
 /// The season (from 1) of each period, or an error when the frequency is

@@ -152,6 +152,7 @@ fn label(frequency: Frequency, ordinal: i64) -> Result<Stamp, StampError> {
         frequency,
         ordinal,
         fiscal: 0,
+        week_start: 0,
     }))
 }
 
@@ -175,6 +176,7 @@ fn fiscal_label(
             frequency,
             ordinal,
             fiscal: rules.fiscal_start,
+            week_start: 0,
         }))
     };
     match part {

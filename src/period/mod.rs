@@ -73,6 +73,11 @@ pub struct Period {
     /// year: it decides how the period is labelled ("FY2025 P01") and how
     /// its seasons are counted.
     pub fiscal: u8,
+    /// For weeks, the weekday they start on, 1 (Monday) to 7 (Sunday), as
+    /// the series' own dates fall: a week is then labelled by its first day
+    /// and its month and quarter are that day's. 0 for ISO weeks (from
+    /// Monday), labelled "2024-W05", as weeks written that way are read.
+    pub week_start: u8,
 }
 
 /// A period is written as its label ("2024-03", "2024-Q1", ...).
@@ -83,32 +88,46 @@ impl serde::Serialize for Period {
 }
 
 impl Period {
-    /// The period holding `date`.
+    /// The period of `frequency` holding `date`, in the calendar year (ISO
+    /// weeks for weeks).
     pub fn of_date(date: NaiveDate, frequency: Frequency) -> Self {
-        Period::of_date_in(date, frequency, 0)
+        Period::first_of(frequency).holding(date)
     }
 
-    /// The period holding `date`, in a fiscal year starting in month
-    /// `fiscal` (0 for the calendar year). A fiscal year is named by the
-    /// calendar year it ends in: with `fiscal` = 4, FY2025 runs from April
-    /// 2024 to March 2025.
-    pub fn of_date_in(date: NaiveDate, frequency: Frequency, fiscal: u8) -> Self {
+    /// The period of `frequency` with ordinal 0, in the calendar year (ISO
+    /// weeks for weeks): a calendar to which other settings are added.
+    pub fn first_of(frequency: Frequency) -> Self {
+        Period {
+            frequency,
+            ordinal: 0,
+            fiscal: 0,
+            week_start: 0,
+        }
+    }
+
+    /// The period of this period's calendar (its frequency, fiscal year and
+    /// week start) that holds `date`. A fiscal year is named by the calendar
+    /// year it ends in: with `fiscal` = 4, FY2025 runs from April 2024 to
+    /// March 2025.
+    pub fn holding(self, date: NaiveDate) -> Self {
         let days = i64::from(date.num_days_from_ce());
-        let ordinal = match frequency {
+        let fiscal = self.fiscal;
+        let ordinal = match self.frequency {
             Frequency::Day => days,
             // Day 1 of the common era was a Monday.
-            Frequency::Week => (days - 1).div_euclid(7),
+            Frequency::Week => (days - 1 - self.week_offset()).div_euclid(7),
             Frequency::Month => i64::from(date.year()) * 12 + i64::from(date.month0()),
             Frequency::Quarter => i64::from(date.year()) * 4 + i64::from(date.month0() / 3),
             Frequency::Year => {
                 i64::from(date.year()) + i64::from(fiscal > 1 && date.month() >= u32::from(fiscal))
             }
         };
-        Period {
-            frequency,
-            ordinal,
-            fiscal: if fiscal > 1 { fiscal } else { 0 },
-        }
+        Period { ordinal, ..self }
+    }
+
+    /// Days from Monday to the weekday weeks start on.
+    fn week_offset(self) -> i64 {
+        i64::from(self.week_start.saturating_sub(1))
     }
 
     /// The period `n` periods after this one.
@@ -148,7 +167,7 @@ impl Period {
         };
         match self.frequency {
             Frequency::Day => from_days(self.ordinal),
-            Frequency::Week => from_days(self.ordinal * 7 + 1),
+            Frequency::Week => from_days(self.ordinal * 7 + 1 + self.week_offset()),
             Frequency::Month => ymd(self.ordinal.div_euclid(12), self.ordinal.rem_euclid(12)),
             Frequency::Quarter => ymd(self.ordinal.div_euclid(4), self.ordinal.rem_euclid(4) * 3),
             Frequency::Year if self.fiscal > 1 => ymd(self.ordinal - 1, i64::from(self.fiscal) - 1),
@@ -186,7 +205,8 @@ impl Period {
 }
 
 impl fmt::Display for Period {
-    /// "2024-07-15" (day), "2024-W05" (ISO week), "2024-07" (month),
+    /// "2024-07-15" (day, and a week by its first day), "2024-W05" (ISO
+    /// week), "2024-07" (month),
     /// "2024-Q3" (quarter), "2024" (year).
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         let start = self.start();
@@ -203,6 +223,7 @@ impl fmt::Display for Period {
         }
         match self.frequency {
             Frequency::Day => write!(f, "{start}"),
+            Frequency::Week if self.week_start > 0 => write!(f, "{start}"),
             Frequency::Week => {
                 let w = start.iso_week();
                 write!(f, "{}-W{:02}", w.year(), w.week())
@@ -224,22 +245,26 @@ pub enum Stamp {
 }
 
 impl Stamp {
-    /// The period of the stamp at `frequency`; `None` for a period label of
-    /// any other frequency (a quarter label in a monthly series, or a month
-    /// label in a quarterly one).
-    pub fn period(self, frequency: Frequency) -> Option<Period> {
-        self.period_in(frequency, 0)
-    }
-
-    /// [`Stamp::period`] in a fiscal year starting in month `fiscal` (0
-    /// for the calendar year); a yearly label read as a calendar year stays
-    /// that year's number.
-    pub fn period_in(self, frequency: Frequency, fiscal: u8) -> Option<Period> {
-        let fiscal = if fiscal > 1 { fiscal } else { 0 };
+    /// The period of the stamp in the calendar of `like` (its frequency,
+    /// fiscal year and week start); `None` for a period label of any other
+    /// frequency (a quarter label in a monthly series, or a month label in
+    /// a quarterly one). A yearly label read as a calendar year stays that
+    /// year's number; an ISO week label in a series of weeks from another
+    /// weekday is the week holding its Monday.
+    pub fn period_like(self, like: Period) -> Option<Period> {
         match self {
-            Stamp::Date(d) => Some(Period::of_date_in(d, frequency, fiscal)),
-            Stamp::Label(p) if p.frequency == frequency => Some(Period { fiscal, ..p }),
-            Stamp::Label(_) => None,
+            Stamp::Date(d) => Some(like.holding(d)),
+            Stamp::Label(p) if p.frequency != like.frequency => None,
+            Stamp::Label(p)
+                if p.frequency == Frequency::Week && p.week_start != like.week_start =>
+            {
+                Some(like.holding(p.start()))
+            }
+            Stamp::Label(p) => Some(Period {
+                fiscal: like.fiscal,
+                week_start: like.week_start,
+                ..p
+            }),
         }
     }
 }
@@ -267,6 +292,7 @@ pub fn read_stamp(text: &str, rules: &LabelRules) -> Result<Stamp, StampError> {
             frequency,
             ordinal,
             fiscal: 0,
+            week_start: 0,
         }))
     };
     let iso = || -> Option<Stamp> {
@@ -305,6 +331,7 @@ pub fn year_of_number(x: f64) -> Option<Stamp> {
         frequency: Frequency::Year,
         ordinal: x as i64,
         fiscal: 0,
+        week_start: 0,
     }))
 }
 
@@ -470,6 +497,33 @@ mod tests {
         let week = Period::of_date(date(2025, 12, 29), Frequency::Week);
         assert_eq!(week.to_string(), "2026-W01");
         assert_eq!(week.start(), date(2025, 12, 29));
+    }
+
+    #[test]
+    fn weeks_from_a_weekday_start_on_it_and_take_its_month() {
+        // Weeks from Sunday: Sunday 2023-01-01 starts a January week, whose
+        // ISO week started on Monday 2022-12-26.
+        let sundays = Period {
+            week_start: 7,
+            ..Period::first_of(Frequency::Week)
+        };
+        let week = sundays.holding(date(2023, 1, 1));
+        assert_eq!(week.start(), date(2023, 1, 1));
+        assert_eq!(week.to_string(), "2023-01-01");
+        assert_eq!(week.season(SeasonBy::Month), Some(1));
+        assert_eq!(
+            Period::of_date(date(2023, 1, 1), Frequency::Week).season(SeasonBy::Month),
+            Some(12)
+        );
+        // The next Saturday is in the same week; the next Sunday starts the
+        // next one.
+        assert_eq!(sundays.holding(date(2023, 1, 7)), week);
+        assert_eq!(sundays.holding(date(2023, 1, 8)), week.plus(1));
+        assert_eq!(week.plus(9).start(), date(2023, 3, 5));
+        // An ISO week label read into the Sunday calendar: the week holding
+        // its Monday.
+        let iso = parse_stamp("2023-W01").and_then(|s| s.period_like(sundays));
+        assert_eq!(iso.map(Period::start), Some(date(2023, 1, 1)));
     }
 
     #[test]

@@ -13,6 +13,13 @@ and the ordinary least squares fits the tests compare with:
 * elnino.csv -- monthly sea surface temperature, 1950-2010 (statsmodels'
   `elnino`, reshaped to one row a month): temperature ~ trend + month
   indicators (January the baseline).
+* co2_weekly.csv -- weekly atmospheric CO2 at Mauna Loa, dated Saturdays,
+  1990-01-06 to 2001-12-29 with its missing weeks left out (statsmodels'
+  `co2`): co2 ~ trend + month indicators (January the baseline), the month
+  taken by pandas from each row's own date (1994-01-01, a Saturday, is in
+  January, though its ISO week starts in December), the trend counting
+  weeks from the first; and get_prediction for the six Saturdays after the
+  data.
 * expected.json -- for each: coefficients (estimate, standard error) in the
   order sheetfit reports them (intercept, predictors, trend, seasons).
 
@@ -122,6 +129,41 @@ def main():
         "n": int(fit.nobs),
         "coefficients": [by_name["Intercept"], by_name["trend"]]
         + [by_name["C(month, Treatment(4))[T.%d]" % m] for m in fiscal_order],
+    }
+
+    co2 = sm.datasets.co2.load_pandas().data
+    co2 = co2.loc["1990-01-01":"2001-12-31"].dropna()
+    weekly = pd.DataFrame({"date": co2.index.strftime("%Y-%m-%d"), "co2": co2["co2"].to_numpy()})
+    stamps = pd.to_datetime(weekly["date"])
+    assert (stamps.dt.day_of_week == 5).all(), "Saturdays"
+    weekly["trend"] = ((stamps - stamps.iloc[0]).dt.days // 7 + 1).astype(float)
+    weekly["month"] = stamps.dt.month
+    weekly[["date", "co2"]].to_csv(os.path.join(OUT, "co2_weekly.csv"), index=False)
+    formula = "co2 ~ trend + C(month, Treatment(1))"
+    fit = smf.ols(formula, data=weekly).fit()
+    ahead = pd.date_range(stamps.iloc[-1] + pd.Timedelta(days=7), periods=6, freq="7D")
+    new = pd.DataFrame(
+        {
+            "trend": ((ahead - stamps.iloc[0]).days // 7 + 1).astype(float),
+            "month": ahead.month,
+        }
+    )
+    frame = fit.get_prediction(new).summary_frame(alpha=0.05)
+    expected["co2_weekly"] = {
+        "formula": formula + ", month and trend from each row's own date",
+        "n": int(fit.nobs),
+        "coefficients": coefficients(fit),
+        "first_row_of_1994": {"date": "1994-01-01", "month": 1},
+        "forecast": [
+            {
+                "period": day.strftime("%Y-%m-%d"),
+                "index": int(t),
+                "estimate": float(r["mean"]),
+                "pred_lower": float(r["obs_ci_lower"]),
+                "pred_upper": float(r["obs_ci_upper"]),
+            }
+            for day, t, (_, r) in zip(ahead, new["trend"], frame.iterrows())
+        ],
     }
 
     with open(os.path.join(OUT, "expected.json"), "w") as f:
