@@ -354,7 +354,7 @@ pub fn assumption_checks(design: &Design, fit: &Fit) -> Vec<Check> {
     ));
     checks.push(test_check_or_why(
         "reset",
-        reset_or_why(y, &design.x, &fit.fitted),
+        reset_or_why(y, &design.x, &fit.solution),
         "Ramsey (1969) RESET: do the squared and cubed fitted values add anything?",
         "no sign of missing curvature",
         "the relation looks curved: consider a polynomial term, an interaction or a log response",

@@ -262,6 +262,42 @@ impl DesignMatrix {
         DMatrix::from_vec(self.rows, self.ncols(), values)
     }
 
+    /// Whether the columns hold a constant: a column of ones (or of one
+    /// value other than zero), or indicators that share one code list and
+    /// mark every code it holds, so that one of them is 1 in every row.
+    pub fn holds_constant(&self) -> bool {
+        let mut groups: Vec<(&Arc<[u32]>, Vec<u32>)> = Vec::new();
+        for column in &self.columns {
+            match column {
+                DesignColumn::Ones => return true,
+                DesignColumn::Values { hi, lo: None }
+                    if hi
+                        .first()
+                        .is_some_and(|&v| v != 0.0 && hi.iter().all(|&h| h == v)) =>
+                {
+                    return true
+                }
+                DesignColumn::Indicator { codes, code } => {
+                    match groups.iter_mut().find(|(c, _)| Arc::ptr_eq(c, codes)) {
+                        Some((_, marked)) => marked.push(*code),
+                        None => groups.push((codes, vec![*code])),
+                    }
+                }
+                _ => {}
+            }
+        }
+        groups.iter().any(|(codes, marked)| {
+            let top = marked.iter().max().map_or(0, |&c| c as usize);
+            let mut has_column = vec![false; top + 1];
+            for &c in marked {
+                has_column[c as usize] = true;
+            }
+            codes
+                .iter()
+                .all(|&c| has_column.get(c as usize).copied().unwrap_or(false))
+        })
+    }
+
     /// The largest set of indicator columns that share one code list, each
     /// code counted once (a repeated column stays out of the group); `None`
     /// without indicator columns.

@@ -76,6 +76,9 @@ pub struct LeastSquares {
     pub aliased: Vec<usize>,
     /// Coefficients of the kept columns, in the order of `kept`.
     pub beta: DVector<f64>,
+    /// What rounding the coefficients to `beta` left over: zeros from a
+    /// double-precision solve.
+    pub beta_low: Vec<f64>,
     /// (X'X)⁻¹ over the kept columns, from R⁻¹R⁻ᵀ (never by inverting X'X).
     pub xtx_inv: DMatrix<f64>,
     /// Effects: the first `kept.len()` entries of Qᵀy. The square of each is
@@ -128,7 +131,52 @@ pub fn auxiliary_least_squares_with(
     y: &[f64],
 ) -> Auxiliary {
     let joined = x.joined(extra);
-    qr::effects(Columns::of(&joined), &DVector::from_column_slice(y))
+    qr::effects::<f64>(Columns::of(&joined), &DVector::from_column_slice(y))
+}
+
+/// [`auxiliary_least_squares_with`] at the precision the problem calls
+/// for, by the main fit's rule: repeated in double-double arithmetic, with
+/// the columns' low parts, when `extended` asks for it (the model itself
+/// needed it) or when the condition number of the joined columns exceeds
+/// [`EXTENDED_ABOVE`].
+pub fn auxiliary_least_squares_precise(
+    x: &DesignMatrix,
+    extra: &DesignMatrix,
+    y: &[f64],
+    extended: bool,
+) -> Auxiliary {
+    let joined = x.joined(extra);
+    let y = DVector::from_column_slice(y);
+    if !extended {
+        let double = qr::effects::<f64>(Columns::of(&joined), &y);
+        if qr::condition_number(&double.r) <= EXTENDED_ABOVE {
+            return double;
+        }
+    }
+    qr::effects::<DoubleDouble>(Columns::of(&joined).with_low_parts(), &y)
+}
+
+/// The fitted values X b of `solution`, in double-double arithmetic from
+/// the columns' low parts and the coefficients' (exact sums of the parts
+/// when the solve was in double precision).
+pub fn fitted_extended(x: &DesignMatrix, solution: &LeastSquares) -> Vec<DoubleDouble> {
+    let columns = Columns::of(x).with_low_parts();
+    let n = x.nrows();
+    let mut fitted = vec![DoubleDouble::from_f64(0.0); n];
+    let mut values = Vec::with_capacity(n.min(qr::BLOCK));
+    for start in (0..n).step_by(qr::BLOCK) {
+        let end = (start + qr::BLOCK).min(n);
+        for (k, &j) in solution.kept.iter().enumerate() {
+            let b = DoubleDouble::from_f64(solution.beta[k])
+                + DoubleDouble::from_f64(solution.beta_low[k]);
+            values.clear();
+            columns.fill::<DoubleDouble>(j, start..end, &mut values);
+            for (f, &v) in fitted[start..end].iter_mut().zip(&values) {
+                *f = *f + v * b;
+            }
+        }
+    }
+    fitted
 }
 
 impl LeastSquares {
@@ -138,6 +186,7 @@ impl LeastSquares {
             kept: solved.kept,
             aliased: solved.aliased,
             beta: solved.beta,
+            beta_low: solved.beta_low,
             xtx_inv: solved.xtx_inv,
             effects: solved.effects,
             leverage: solved.leverage,

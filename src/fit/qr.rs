@@ -39,6 +39,8 @@ pub trait Real:
     fn of(x: f64) -> Self;
     /// The nearest `f64`.
     fn value(self) -> f64;
+    /// What rounding to [`Real::value`] left over (0 for an `f64`).
+    fn remainder(self) -> f64;
     /// Square root.
     fn sqrt(self) -> Self;
     /// Absolute value.
@@ -51,6 +53,9 @@ impl Real for f64 {
     }
     fn value(self) -> f64 {
         self
+    }
+    fn remainder(self) -> f64 {
+        0.0
     }
     fn sqrt(self) -> Self {
         f64::sqrt(self)
@@ -66,6 +71,9 @@ impl Real for DoubleDouble {
     }
     fn value(self) -> f64 {
         f64::from(self)
+    }
+    fn remainder(self) -> f64 {
+        (self - DoubleDouble::from_f64(f64::from(self))).hi()
     }
     fn sqrt(self) -> Self {
         DoubleDouble::sqrt(self)
@@ -84,6 +92,9 @@ pub struct Solved {
     pub aliased: Vec<usize>,
     /// Coefficients of the kept columns.
     pub beta: DVector<f64>,
+    /// What rounding the coefficients to `beta` left over: zeros from a
+    /// double-precision solve.
+    pub beta_low: Vec<f64>,
     /// (X'X)⁻¹ over the kept columns, as R⁻¹R⁻ᵀ unscaled.
     pub xtx_inv: DMatrix<f64>,
     /// The first `kept.len()` entries of Qᵀy.
@@ -235,6 +246,7 @@ pub(super) fn solve_absorbing<T: Real>(
     let leverage = leverage_of_rows;
     Solved {
         beta: DVector::from_iterator(rank, beta.iter().map(|b| b.value())),
+        beta_low: beta.iter().map(|b| b.remainder()).collect(),
         xtx_inv,
         effects: effects.iter().map(|e| e.value()).collect(),
         leverage,
@@ -300,14 +312,17 @@ pub struct Effects {
     pub r: DMatrix<f64>,
 }
 
-/// [`Effects`] of the regression of `y` on `columns`.
-pub fn effects(columns: Columns<'_>, y: &DVector<f64>) -> Effects {
-    let Factored { factor, qty, .. } = factored::<f64>(columns, y, ABSORB_FROM);
+/// [`Effects`] of the regression of `y` on `columns`, in the arithmetic `T`.
+pub fn effects<T: Real>(columns: Columns<'_>, y: &DVector<f64>) -> Effects {
+    let Factored { factor, qty, .. } = factored::<T>(columns, y, ABSORB_FROM);
     let rank = factor.kept.len();
     Effects {
-        sse: qty[rank..].iter().map(|e| e * e).sum(),
-        effects: qty[..rank].to_vec(),
-        r: DMatrix::from_fn(rank, rank, |i, j| factor.r(i, j)),
+        sse: qty[rank..]
+            .iter()
+            .fold(T::of(0.0), |s, &e| s + e * e)
+            .value(),
+        effects: qty[..rank].iter().map(|e| e.value()).collect(),
+        r: DMatrix::from_fn(rank, rank, |i, j| factor.r(i, j).value()),
         kept: factor.kept,
     }
 }

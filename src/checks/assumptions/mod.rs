@@ -3,7 +3,7 @@
 //! normal errors (Jarque-Bera, Shapiro-Wilk) and a linear form (RESET).
 //!
 //! Each test is a pure function of the residuals, the design matrix and, for
-//! RESET, the response and fitted values, and returns a [`TestResult`], or
+//! RESET, the response and the fit, and returns a [`TestResult`], or
 //! `None` when the test is undefined for its input: too few rows, residuals
 //! with no spread, values that are not finite, or lengths that do not match.
 //! Rows are taken in the order given, which for the serial-correlation tests
@@ -24,12 +24,12 @@ use statrs::distribution::{ChiSquared, ContinuousCDF, Normal};
 use crate::design::{DesignColumn, DesignMatrix};
 
 mod durbin_watson;
+mod reset;
 mod shapiro_wilk;
 
-use crate::fit::{
-    auxiliary_least_squares, auxiliary_least_squares_with, f_sf, Auxiliary, ALIAS_TOLERANCE,
-};
+use crate::fit::{auxiliary_least_squares, auxiliary_least_squares_with, Auxiliary};
 pub use durbin_watson::{durbin_watson, DW_EXACT_BELOW, DW_EXACT_TOLERANCE};
+pub use reset::{reset, reset_or_why};
 pub use shapiro_wilk::{shapiro_wilk, SHAPIRO_WILK_MAX, SHAPIRO_WILK_MIN};
 
 /// Result of one test.
@@ -173,89 +173,9 @@ pub fn jarque_bera(residuals: &[f64]) -> Option<TestResult> {
     result(statistic, Some(2.0), None, chi_squared_sf(statistic, 2.0))
 }
 
-/// Ramsey's RESET test of the linear form: do powers of the fitted values
-/// explain what the model leaves over?
-///
-/// The columns ŷ² and ŷ³ are added to X and tested by the F test of the
-/// added columns, F = ((SSE₀ − SSE₁)/q) / (SSE₁/(n − p₁)), q the added
-/// columns kept (2 unless aliased), p₁ the kept columns of the augmented
-/// design, SSE₀ and SSE₁ the residual sums of squares without and with them
-/// (Ramsey, J. B. 1969, "Tests for specification errors in classical linear
-/// least-squares regression analysis", Journal of the Royal Statistical
-/// Society B 31(2)). SSE₀ − SSE₁ is the sum of the squared QR effects of
-/// the added columns, so the model is not refitted and the difference keeps
-/// its digits.
-///
-/// `y` is the response, `x` the design (with its intercept) and `fitted`
-/// the model's fitted values. `None` when the lengths differ, neither power
-/// is estimable, no residual degrees of freedom remain, or the augmented
-/// model fits exactly: its residuals are below [`ALIAS_TOLERANCE`] of the
-/// length of y, the rule by which the fit sets aside a column.
-pub fn reset(y: &[f64], x: &DesignMatrix, fitted: &[f64]) -> Option<TestResult> {
-    reset_or_why(y, x, fitted).ok()
-}
-
-/// [`reset`], or why it is not computed, in words.
-///
-/// # Errors
-/// The reason: values that are not finite, powers of the fitted values
-/// that already lie in the model's columns (a saturated model, such as one
-/// categorical predictor alone), no residual degrees of freedom, or an
-/// augmented model that fits exactly.
-pub fn reset_or_why(
-    y: &[f64],
-    x: &DesignMatrix,
-    fitted: &[f64],
-) -> Result<TestResult, &'static str> {
-    let n = y.len();
-    if x.nrows() != n
-        || fitted.len() != n
-        || !all_finite(y)
-        || !all_finite(fitted)
-        || !x.all_finite()
-    {
-        return Err("values that are not finite numbers");
-    }
-    let p = x.ncols();
-    let powers = DesignMatrix::new(
-        n,
-        vec![
-            DesignColumn::values(fitted.iter().map(|f| f * f).collect()),
-            DesignColumn::values(fitted.iter().map(|f| f * f * f).collect()),
-        ],
-    );
-    let ls = auxiliary_least_squares_with(x, &powers, y);
-    let added: f64 = ls
-        .kept
-        .iter()
-        .zip(&ls.effects)
-        .filter(|(&j, _)| j >= p)
-        .map(|(_, e)| e * e)
-        .sum();
-    let df1 = ls.kept.iter().filter(|&&j| j >= p).count();
-    if df1 == 0 {
-        return Err("the squared and cubed fitted values already lie in the model's columns (a saturated model, such as one categorical predictor alone), so there is no curvature for RESET to find");
-    }
-    if ls.kept.len() >= n {
-        return Err(
-            "too few rows: no residual degrees of freedom are left once the powers are added",
-        );
-    }
-    let df2 = n - ls.kept.len();
-    let sse = ls.sse;
-    let total: f64 = y.iter().map(|v| v * v).sum();
-    if !is_positive(sse - (ALIAS_TOLERANCE * ALIAS_TOLERANCE) * total) {
-        return Err("the model with the powers added fits every row exactly");
-    }
-    let (d1, d2) = (df1 as f64, df2 as f64);
-    let statistic = (added / d1) / (sse / d2);
-    result(statistic, Some(d1), Some(d2), f_sf(statistic, d1, d2))
-        .ok_or("sums of squares too large to compute")
-}
-
 /// A [`TestResult`], or `None` when the statistic is not finite (sums of
 /// squares that overflowed).
-fn result(
+pub(super) fn result(
     statistic: f64,
     df: Option<f64>,
     df2: Option<f64>,
@@ -290,11 +210,11 @@ fn polynomial(coefficients: &[f64], x: f64) -> f64 {
 }
 
 /// Whether `v` is above zero (false for NaN).
-fn is_positive(v: f64) -> bool {
+pub(super) fn is_positive(v: f64) -> bool {
     v > 0.0
 }
 
-fn all_finite(values: &[f64]) -> bool {
+pub(super) fn all_finite(values: &[f64]) -> bool {
     values.iter().all(|v| v.is_finite())
 }
 
@@ -477,7 +397,7 @@ mod tests {
         let x = with_intercept(&[&t]);
         let x2 = with_intercept(&[&t, &twice]);
         let e = residuals_of(&x, &y);
-        let fitted: Vec<f64> = y.iter().zip(&e).map(|(y, e)| y - e).collect();
+        let fit = |x: &DMatrix<f64>| least_squares(&dm(x), &DVector::from_column_slice(&y));
         let pairs = [
             (durbin_watson(&e, &dm(&x)), durbin_watson(&e, &dm(&x2))),
             (
@@ -485,7 +405,7 @@ mod tests {
                 breusch_godfrey(&e, &dm(&x2), 2),
             ),
             (breusch_pagan(&e, &dm(&x)), breusch_pagan(&e, &dm(&x2))),
-            (reset(&y, &dm(&x), &fitted), reset(&y, &dm(&x2), &fitted)),
+            (reset(&y, &dm(&x), &fit(&x)), reset(&y, &dm(&x2), &fit(&x2))),
         ];
         for (a, b) in pairs {
             let (a, b) = (a.unwrap(), b.unwrap());
@@ -614,35 +534,5 @@ mod tests {
         assert!(shapiro_wilk(&[5.0; 10]).is_none());
         assert!(shapiro_wilk(&vec![0.0; 5001]).is_none());
         assert!(shapiro_wilk(&[1.0, f64::INFINITY, 2.0]).is_none());
-    }
-
-    #[test]
-    fn reset_finds_a_missing_square() {
-        let t: Vec<f64> = (0..25).map(|i| i as f64 / 4.0).collect();
-        let y: Vec<f64> = t
-            .iter()
-            .enumerate()
-            .map(|(i, v)| 1.0 + v + 0.3 * v * v + 0.05 * ((i * 7 % 5) as f64 - 2.0))
-            .collect();
-        let x = with_intercept(&[&t]);
-        let e = residuals_of(&x, &y);
-        let fitted: Vec<f64> = y.iter().zip(&e).map(|(y, e)| y - e).collect();
-        let r = reset(&y, &dm(&x), &fitted).unwrap();
-        assert_eq!((r.df, r.df2), (Some(2.0), Some(21.0)));
-        assert!(r.p_value.unwrap() < 1e-10, "{r:?}");
-    }
-
-    #[test]
-    fn reset_declines_an_exact_fit_and_constant_fitted_values() {
-        let t = [0.0, 1.0, 2.0, 3.0, 4.0, 5.0];
-        let x = with_intercept(&[&t]);
-        // y = t² exactly: with t² and t³ added the fit is exact.
-        let y: Vec<f64> = t.iter().map(|v| v * v).collect();
-        let e = residuals_of(&x, &y);
-        let fitted: Vec<f64> = y.iter().zip(&e).map(|(y, e)| y - e).collect();
-        assert!(reset(&y, &dm(&x), &fitted).is_none());
-        // Intercept-only model: its fitted powers are aliased with it.
-        let one = DMatrix::from_element(6, 1, 1.0);
-        assert!(reset(&[1.0, 3.0, 2.0, 5.0, 4.0, 6.0], &dm(&one), &[3.5; 6]).is_none());
     }
 }
