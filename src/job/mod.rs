@@ -18,9 +18,11 @@ mod cell_text;
 mod input;
 mod model;
 mod model_file;
+mod terms;
 
 use self::model::{check_roles, forecast_spec, season_spec};
-pub use self::model_file::{CategoricalFile, ForecastFile, ModelFile, SeasonFile};
+pub use self::model_file::{CategoricalFile, ForecastFile, FourierFile, ModelFile, OneOrMany, SeasonFile};
+pub use self::terms::{Cycle, EventKind, EventSpec, FourierSpec, LagSpec, MAX_LAG};
 
 pub use input::{Area, CellRange, CsvFormat, Encoding, InputFile, Limits, Reading, SummaryRows};
 pub use model::{
@@ -378,6 +380,13 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                 forecast_spec(f).map_err(|(k, msg)| invalid(&key(&format!("forecast.{k}")), msg))
             })
             .transpose()?;
+        let lags = terms::lag_specs(m.lag).map_err(|(k, msg)| invalid(&key(&k), msg))?;
+        let events = terms::event_specs(m.step, m.spike, m.ramp, &reading.labels)
+            .map_err(|(k, msg)| invalid(&key(&k), msg))?;
+        let fourier = m
+            .fourier
+            .map(|f| terms::fourier_spec(f).map_err(|(k, msg)| invalid(&key(&k), msg)))
+            .transpose()?;
         let spec = ModelSpec {
             name,
             response: m.response,
@@ -399,6 +408,10 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             max_levels: file.input.max_levels.unwrap_or(DEFAULT_MAX_LEVELS),
             case_sensitive_levels: file.input.case_sensitive_levels.unwrap_or(false),
             labels: reading.labels,
+            log: m.log,
+            lags,
+            events,
+            fourier,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         models.push(spec);

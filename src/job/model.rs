@@ -6,6 +6,7 @@ use std::fmt;
 
 use indexmap::IndexMap;
 
+use super::terms::{EventSpec, FourierSpec, LagSpec};
 use super::{ForecastFile, Robust, SeasonFile};
 use crate::period::{Frequency, LabelRules, SeasonBy};
 
@@ -128,6 +129,14 @@ pub struct ModelSpec {
     /// How period labels read: `date_order` and `fiscal_year_start` under
     /// [input].
     pub labels: LabelRules,
+    /// Predictors entered as their natural log, in job order.
+    pub log: Vec<String>,
+    /// Lagged predictors, in job order.
+    pub lags: Vec<LagSpec>,
+    /// Step, spike and ramp events.
+    pub events: Vec<EventSpec>,
+    /// Fourier seasons.
+    pub fourier: Option<FourierSpec>,
 }
 
 impl ModelSpec {
@@ -156,15 +165,20 @@ impl ModelSpec {
             max_levels: super::DEFAULT_MAX_LEVELS,
             case_sensitive_levels: false,
             labels: LabelRules::default(),
+            log: vec![],
+            lags: vec![],
+            events: vec![],
+            fourier: None,
         }
     }
 
     /// The date column that orders the rows and counts periods: the trend
-    /// column, else the season column.
+    /// column, else the season column, else the Fourier seasons' column.
     pub fn date_column(&self) -> Option<&str> {
         self.trend
             .as_deref()
             .or(self.season.as_ref().map(|s| s.column.as_str()))
+            .or(self.fourier.as_ref().map(|f| f.column.as_str()))
     }
 
     /// Whether the model reads the column `name` (a predictor, the
@@ -181,13 +195,18 @@ impl ModelSpec {
             .chain(self.poly.iter().map(|p| p.column.as_str()))
     }
 
-    /// Every column the model reads: the response first, then predictors in
-    /// job order.
+    /// Every column the model reads, each once: the response first, then
+    /// predictors in job order (numeric, polynomial, categorical, logged,
+    /// lagged).
     pub fn columns(&self) -> impl Iterator<Item = &str> {
+        let mut seen = HashSet::new();
         std::iter::once(self.response.as_str())
             .chain(self.numeric.iter().map(String::as_str))
             .chain(self.poly.iter().map(|p| p.column.as_str()))
             .chain(self.categorical.iter().map(|c| c.column.as_str()))
+            .chain(self.log.iter().map(String::as_str))
+            .chain(self.lags.iter().map(|l| l.column.as_str()))
+            .filter(move |c| seen.insert(*c))
     }
 }
 
@@ -325,6 +344,38 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
             ));
         }
     }
+    let mut logged: HashSet<&str> = HashSet::new();
+    for col in &spec.log {
+        if *col == spec.response {
+            return Err((
+                "log",
+                format!("'{col}' is the response; for a log response write transform = \"log\""),
+            ));
+        }
+        if spec.categorical.iter().any(|c| c.column == *col) {
+            return Err((
+                "log",
+                format!("'{col}' is a categorical predictor; only numbers have logs"),
+            ));
+        }
+        if !logged.insert(col) {
+            return Err(("log", format!("'{col}' is listed twice")));
+        }
+    }
+    for lag in &spec.lags {
+        if lag.column == spec.response {
+            return Err((
+                "lag",
+                format!("'{}' is the response; a lag of the response is not a predictor here (its forecasts would feed on themselves); use trend and seasons, or lags of the drivers", lag.column),
+            ));
+        }
+        if spec.categorical.iter().any(|c| c.column == lag.column) {
+            return Err((
+                "lag",
+                format!("'{}' is a categorical predictor; lags are of numeric columns", lag.column),
+            ));
+        }
+    }
     let time: Vec<&str> = spec
         .trend
         .iter()
@@ -339,10 +390,39 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
             ));
         }
     }
-    if let Some(&date) = time.first() {
-        if seen.contains(date) {
+    if let (Some(fourier), Some(&date)) = (&spec.fourier, time.first()) {
+        if fourier.column != date {
             return Err((
-                if spec.trend.is_some() { "trend" } else { "season" },
+                "fourier.column",
+                format!("'{}' differs from the date column '{date}' of the trend or season; read them from one date column", fourier.column),
+            ));
+        }
+    }
+    let time: Vec<&str> = spec.date_column().into_iter().collect();
+    if time.is_empty() {
+        if !spec.lags.is_empty() {
+            return Err((
+                "lag",
+                "needs periods to count back: add `trend` or `season` with the date column".into(),
+            ));
+        }
+        if let Some(event) = spec.events.first() {
+            return Err((
+                event.kind.key(),
+                "needs periods: add `trend` or `season` with the date column".into(),
+            ));
+        }
+    }
+    if let Some(&date) = time.first() {
+        if seen.contains(date) || logged.contains(date) || spec.lags.iter().any(|l| l.column == date) {
+            return Err((
+                if spec.trend.is_some() {
+                    "trend"
+                } else if spec.season.is_some() {
+                    "season"
+                } else {
+                    "fourier.column"
+                },
                 format!("'{date}' is already the response or a predictor; the date column plays no other role"),
             ));
         }
@@ -405,9 +485,8 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
             ));
         }
     }
-    if spec.numeric.is_empty()
-        && spec.poly.is_empty()
-        && spec.categorical.is_empty()
+    if spec.columns().nth(1).is_none()
+        && spec.events.is_empty()
         && time.is_empty()
         && !spec.intercept
     {

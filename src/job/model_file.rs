@@ -55,6 +55,55 @@ pub struct ModelFile {
     /// `"HC3"` or `"HC1"` for heteroscedasticity-consistent standard
     /// errors of the coefficients; default the classical ones.
     pub standard_errors: Option<String>,
+    /// Predictors entered as their natural log, each a term `ln(column)`.
+    #[serde(default, deserialize_with = "column_names")]
+    pub log: Vec<String>,
+    /// Lags of predictors by period: `column = [1, 2]` (or one number).
+    #[serde(default)]
+    pub lag: IndexMap<String, OneOrMany<u32>>,
+    /// Step events: `name = "period"`, 0 before that period and 1 from it.
+    #[serde(default)]
+    pub step: IndexMap<String, String>,
+    /// Spike events: `name = ["period", ...]`, 1 in those periods only.
+    #[serde(default)]
+    pub spike: IndexMap<String, OneOrMany<String>>,
+    /// Ramp events: `name = "period"`, 0 before, then 1, 2, 3, ...
+    #[serde(default)]
+    pub ramp: IndexMap<String, String>,
+    /// Fourier seasons: sine and cosine pairs of the date column's cycle.
+    pub fourier: Option<FourierFile>,
+}
+
+/// The `fourier` table of a model.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FourierFile {
+    /// The date column.
+    pub column: String,
+    /// The cycle: `year` (or `week`, for daily data).
+    pub period: String,
+    /// How many sine and cosine pairs.
+    pub pairs: u32,
+}
+
+/// One value or a list of them.
+#[derive(Debug, Deserialize)]
+#[serde(untagged)]
+pub enum OneOrMany<T> {
+    /// `x = 1`
+    One(T),
+    /// `x = [1, 2]`
+    Many(Vec<T>),
+}
+
+impl<T> OneOrMany<T> {
+    /// The values as a list.
+    pub fn into_vec(self) -> Vec<T> {
+        match self {
+            OneOrMany::One(v) => vec![v],
+            OneOrMany::Many(v) => v,
+        }
+    }
 }
 
 /// The `season` table of a model.
