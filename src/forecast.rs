@@ -203,13 +203,20 @@ pub fn forecast(
         let e = &fit.solution.residuals;
         e.iter().map(|r| r.exp()).sum::<f64>() / e.len() as f64
     });
+    // Each row's lags read the data and the rows before it.
+    let mut history = design.lag_history.clone();
+    for (_, row) in &rows {
+        history.record(row);
+    }
     rows.into_iter()
         .map(|(place, row)| {
-            let x0 = design.encode(&row).map_err(|source| ForecastError::Row {
-                model: spec.name.clone(),
-                place: place.clone(),
-                source,
-            })?;
+            let x0 = design
+                .encode(&row, &history)
+                .map_err(|source| ForecastError::Row {
+                    model: spec.name.clone(),
+                    place: place.clone(),
+                    source,
+                })?;
             let p = predict(fit, &x0).map_err(|j| ForecastError::Aliased {
                 model: spec.name.clone(),
                 place: place.clone(),

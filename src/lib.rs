@@ -463,8 +463,13 @@ fn describe_model(
     if !design.dropped.is_empty() {
         let _ = writeln!(
             out,
-            "  {} rows left out for blank cells: sheet rows {}",
+            "  {} rows left out for blank cells{}: sheet rows {}",
             design.dropped.len(),
+            if spec.lags.is_empty() {
+                ""
+            } else {
+                " or lags with no value"
+            },
             row_ranges(&design.dropped)
         );
     }

@@ -242,6 +242,7 @@ mod tests {
             dropped: Vec::new(),
             timing: None,
             log_response: false,
+            lag_history: Default::default(),
         }
     }
 

@@ -197,6 +197,57 @@ pub enum DesignError {
         /// The series' frequency.
         frequency: &'static str,
     },
+    /// A predictor listed under `log` with a value at or below zero.
+    #[error("model '{model}': {place}, cell {cell} in '{column}' holds {value}, and {count} cells of the column are at or below zero; `log` needs every value above zero: correct or clear those cells, or take '{column}' off `log`")]
+    LogNotPositive {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The first such cell.
+        cell: CellRef,
+        /// Its value.
+        value: f64,
+        /// How many cells of the rows used are at or below zero.
+        count: usize,
+    },
+    /// An event's period is of another frequency than the date column.
+    #[error("model '{model}', key `{key}`: '{written}' is not a {frequency} like the periods of the date column; write a {frequency} such as {example}")]
+    EventPeriod {
+        /// The model.
+        model: String,
+        /// The job key, e.g. `step.new_law`.
+        key: String,
+        /// The period as written.
+        written: String,
+        /// The date column's frequency.
+        frequency: &'static str,
+        /// A period of that frequency, written as the tool writes it.
+        example: String,
+    },
+    /// Fourier seasons whose cycle is not longer than a period, or with
+    /// more pairs than the cycle has room for.
+    #[error("model '{model}', key `fourier`: {why}")]
+    Fourier {
+        /// The model.
+        model: String,
+        /// What is wrong and what to write.
+        why: String,
+    },
+    /// Lags of a sheet with several rows in one period.
+    #[error("model '{model}': lags need one row per period, but period {period} has several rows ({first} and {second}); fit one series per model (filter the sheet), or leave out `lag`")]
+    LagsOfPanel {
+        /// The model.
+        model: String,
+        /// The period.
+        period: String,
+        /// One of its rows.
+        first: CellRef,
+        /// Another.
+        second: CellRef,
+    },
     /// A response that cannot be logged.
     #[error("model '{model}': {place}, cell {cell} in response '{column}' holds {value}; `transform = \"log\"` needs every response value above zero")]
     NotPositive {

@@ -3,8 +3,10 @@
 
 use std::collections::HashMap;
 
+use super::events::event_value;
+use super::fourier::fourier_values;
 use super::polynomial::powers;
-use super::{quoted, Design, TermKind};
+use super::{quoted, Design, LagHistory, TermKind};
 use crate::period::Period;
 use crate::source::Value;
 
@@ -47,6 +49,24 @@ pub enum EncodeError {
         /// The known levels, quoted.
         levels: String,
     },
+    /// A predictor under `log` at or below zero.
+    #[error("gives '{column}' the value {value}, which has no log; `log` needs values above zero")]
+    NotPositive {
+        /// The predictor.
+        column: String,
+        /// The value.
+        value: f64,
+    },
+    /// A lag reaches a period with no value in the data or an earlier row.
+    #[error("needs '{column}' of {period} for its lag {lag}, and neither the data nor an earlier forecast row has it")]
+    NoLag {
+        /// The predictor.
+        column: String,
+        /// The lag.
+        lag: u32,
+        /// The period the lag reaches.
+        period: String,
+    },
     /// The model needs a period and the row has none.
     #[error("has no period for the trend or season")]
     NoPeriod,
@@ -54,12 +74,15 @@ pub enum EncodeError {
 
 impl Design {
     /// The design-matrix row of `row`, in the columns of `x`: the same
-    /// coding as the data (powers, indicators against the baselines, the
-    /// trend index counted from the first period, season indicators).
+    /// coding as the data (powers, logs, indicators against the baselines,
+    /// the trend index counted from the first period, season indicators,
+    /// Fourier pairs, events), its lags read from `history` (the data's and
+    /// earlier forecast rows' values).
     ///
     /// # Errors
-    /// [`EncodeError`] for a missing or unsuitable value, or an unseen level.
-    pub fn encode(&self, row: &FutureRow) -> Result<Vec<f64>, EncodeError> {
+    /// [`EncodeError`] for a missing or unsuitable value, an unseen level or
+    /// a lag with no value.
+    pub fn encode(&self, row: &FutureRow, history: &LagHistory) -> Result<Vec<f64>, EncodeError> {
         let mut out = Vec::with_capacity(self.x.ncols());
         let number = |column: &str| -> Result<f64, EncodeError> {
             match row.values.get(column) {
@@ -87,10 +110,32 @@ impl Design {
                             .map(|c| c.column.get(0) + c.column.low(0)),
                     );
                 }
-                TermKind::Trend => {
+                TermKind::Trend => out.push(self.index_of(period()?) as f64),
+                TermKind::Log => {
+                    let x = number(&term.column)?;
+                    if x <= 0.0 {
+                        return Err(EncodeError::NotPositive {
+                            column: term.column.clone(),
+                            value: x,
+                        });
+                    }
+                    out.push(x.ln());
+                }
+                TermKind::Lag { lag } => {
                     let p = period()?;
-                    let index = self.timing.as_ref().map_or(0, |t| t.index(p));
-                    out.push(index as f64);
+                    let value =
+                        history
+                            .value(&term.column, p, *lag)
+                            .ok_or_else(|| EncodeError::NoLag {
+                                column: term.column.clone(),
+                                lag: *lag,
+                                period: p.plus(-i64::from(*lag)).to_string(),
+                            })?;
+                    out.push(value);
+                }
+                TermKind::Event { kind, at } => out.push(event_value(*kind, at, period()?)),
+                TermKind::Fourier { per_cycle, pairs } => {
+                    out.extend(fourier_values(*per_cycle, *pairs, self.index_of(period()?)));
                 }
                 TermKind::Season {
                     by,
@@ -147,5 +192,10 @@ impl Design {
             }
         }
         Ok(out)
+    }
+
+    /// The trend index of `period` (0 without a date column).
+    fn index_of(&self, period: Period) -> i64 {
+        self.timing.as_ref().map_or(0, |t| t.index(period))
     }
 }

@@ -15,7 +15,11 @@
 
 mod categorical;
 mod error;
+mod events;
+mod fourier;
 mod future;
+mod lags;
+mod logs;
 mod matrix;
 mod polynomial;
 mod term;
@@ -29,6 +33,7 @@ use crate::suggest::closest;
 
 pub use error::DesignError;
 pub use future::{EncodeError, FutureRow};
+pub use lags::LagHistory;
 
 use self::categorical::indicators;
 use self::polynomial::powers;
@@ -61,6 +66,8 @@ pub struct Design {
     pub timing: Option<Timing>,
     /// Whether `y` holds the natural log of the response.
     pub log_response: bool,
+    /// The lagged columns' values by period, for forecast rows' lags.
+    pub lag_history: LagHistory,
 }
 
 /// Builds the design for `model` from `table`.
@@ -85,9 +92,26 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .iter()
         .map(|p| ctx.column(&p.column))
         .collect::<Result<Vec<_>, _>>()?;
-    for column in numeric.iter().chain(&poly) {
+    let logged = model
+        .log
+        .iter()
+        .map(|name| ctx.column(name))
+        .collect::<Result<Vec<_>, _>>()?;
+    for column in numeric.iter().chain(&poly).chain(&logged) {
         ctx.check_numbers(column, &mut usable)?;
     }
+    // A lagged column's own blanks leave no row out: only the rows whose
+    // lags are blank go.
+    let lagged = model
+        .lags
+        .iter()
+        .map(|l| ctx.column(&l.column))
+        .collect::<Result<Vec<_>, _>>()?;
+    let mut scratch = vec![true; table.rows.len()];
+    for column in &lagged {
+        ctx.check_numbers(column, &mut scratch)?;
+    }
+    drop(scratch);
     let labels = model
         .categorical
         .iter()
@@ -115,14 +139,23 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             columns: quoted(&model.columns().map(str::to_string).collect::<Vec<_>>()),
         });
     }
-    let dropped = (0..table.rows.len())
-        .filter(|i| keep.binary_search(i).is_err())
-        .map(|i| table.rows[i])
-        .collect();
     let mut keep = keep;
+    let mut history = LagHistory::default();
     let timing = match &dates {
         Some((column, stamps)) => {
-            let t = time::timing(&ctx, column, stamps, &keep, model.frequency)?;
+            let mut t = time::timing(&ctx, column, stamps, &keep, model.frequency)?;
+            if !model.lags.is_empty() {
+                lags::refuse_panel(&ctx, column, &keep, &t)?;
+                history = LagHistory::of_data(&lagged, stamps, &t);
+                (keep, t) = lags::keep_rows_with_lags(&model.lags, &history, keep, t);
+                if keep.is_empty() {
+                    return Err(DesignError::NoUsableRows {
+                        model: model.name.clone(),
+                        place: table.place(),
+                        columns: quoted(&model.columns().map(str::to_string).collect::<Vec<_>>()),
+                    });
+                }
+            }
             let mut order: Vec<usize> = (0..keep.len()).collect();
             order.sort_by_key(|&k| t.periods[k]);
             keep = order.iter().map(|&k| keep[k]).collect();
@@ -132,6 +165,16 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             })
         }
         None => None,
+    };
+    let dropped = {
+        let mut used = vec![false; table.rows.len()];
+        for &i in &keep {
+            used[i] = true;
+        }
+        (0..table.rows.len())
+            .filter(|&i| !used[i])
+            .map(|i| table.rows[i])
+            .collect()
     };
     let used = |column: &Column| -> Vec<f64> { keep.iter().map(|&i| number(column, i)).collect() };
     let y = used(response);
@@ -174,6 +217,34 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             powers(&spec.column, &used(column), spec.degree),
         );
     }
+    for column in &logged {
+        let name = format!("ln({})", column.name);
+        let values = used(column);
+        parts.push(
+            &column.name,
+            &name,
+            TermKind::Log,
+            logs::log_column(&ctx, column, &keep, &values)?,
+        );
+    }
+    if let Some(t) = &timing {
+        for spec in &model.lags {
+            for &lag in &spec.lags {
+                let name = format!("{} (lag {lag})", spec.column);
+                let values = t
+                    .periods
+                    .iter()
+                    .map(|&p| history.value(&spec.column, p, lag).unwrap_or(f64::NAN))
+                    .collect();
+                parts.push(
+                    &spec.column,
+                    &name,
+                    TermKind::Lag { lag },
+                    vec![NamedColumn::new(&name, DesignColumn::values(values))],
+                );
+            }
+        }
+    }
     drop(dates);
     // Without an intercept the first factor (seasons come before the
     // categorical predictors) gets an indicator for every level, so that
@@ -203,6 +274,32 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
                     every_level: std::mem::take(&mut every_level),
                 },
                 time::season_columns(season.by, baseline, seasons),
+            );
+        }
+        if let Some(spec) = &model.fourier {
+            let per_cycle = fourier::periods_per_cycle(&ctx, spec, t)?;
+            let index: Vec<i64> = t.periods.iter().map(|&p| t.index(p)).collect();
+            parts.push(
+                &t.column,
+                "fourier",
+                TermKind::Fourier {
+                    per_cycle,
+                    pairs: spec.pairs,
+                },
+                fourier::fourier_columns(per_cycle, spec.pairs, &index),
+            );
+        }
+        for event in &model.events {
+            let at = events::event_periods(&ctx, event, t)?;
+            let column = events::event_column(&event.name, event.kind, &at, &t.periods);
+            parts.push(
+                &t.column,
+                &event.name,
+                TermKind::Event {
+                    kind: event.kind,
+                    at,
+                },
+                column,
             );
         }
     }
@@ -262,6 +359,7 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         dropped,
         timing,
         log_response: model.log_response,
+        lag_history: history,
     })
 }
 
@@ -315,6 +413,7 @@ impl Design {
                 ..t.clone()
             }),
             log_response: self.log_response,
+            lag_history: self.lag_history.clone(),
         }
     }
 

@@ -1,11 +1,11 @@
 //! Model terms: the groups of design-matrix columns tested together, and
 //! what each stands for.
 
-use crate::job::Baseline;
-use crate::period::SeasonBy;
+use crate::job::{Baseline, EventKind};
+use crate::period::{Period, SeasonBy};
 
 /// What a design-matrix column stands for.
-#[derive(Debug, Clone, PartialEq, Eq)]
+#[derive(Debug, Clone, PartialEq)]
 pub enum TermKind {
     /// The constant column of ones.
     Intercept,
@@ -33,6 +33,28 @@ pub enum TermKind {
         /// Index of the second term.
         right: usize,
     },
+    /// The natural log of a numeric predictor, named `ln(column)`.
+    Log,
+    /// A numeric predictor `lag` periods earlier, named `column (lag k)`.
+    Lag {
+        /// Periods back.
+        lag: u32,
+    },
+    /// An event over the periods, named after its key in the job.
+    Event {
+        /// Step, spike or ramp.
+        kind: EventKind,
+        /// Its periods (one for a step or ramp).
+        at: Vec<Period>,
+    },
+    /// Sine and cosine pairs of the period index over a cycle of
+    /// `per_cycle` periods, named `fourier sin 1`, `fourier cos 1`, ….
+    Fourier {
+        /// Periods in one cycle (12 months, 52.18 weeks, ... a year).
+        per_cycle: f64,
+        /// Number of pairs.
+        pairs: u32,
+    },
     /// A numeric predictor and its powers up to `degree`.
     Polynomial {
         /// Highest power.
@@ -54,7 +76,7 @@ pub enum TermKind {
 }
 
 /// A model term: a group of design-matrix columns tested together.
-#[derive(Debug, Clone, PartialEq, Eq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Term {
     /// "Intercept", "trend", "season", the column name, or for a
     /// polynomial "x (degree 3)".

@@ -21,7 +21,9 @@ mod model_file;
 mod terms;
 
 use self::model::{check_roles, forecast_spec, season_spec};
-pub use self::model_file::{CategoricalFile, ForecastFile, FourierFile, ModelFile, OneOrMany, SeasonFile};
+pub use self::model_file::{
+    CategoricalFile, ForecastFile, FourierFile, ModelFile, OneOrMany, SeasonFile,
+};
 pub use self::terms::{Cycle, EventKind, EventSpec, FourierSpec, LagSpec, MAX_LAG};
 
 pub use input::{Area, CellRange, CsvFormat, Encoding, InputFile, Limits, Reading, SummaryRows};

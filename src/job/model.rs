@@ -372,7 +372,10 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
         if spec.categorical.iter().any(|c| c.column == lag.column) {
             return Err((
                 "lag",
-                format!("'{}' is a categorical predictor; lags are of numeric columns", lag.column),
+                format!(
+                    "'{}' is a categorical predictor; lags are of numeric columns",
+                    lag.column
+                ),
             ));
         }
     }
@@ -414,7 +417,10 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
         }
     }
     if let Some(&date) = time.first() {
-        if seen.contains(date) || logged.contains(date) || spec.lags.iter().any(|l| l.column == date) {
+        if seen.contains(date)
+            || logged.contains(date)
+            || spec.lags.iter().any(|l| l.column == date)
+        {
             return Err((
                 if spec.trend.is_some() {
                     "trend"

@@ -147,14 +147,19 @@ pub(super) fn event_specs(
                 .into_iter()
                 .map(|(n, at)| (EventKind::Spike, n, at.into_vec())),
         )
-        .chain(ramp.into_iter().map(|(n, at)| (EventKind::Ramp, n, vec![at])));
+        .chain(
+            ramp.into_iter()
+                .map(|(n, at)| (EventKind::Ramp, n, vec![at])),
+        );
     let mut events: Vec<EventSpec> = Vec::new();
     for (kind, name, written) in tables {
         let key = format!("{}.{name}", kind.key());
         if name.trim().is_empty() || ["Intercept", "trend", "season"].contains(&name.as_str()) {
             return Err((
                 key,
-                format!("'{name}' cannot name an event; choose a name of your own, such as new_law"),
+                format!(
+                    "'{name}' cannot name an event; choose a name of your own, such as new_law"
+                ),
             ));
         }
         if let Some(earlier) = events.iter().find(|e| e.name == name) {
@@ -167,10 +172,7 @@ pub(super) fn event_specs(
             ));
         }
         if written.is_empty() {
-            return Err((
-                key,
-                "lists no periods; write e.g. [\"2024-03\"]".into(),
-            ));
+            return Err((key, "lists no periods; write e.g. [\"2024-03\"]".into()));
         }
         let at = written
             .iter()
@@ -201,7 +203,10 @@ pub(super) fn fourier_spec(f: FourierFile) -> Result<FourierSpec, Refusal> {
         _ => {
             return Err((
                 "fourier.period".into(),
-                format!("'{}' is not a cycle; use \"year\" (or \"week\" for daily data)", f.period),
+                format!(
+                    "'{}' is not a cycle; use \"year\" (or \"week\" for daily data)",
+                    f.period
+                ),
             ))
         }
     };

@@ -1,0 +1,190 @@
+//! The forecaster's terms: logs and lags of predictors, step, spike and
+//! ramp events, and Fourier seasons, fitted and forecast.
+//!
+//! Source of the expected values: statsmodels 0.15.0 OLS and
+//! get_prediction on columns built independently in pandas (exact versions
+//! in the fixture's `source` field), produced once by
+//! tests/reference/make_terms_reference.py and committed with its data in
+//! tests/fixtures/terms/: statsmodels' quarterly US macro data (with a
+//! missing quarter and a blank response) and its weekly CO2 series. The run
+//! needs no Python.
+
+mod common;
+
+use std::path::PathBuf;
+
+use common::{assert_close, read_json, sheetfit, stderr, Scratch};
+use serde_json::Value;
+
+fn fixture(name: &str) -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/fixtures/terms")
+        .join(name)
+}
+
+/// Agreement of two solvers of the same problem.
+const TOL: f64 = 1e-9;
+
+fn expected(case: &str) -> Value {
+    read_json(&fixture("expected.json"))["cases"][case].clone()
+}
+
+/// Runs the case's job on its data and returns (expected, our model).
+fn run(case: &str) -> (Value, Value) {
+    let expected = expected(case);
+    let scratch = Scratch::new();
+    let data = expected["data"].as_str().expect("data");
+    std::fs::copy(fixture(data), scratch.path("data.csv")).expect("copy fixture");
+    scratch.write("job.toml", expected["job"].as_str().expect("job"));
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let ours = read_json(&scratch.path("report.json"))["models"][0].clone();
+    (expected, ours)
+}
+
+fn f(v: &Value, key: &str) -> f64 {
+    v[key]
+        .as_f64()
+        .unwrap_or_else(|| panic!("{key} is not a number in {v}"))
+}
+
+/// Coefficients by position and name, the degrees of freedom and the fit
+/// statistics (source: statsmodels OLS).
+fn assert_fit(case: &str, expected: &Value, ours: &Value) {
+    for key in ["n", "df_model", "df_resid"] {
+        assert_eq!(ours[key], expected[key], "{case} {key}");
+    }
+    let exp = expected["coefficients"].as_array().expect("coefficients");
+    let got = ours["coefficients"].as_array().expect("coefficients");
+    assert_eq!(got.len(), exp.len(), "{case}");
+    for (g, e) in got.iter().zip(exp) {
+        let term = e["term"].as_str().expect("term");
+        assert_eq!(g["term"], e["term"], "{case}");
+        for key in [
+            "estimate",
+            "std_error",
+            "t_stat",
+            "p_value",
+            "ci_lower",
+            "ci_upper",
+        ] {
+            assert_close(&format!("{case} {term} {key}"), f(g, key), f(e, key), TOL);
+        }
+    }
+    for key in [
+        "r_squared",
+        "adj_r_squared",
+        "sigma",
+        "f_stat",
+        "aic",
+        "bic",
+    ] {
+        assert_close(
+            &format!("{case} {key}"),
+            f(&ours["fit"], key),
+            f(&expected["fit"], key),
+            TOL,
+        );
+    }
+}
+
+/// Forecast rows: period, index, estimate and both intervals (source:
+/// statsmodels get_prediction, exp() of it for a log response).
+fn assert_forecast(case: &str, expected: &Value, ours: &Value) {
+    let exp = expected["forecast"].as_array().expect("forecast");
+    let got = ours["forecast"].as_array().expect("forecast");
+    assert_eq!(got.len(), exp.len(), "{case}");
+    for (g, e) in got.iter().zip(exp) {
+        assert_eq!(g["period"], e["period"], "{case}");
+        assert_eq!(g["index"], e["index"], "{case}");
+        for key in [
+            "estimate",
+            "mean_lower",
+            "mean_upper",
+            "pred_lower",
+            "pred_upper",
+        ] {
+            let what = format!("{case} forecast {} {key}", e["period"]);
+            assert_close(&what, f(g, key), f(e, key), TOL);
+        }
+    }
+}
+
+#[test]
+fn logs_lags_and_events_match_the_reference_and_forecast_from_the_last_quarters() {
+    let (expected, ours) = run("macro");
+    assert_fit("macro", &expected, &ours);
+    // The first two quarters have no lags, 1985Q2 no response, and the two
+    // quarters after the missing 1990Q3 no lag 1 or lag 2.
+    assert_eq!(ours["dropped_rows"], expected["dropped_rows"]);
+    assert_forecast("macro", &expected, &ours);
+}
+
+#[test]
+fn fourier_pairs_of_the_year_on_weekly_data_match_the_reference() {
+    let (expected, ours) = run("fourier");
+    assert_fit("fourier", &expected, &ours);
+    assert_forecast("fourier", &expected, &ours);
+}
+
+/// Runs `job` on the macro data and returns the failure message.
+fn refusal(job: &str) -> String {
+    let scratch = Scratch::new();
+    std::fs::copy(fixture("macro.csv"), scratch.path("data.csv")).expect("copy fixture");
+    scratch.write("job.toml", job);
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(!out.status.success(), "the job should stop");
+    stderr(&out)
+}
+
+const HEAD: &str =
+    "[input]\nworkbook = \"data.csv\"\n[[model]]\nname = \"m\"\nresponse = \"realcons\"\n";
+
+#[test]
+fn terms_that_cannot_be_formed_stop_the_job_naming_the_key_or_cell() {
+    let message = refusal(&format!("{HEAD}lag = {{ realinv = [1] }}\n"));
+    assert!(
+        message.contains("model[1].lag") && message.contains("trend"),
+        "{message}"
+    );
+    let message = refusal(&format!(
+        "{HEAD}trend = \"quarter\"\nstep = {{ change = \"2024-13\" }}\n"
+    ));
+    assert!(message.contains("model[1].step.change"), "{message}");
+    let message = refusal(&format!(
+        "{HEAD}trend = \"quarter\"\nstep = {{ change = \"1980-03\" }}\n"
+    ));
+    assert!(
+        message.contains("step.change") && message.contains("quarter"),
+        "{message}"
+    );
+    let message = refusal(&format!(
+        "{HEAD}trend = \"quarter\"\nfourier = {{ column = \"quarter\", period = \"year\", pairs = 3 }}\n"
+    ));
+    assert!(message.contains("at most 2"), "{message}");
+    let message = refusal(&format!(
+        "{HEAD}trend = \"quarter\"\nlag = {{ realcons = [1] }}\n"
+    ));
+    assert!(message.contains("response"), "{message}");
+}
+
+#[test]
+fn a_log_of_a_value_at_or_below_zero_names_the_cell_and_the_count() {
+    let scratch = Scratch::new();
+    let text = std::fs::read_to_string(fixture("macro.csv")).expect("fixture");
+    let mut lines: Vec<String> = text.lines().map(str::to_string).collect();
+    for row in [5, 9] {
+        let mut cells: Vec<&str> = lines[row - 1].split(',').collect();
+        cells[2] = "0";
+        lines[row - 1] = cells.join(",");
+    }
+    scratch.write("data.csv", &(lines.join("\n") + "\n"));
+    scratch.write("job.toml", &format!("{HEAD}log = [\"realgdp\"]\n"));
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    let message = stderr(&out);
+    assert!(!out.status.success());
+    assert!(
+        message.contains("C5") && message.contains("2 cells"),
+        "{message}"
+    );
+}
