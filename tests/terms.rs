@@ -118,6 +118,16 @@ fn logs_lags_and_events_match_the_reference_and_forecast_from_the_last_quarters(
     // quarters after the missing 1990Q3 no lag 1 or lag 2.
     assert_eq!(ours["dropped_rows"], expected["dropped_rows"]);
     assert_forecast("macro", &expected, &ours);
+    // With a log response the log of a driver is an elasticity, said in
+    // words on the overview with the reference's estimate.
+    let elasticity = f(&expected["coefficients"][1], "estimate");
+    let note = ours["term_notes"][0].as_str().expect("a note");
+    assert!(
+        note.contains(&format!(
+            "1 % more realgdp goes with about {elasticity:.3} % more realcons"
+        )),
+        "{note}"
+    );
 }
 
 #[test]

@@ -15,6 +15,7 @@ use crate::job::Job;
 
 pub mod changes;
 pub mod model;
+pub mod terms;
 
 pub use changes::RunChanges;
 pub use model::{analyse, equation, ModelResults};

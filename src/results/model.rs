@@ -112,6 +112,9 @@ pub struct ModelResults {
     pub dropped_rows: Vec<u32>,
     /// Baseline of each categorical predictor.
     pub baselines: Vec<BaselineNote>,
+    /// How the derived terms (logs, lags, events, Fourier seasons) are
+    /// formed and read, in words.
+    pub term_notes: Vec<String>,
     /// Coefficients left out as perfect combinations of earlier ones.
     pub aliased: Vec<String>,
     /// The fitted equation written out with its numbers.
@@ -231,6 +234,7 @@ pub fn analyse(
         df_resid: fit.df_resid,
         dropped_rows: design.dropped.clone(),
         baselines,
+        term_notes: super::terms::term_notes(design, fit),
         aliased: fit.aliased.clone(),
         equation: equation(
             &if design.log_response {

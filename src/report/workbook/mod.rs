@@ -700,6 +700,7 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
             b.levels.join(", ")
         ));
     }
+    notes.extend(m.term_notes.iter().cloned());
     for a in &m.aliased {
         notes.push(format!(
             "{a} is an exact combination of earlier columns (aliased) and was left out of the fit."
