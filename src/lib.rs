@@ -164,8 +164,17 @@ fn model_results(
             _ => None,
         };
         let rows = forecast::forecast(spec, &design, &fit, plan.as_ref())?;
+        let scenario_sheet = match &spec.scenarios {
+            Some(job::ScenarioSpec::Sheet { sheet, header_row }) => {
+                Some(input.read_table(Some(sheet), *header_row, &job.limits)?)
+            }
+            _ => None,
+        };
+        let scenarios = forecast::scenarios(spec, &design, &fit, scenario_sheet.as_ref())?;
         let backtest = forecast::backtest(spec, &design, &fit)?;
-        models.push(analyse(spec, &design, &fit, rows, backtest));
+        let mut results = analyse(spec, &design, &fit, rows, backtest);
+        results.scenarios = scenarios;
+        models.push(results);
         candidates.push(compare::Candidate::new(&spec.name, &design, &fit));
         let name = format!("{} (suggested)", spec.name);
         let suggested = match scope {

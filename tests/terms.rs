@@ -198,3 +198,98 @@ fn a_log_of_a_value_at_or_below_zero_names_the_cell_and_the_count() {
         "{message}"
     );
 }
+
+/// Scenario rows against the reference (source: statsmodels formula OLS of
+/// ln(revenue) and get_prediction, exp() of its limits; the smeared mean
+/// exp(estimate) × mean(exp(residuals)), Duan 1983).
+fn assert_scenarios(expected: &Value, ours: &Value) {
+    let exp = expected["scenarios"].as_array().expect("scenarios");
+    let got = ours["scenarios"].as_array().expect("scenarios");
+    assert_eq!(got.len(), exp.len());
+    for (g, e) in got.iter().zip(exp) {
+        assert_eq!(g["name"], e["name"]);
+        for key in [
+            "estimate",
+            "mean_lower",
+            "mean_upper",
+            "pred_lower",
+            "pred_upper",
+            "smeared_mean",
+        ] {
+            let what = format!("scenario {} {key}", e["name"]);
+            assert_close(&what, f(g, key), f(e, key), TOL);
+        }
+    }
+}
+
+#[test]
+fn scenarios_written_in_the_job_predict_a_model_without_dates() {
+    let (expected, ours) = run("scenarios");
+    assert_scenarios(&expected, &ours);
+}
+
+#[test]
+fn scenarios_from_a_sheet_match_those_written_in_the_job() {
+    use common::Cell::{N, S, T};
+    let expected = expected("scenarios");
+    let scratch = Scratch::new();
+    let text = std::fs::read_to_string(fixture("../categorical/data.csv")).expect("fixture");
+    let mut data: Vec<Vec<common::Cell>> = Vec::new();
+    for (k, line) in text.lines().enumerate() {
+        data.push(
+            line.split(',')
+                .enumerate()
+                .map(|(j, v)| match (k, j) {
+                    (0, _) | (_, 3 | 4) => S(v.to_string()),
+                    _ => N(v.parse().expect("a number")),
+                })
+                .collect(),
+        );
+    }
+    let mut sheet = vec![vec![
+        T("name"),
+        T("floor_area"),
+        T("staff_hours"),
+        T("region"),
+        T("format"),
+    ]];
+    for s in expected["inputs"].as_array().expect("inputs") {
+        sheet.push(vec![
+            S(s["name"].as_str().expect("name").into()),
+            N(f(s, "floor_area")),
+            N(f(s, "staff_hours")),
+            S(s["region"].as_str().expect("region").into()),
+            S(s["format"].as_str().expect("format").into()),
+        ]);
+    }
+    scratch.workbook("data.xlsx", &[("records", data), ("Scenarios", sheet)]);
+    let job = expected["job"].as_str().expect("job");
+    let rows = job.find("rows = ").expect("inline rows");
+    let job = format!(
+        "{}sheet = \"Scenarios\"\n",
+        &job[..rows].replace("data.csv", "data.xlsx")
+    );
+    scratch.write(
+        "job.toml",
+        &job.replace("[input]\n", "[input]\nsheet = \"records\"\n"),
+    );
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let ours = read_json(&scratch.path("report.json"))["models"][0].clone();
+    assert_scenarios(&expected, &ours);
+    let workbook = scratch.path("report.xlsx");
+    let book: calamine::Xlsx<_> = calamine::open_workbook(&workbook).expect("report");
+    use calamine::Reader;
+    assert!(book.sheet_names().contains(&"Scenarios".to_string()));
+}
+
+#[test]
+fn a_scenario_without_every_predictor_stops_the_job_naming_it() {
+    let message = refusal(&format!(
+        "{HEAD}numeric = [\"realgdp\"]\n[model.scenarios]\nrows = [{{ name = \"boom\" }}]\n"
+    ));
+    assert!(
+        message.contains("model[1].scenarios.rows[1]") && message.contains("realgdp"),
+        "{message}"
+    );
+}

@@ -18,12 +18,14 @@ mod cell_text;
 mod input;
 mod model;
 mod model_file;
+mod scenarios;
 mod terms;
 
 use self::model::{check_roles, forecast_spec, season_spec};
 pub use self::model_file::{
-    CategoricalFile, ForecastFile, FourierFile, ModelFile, OneOrMany, SeasonFile,
+    CategoricalFile, ForecastFile, FourierFile, ModelFile, OneOrMany, ScenariosFile, SeasonFile,
 };
+pub use self::scenarios::{Scenario, ScenarioSpec};
 pub use self::terms::{Cycle, EventKind, EventSpec, FourierSpec, LagSpec, MAX_LAG};
 
 pub use input::{Area, CellRange, CsvFormat, Encoding, InputFile, Limits, Reading, SummaryRows};
@@ -389,6 +391,10 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             .fourier
             .map(|f| terms::fourier_spec(f).map_err(|(k, msg)| invalid(&key(&k), msg)))
             .transpose()?;
+        let scenarios = m
+            .scenarios
+            .map(|f| scenarios::scenario_spec(f).map_err(|(k, msg)| invalid(&key(&k), msg)))
+            .transpose()?;
         let spec = ModelSpec {
             name,
             response: m.response,
@@ -414,8 +420,10 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             lags,
             events,
             fourier,
+            scenarios,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
+        scenarios::check_scenarios(&spec).map_err(|(k, msg)| invalid(&key(&k), msg))?;
         models.push(spec);
     }
     if is_csv && file.input.sheet.is_some() {

@@ -6,6 +6,7 @@ use std::fmt;
 
 use indexmap::IndexMap;
 
+use super::scenarios::ScenarioSpec;
 use super::terms::{EventSpec, FourierSpec, LagSpec};
 use super::{ForecastFile, Robust, SeasonFile};
 use crate::period::{Frequency, LabelRules, SeasonBy};
@@ -137,6 +138,8 @@ pub struct ModelSpec {
     pub events: Vec<EventSpec>,
     /// Fourier seasons.
     pub fourier: Option<FourierSpec>,
+    /// Rows to predict beside the forecast.
+    pub scenarios: Option<ScenarioSpec>,
 }
 
 impl ModelSpec {
@@ -169,6 +172,7 @@ impl ModelSpec {
             lags: vec![],
             events: vec![],
             fourier: None,
+            scenarios: None,
         }
     }
 
@@ -297,22 +301,25 @@ pub(super) fn forecast_spec(f: ForecastFile) -> Result<ForecastSpec, (&'static s
         (Some(horizon), None) => {
             let mut hold = IndexMap::new();
             for (column, value) in f.hold {
-                let v = match value {
-                    toml::Value::Integer(i) => HoldValue::Number(i as f64),
-                    toml::Value::Float(x) => HoldValue::Number(x),
-                    toml::Value::String(t) => HoldValue::Level(t),
-                    toml::Value::Boolean(b) => HoldValue::Number(f64::from(u8::from(b))),
-                    other => {
-                        return Err((
-                            "hold",
-                            format!("the value for '{column}' ({other}) must be a number or a level in quotes"),
-                        ))
-                    }
-                };
+                let v = hold_value(&column, value).map_err(|message| ("hold", message))?;
                 hold.insert(column, v);
             }
             Ok(ForecastSpec::Horizon { horizon, hold })
         }
+    }
+}
+
+/// A predictor's value written in the job: a number (true and false as 1
+/// and 0) or a level in quotes.
+pub(super) fn hold_value(column: &str, value: toml::Value) -> Result<HoldValue, String> {
+    match value {
+        toml::Value::Integer(i) => Ok(HoldValue::Number(i as f64)),
+        toml::Value::Float(x) => Ok(HoldValue::Number(x)),
+        toml::Value::String(t) => Ok(HoldValue::Level(t)),
+        toml::Value::Boolean(b) => Ok(HoldValue::Number(f64::from(u8::from(b)))),
+        other => Err(format!(
+            "the value for '{column}' ({other}) must be a number or a level in quotes"
+        )),
     }
 }
 

@@ -72,6 +72,23 @@ pub struct ModelFile {
     pub ramp: IndexMap<String, String>,
     /// Fourier seasons: sine and cosine pairs of the date column's cycle.
     pub fourier: Option<FourierFile>,
+    /// Predictions for rows the job or a sheet describes.
+    pub scenarios: Option<ScenariosFile>,
+}
+
+/// The `[model.scenarios]` table.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ScenariosFile {
+    /// A sheet of the input with one row per scenario: a `name` column and
+    /// every predictor.
+    pub sheet: Option<String>,
+    /// With `sheet`: its row of column names, counted from 1; default 1.
+    #[serde(default, deserialize_with = "input::row_number")]
+    pub header_row: Option<u32>,
+    /// Scenarios written in the job: `{ name = "...", column = value, ... }`.
+    #[serde(default)]
+    pub rows: Vec<IndexMap<String, toml::Value>>,
 }
 
 /// The `fourier` table of a model.

@@ -12,7 +12,7 @@ use crate::checks::{
 use crate::compare::DroppedTerm;
 use crate::design::{Design, TermKind};
 use crate::fit::{Coefficient, Fit, FitQuality};
-use crate::forecast::{Backtest, ForecastRow};
+use crate::forecast::{Backtest, ForecastRow, ScenarioRow};
 use crate::job::{Baseline, ModelSpec};
 use crate::period::Frequency;
 use crate::text::significant;
@@ -142,6 +142,8 @@ pub struct ModelResults {
     pub history: Vec<HistoryPoint>,
     /// Forecast rows, empty when the job asks for none.
     pub forecast: Vec<ForecastRow>,
+    /// Scenario predictions, empty when the job asks for none.
+    pub scenarios: Vec<ScenarioRow>,
     /// The back-test, when the job asks for one.
     pub backtest: Option<Backtest>,
     /// For a suggested model: the model it was reduced from.
@@ -254,6 +256,7 @@ pub fn analyse(
         normal_plot,
         history: history(design, fit),
         forecast,
+        scenarios: Vec::new(),
         backtest,
         suggested_from: None,
         dropped_terms: Vec::new(),

@@ -29,6 +29,10 @@ The cases:
   last quarters and then from the held value.
 * fourier -- co2 ~ trend + 3 Fourier pairs of the year (52.18 weeks: sin
   and cos of 2 pi k t / (365.25 / 7), t the trend index); forecast 8 weeks.
+* scenarios -- the invented cross-section of tests/fixtures/categorical
+  (data.csv): ln(revenue) ~ floor_area + staff_hours + region + format
+  (baselines North and Garden shop) by the formula interface, and
+  get_prediction for three scenarios, exp() of the limits.
 
 Why
 ---
@@ -230,13 +234,63 @@ def fourier_case():
     return case
 
 
+SCENARIOS = [
+    {"name": "East 1500", "floor_area": 1500.0, "staff_hours": 600.0, "region": "East", "format": "Retail park"},
+    {"name": "North small", "floor_area": 450.0, "staff_hours": 250.0, "region": "North", "format": "Garden shop"},
+    {"name": "West mid", "floor_area": 900.0, "staff_hours": 480.0, "region": "West", "format": "Garden shop"},
+]
+
+
+def scenarios_case():
+    import statsmodels.formula.api as smf
+
+    data = pd.read_csv(os.path.join("tests", "fixtures", "categorical", "data.csv"))
+    formula = (
+        'np.log(revenue) ~ floor_area + staff_hours + C(region, Treatment("North"))'
+        ' + C(format, Treatment("Garden shop"))'
+    )
+    fit = smf.ols(formula, data=data).fit()
+    frame = fit.get_prediction(pd.DataFrame(SCENARIOS)).summary_frame(alpha=0.05)
+    rows = []
+    for s, (_, r) in zip(SCENARIOS, frame.iterrows()):
+        rows.append(
+            {
+                "name": s["name"],
+                "estimate": f(np.exp(r["mean"])),
+                "mean_lower": f(np.exp(r["mean_ci_lower"])),
+                "mean_upper": f(np.exp(r["mean_ci_upper"])),
+                "pred_lower": f(np.exp(r["obs_ci_lower"])),
+                "pred_upper": f(np.exp(r["obs_ci_upper"])),
+                "smeared_mean": f(np.exp(r["mean"]) * np.mean(np.exp(fit.resid))),
+            }
+        )
+    inline = ", ".join(
+        "{ name = \"%s\", floor_area = %s, staff_hours = %s, region = \"%s\", format = \"%s\" }"
+        % (s["name"], s["floor_area"], s["staff_hours"], s["region"], s["format"])
+        for s in SCENARIOS
+    )
+    return {
+        "formula": formula,
+        "scenarios": rows,
+        "data": "../categorical/data.csv",
+        "job": (
+            'title = "Terms: scenarios"\n[input]\nworkbook = "data.csv"\n[output]\nworkbook = "report.xlsx"\n'
+            '[[model]]\nname = "stores"\nresponse = "revenue"\ntransform = "log"\n'
+            'numeric = ["floor_area", "staff_hours"]\n'
+            'categorical = { region = "North", format = "Garden shop" }\n'
+            f"[model.scenarios]\nrows = [{inline}]\n"
+        ),
+        "inputs": SCENARIOS,
+    }
+
+
 def main():
     os.makedirs(OUT, exist_ok=True)
     out = {
         "source": "statsmodels %s OLS and get_prediction (numpy %s, pandas %s), Python %s"
         % (statsmodels.__version__, np.__version__, pd.__version__, sys.version.split()[0]),
         "script": SCRIPT,
-        "cases": {"macro": macro_case(), "fourier": fourier_case()},
+        "cases": {"macro": macro_case(), "fourier": fourier_case(), "scenarios": scenarios_case()},
     }
     with open(os.path.join(OUT, "expected.json"), "w", encoding="utf-8") as fh:
         json.dump(out, fh, indent=1)

@@ -91,6 +91,55 @@ pub(super) fn forecast_sheet(
     write_table(sheet, f, "Forecast_table", 0, &headers, &rows)
 }
 
+/// The scenarios of every model: name, period, estimate and intervals.
+pub(super) fn scenarios_sheet(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<(), XlsxError> {
+    let headers = [
+        "Model",
+        "Scenario",
+        "Period",
+        "Estimate",
+        "Mean lower",
+        "Mean upper",
+        "Prediction lower",
+        "Prediction upper",
+        "Smeared mean",
+        "Confidence",
+        "Inputs",
+    ];
+    let rows: Vec<Vec<Cell>> = results
+        .models
+        .iter()
+        .flat_map(|m| {
+            m.scenarios.iter().map(move |r| {
+                vec![
+                    text(m.name.as_str()),
+                    text(r.name.as_str()),
+                    r.period.as_deref().map_or(Cell::Empty, text),
+                    num(r.estimate, Style::Value),
+                    num(r.mean_lower, Style::Value),
+                    num(r.mean_upper, Style::Value),
+                    num(r.pred_lower, Style::Value),
+                    num(r.pred_upper, Style::Value),
+                    opt(r.smeared_mean, Style::Value),
+                    num(m.confidence, Style::Share),
+                    text(
+                        r.inputs
+                            .iter()
+                            .map(|(k, v)| format!("{k} = {v}"))
+                            .collect::<Vec<_>>()
+                            .join("; "),
+                    ),
+                ]
+            })
+        })
+        .collect();
+    write_table(sheet, f, "Scenarios_table", 0, &headers, &rows)
+}
+
 /// The back-test summary (one row per model and method) and its rows.
 pub(super) fn backtest_sheets(
     workbook: &mut Workbook,

@@ -35,6 +35,9 @@ const CHART_DATA: &str = "Chart data";
 const NORMAL_PLOT: &str = "Normal plot";
 const CHART_POINTS: &str = "Chart points";
 const CHARTS: &str = "Charts";
+/// Sheet added after the forecast when a model has scenarios.
+const SCENARIOS: &str = "Scenarios";
+
 /// Sheets added when the job compares with last run.
 const CHANGES: &str = "Changes";
 const TRACKING: &str = "Forecast tracking";
@@ -367,6 +370,13 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
         &formats,
         results,
     )?;
+    if results.models.iter().any(|m| !m.scenarios.is_empty()) {
+        forecast::scenarios_sheet(
+            workbook.add_worksheet().set_name(SCENARIOS)?,
+            &formats,
+            results,
+        )?;
+    }
     forecast::backtest_sheets(&mut workbook, &formats, results)?;
     let history = forecast::chart_data(
         workbook.add_worksheet().set_name(CHART_DATA)?,

@@ -9,15 +9,19 @@
 //! point forecast is then a median, and the smearing estimate
 //! exp(x₀ᵀb)·mean(exp(eᵢ)) (Duan 1983, JASA 78) estimates the mean.
 
+mod scenarios;
+
 use std::collections::BTreeSet;
 
 use serde::Serialize;
 
-use crate::design::{Design, EncodeError, FutureRow};
+use crate::design::{Design, EncodeError, FutureRow, LagHistory};
 use crate::fit::{fit, t_quantile, Fit, FitError};
 use crate::job::{ForecastSpec, HoldValue, ModelSpec};
 use crate::period::{read_stamp, year_of_number, Period};
 use crate::source::{CellRef, Table, Value};
+
+pub use scenarios::{scenarios, ScenarioRow};
 
 /// An error that stops a model's forecast or back-test.
 #[derive(Debug, thiserror::Error)]
@@ -44,11 +48,13 @@ pub enum ForecastError {
         /// Why it was left out, in words.
         why: String,
     },
-    /// The plan sheet lacks a predictor column.
-    #[error("model '{model}': plan sheet '{sheet}' has no column '{column}' in its header row {header_row} (its columns there: {available}); it needs the date column and every predictor; if its names are in another row, set `plan_header_row` under [model.forecast]")]
+    /// The plan or scenarios sheet lacks a column it needs.
+    #[error("model '{model}': {kind} sheet '{sheet}' has no column '{column}' in its header row {header_row} (its columns there: {available}); it needs {}; if its names are in another row, set {}", .kind.needs(), .kind.key())]
     PlanColumn {
         /// The model.
         model: String,
+        /// A plan or a scenarios sheet.
+        kind: SheetKind,
         /// The plan sheet.
         sheet: String,
         /// The plan sheet's header row.
@@ -58,11 +64,13 @@ pub enum ForecastError {
         /// The missing column.
         column: String,
     },
-    /// A plan-sheet date that cannot be read.
-    #[error("model '{model}': plan sheet '{sheet}' (header row {header_row}), cell {cell} holds '{value}', which is not a {frequency} date or period")]
+    /// A plan- or scenarios-sheet date that cannot be read.
+    #[error("model '{model}': {kind} sheet '{sheet}' (header row {header_row}), cell {cell} holds '{value}', which is not a {frequency} date or period")]
     PlanDate {
         /// The model.
         model: String,
+        /// A plan or a scenarios sheet.
+        kind: SheetKind,
         /// The plan sheet.
         sheet: String,
         /// The plan sheet's header row.
@@ -70,6 +78,19 @@ pub enum ForecastError {
         /// The cell.
         cell: CellRef,
         /// The value as text.
+        value: String,
+        /// The series' frequency.
+        frequency: &'static str,
+    },
+    /// A scenario written in the job whose date is not a period of the
+    /// model's frequency.
+    #[error("model '{model}': scenario '{scenario}' gives the date column '{value}', which is not a {frequency} date or period")]
+    ScenarioPeriod {
+        /// The model.
+        model: String,
+        /// The scenario.
+        scenario: String,
+        /// The value as written.
         value: String,
         /// The series' frequency.
         frequency: &'static str,
@@ -194,40 +215,19 @@ pub fn forecast(
                 .collect()
         }
         (ForecastSpec::Plan { sheet, .. }, Some(table)) => {
-            plan_rows(spec, design, sheet, table, &predictors)?
+            sheet_rows(spec, design, SheetKind::Plan, sheet, table, &predictors)?
         }
         (ForecastSpec::Plan { .. }, None) => Vec::new(),
     };
-    let t = t_quantile((1.0 + fit.confidence) / 2.0, fit.df_resid as f64);
-    let smearing = design.log_response.then(|| {
-        let e = &fit.solution.residuals;
-        e.iter().map(|r| r.exp()).sum::<f64>() / e.len() as f64
-    });
     // Each row's lags read the data and the rows before it.
     let mut history = design.lag_history.clone();
     for (_, row) in &rows {
         history.record(row);
     }
+    let predictor = Predictor::new(spec, design, fit);
     rows.into_iter()
         .map(|(place, row)| {
-            let x0 = design
-                .encode(&row, &history)
-                .map_err(|source| ForecastError::Row {
-                    model: spec.name.clone(),
-                    place: place.clone(),
-                    source,
-                })?;
-            let p = predict(fit, &x0).map_err(|j| ForecastError::Aliased {
-                model: spec.name.clone(),
-                place: place.clone(),
-                term: design.names[j].clone(),
-                why: if design.x.column(j).iter().all(|&v| v == 0.0) {
-                    "no row of the data has it".into()
-                } else {
-                    "it is an exact combination of other columns in the rows used (aliased)".into()
-                },
-            })?;
-            let back = |v: f64| if design.log_response { v.exp() } else { v };
+            let p = predictor.predict(&place, &row, &history)?;
             Ok(ForecastRow {
                 period: row.period.map(|p| p.to_string()),
                 index: row
@@ -235,35 +235,157 @@ pub fn forecast(
                     .zip(design.timing.as_ref())
                     .map(|(p, t)| t.index(p)),
                 date: row.period.map(|p| p.start().to_string()),
-                inputs: predictors
-                    .iter()
-                    .map(|c| {
-                        let v = row.values.get(*c).map(Value::to_string).unwrap_or_default();
-                        (c.to_string(), v)
-                    })
-                    .collect(),
-                estimate: back(p.estimate),
-                mean_lower: back(p.estimate - t * p.se_mean),
-                mean_upper: back(p.estimate + t * p.se_mean),
-                pred_lower: back(p.estimate - t * p.se_new),
-                pred_upper: back(p.estimate + t * p.se_new),
-                smeared_mean: smearing.map(|m| p.estimate.exp() * m),
+                inputs: inputs(&predictors, &row),
+                estimate: p.estimate,
+                mean_lower: p.mean_lower,
+                mean_upper: p.mean_upper,
+                pred_lower: p.pred_lower,
+                pred_upper: p.pred_upper,
+                smeared_mean: p.smeared_mean,
             })
         })
         .collect()
 }
 
-/// Forecast rows from a plan sheet: one per data row, with its period read
-/// from the date column and predictor values from their columns.
-fn plan_rows(
+/// The value of each of `columns` in `row`, as text, for the report.
+fn inputs(columns: &[&str], row: &FutureRow) -> indexmap::IndexMap<String, String> {
+    columns
+        .iter()
+        .map(|c| {
+            let v = row.values.get(*c).map(Value::to_string).unwrap_or_default();
+            (c.to_string(), v)
+        })
+        .collect()
+}
+
+/// A row's estimate and intervals on the response's own scale.
+#[derive(Debug, Clone, Copy)]
+struct Predicted {
+    estimate: f64,
+    mean_lower: f64,
+    mean_upper: f64,
+    pred_lower: f64,
+    pred_upper: f64,
+    smeared_mean: Option<f64>,
+}
+
+/// Predicts rows of one fitted model.
+struct Predictor<'a> {
+    spec: &'a ModelSpec,
+    design: &'a Design,
+    fit: &'a Fit,
+    /// t quantile of the model's confidence level.
+    t: f64,
+    /// mean(exp(eᵢ)) for a log response (Duan 1983).
+    smearing: Option<f64>,
+}
+
+impl<'a> Predictor<'a> {
+    fn new(spec: &'a ModelSpec, design: &'a Design, fit: &'a Fit) -> Self {
+        let smearing = design.log_response.then(|| {
+            let e = &fit.solution.residuals;
+            e.iter().map(|r| r.exp()).sum::<f64>() / e.len() as f64
+        });
+        Predictor {
+            spec,
+            design,
+            fit,
+            t: t_quantile((1.0 + fit.confidence) / 2.0, fit.df_resid as f64),
+            smearing,
+        }
+    }
+
+    /// The estimate and intervals of `row` (`place` names it in errors),
+    /// its lags read from `history`; transformed back for a log response.
+    fn predict(
+        &self,
+        place: &str,
+        row: &FutureRow,
+        history: &LagHistory,
+    ) -> Result<Predicted, ForecastError> {
+        let (spec, design) = (self.spec, self.design);
+        let x0 = design
+            .encode(row, history)
+            .map_err(|source| ForecastError::Row {
+                model: spec.name.clone(),
+                place: place.to_string(),
+                source,
+            })?;
+        let p = predict(self.fit, &x0).map_err(|j| ForecastError::Aliased {
+            model: spec.name.clone(),
+            place: place.to_string(),
+            term: design.names[j].clone(),
+            why: if design.x.column(j).iter().all(|&v| v == 0.0) {
+                "no row of the data has it".into()
+            } else {
+                "it is an exact combination of other columns in the rows used (aliased)".into()
+            },
+        })?;
+        let back = |v: f64| if design.log_response { v.exp() } else { v };
+        let t = self.t;
+        Ok(Predicted {
+            estimate: back(p.estimate),
+            mean_lower: back(p.estimate - t * p.se_mean),
+            mean_upper: back(p.estimate + t * p.se_mean),
+            pred_lower: back(p.estimate - t * p.se_new),
+            pred_upper: back(p.estimate + t * p.se_new),
+            smeared_mean: self.smearing.map(|m| p.estimate.exp() * m),
+        })
+    }
+}
+
+/// What a sheet of rows to predict is for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SheetKind {
+    /// The forecast's plan sheet.
+    Plan,
+    /// A scenarios sheet.
+    Scenarios,
+}
+
+impl SheetKind {
+    /// The columns the sheet needs, in words.
+    fn needs(self) -> &'static str {
+        match self {
+            SheetKind::Plan => "the date column and every predictor",
+            SheetKind::Scenarios => {
+                "a `name` column, every predictor and, with dates, the date column"
+            }
+        }
+    }
+
+    /// The job key that sets the sheet's header row.
+    fn key(self) -> &'static str {
+        match self {
+            SheetKind::Plan => "`plan_header_row` under [model.forecast]",
+            SheetKind::Scenarios => "`header_row` under [model.scenarios]",
+        }
+    }
+}
+
+impl std::fmt::Display for SheetKind {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            SheetKind::Plan => "plan",
+            SheetKind::Scenarios => "scenarios",
+        })
+    }
+}
+
+/// Rows to predict from a plan or scenarios sheet: one per data row, with
+/// its period read from the date column and predictor values from their
+/// columns.
+fn sheet_rows(
     spec: &ModelSpec,
     design: &Design,
+    kind: SheetKind,
     sheet: &str,
     table: &Table,
     predictors: &[&str],
 ) -> Result<Vec<(String, FutureRow)>, ForecastError> {
     let missing = |column: &str| ForecastError::PlanColumn {
         model: spec.name.clone(),
+        kind,
         sheet: sheet.to_string(),
         header_row: table.header_row,
         available: table
@@ -295,6 +417,7 @@ fn plan_rows(
                     let period: Option<Period> = stamp.and_then(|s| s.period_like(timing.first));
                     Some(period.ok_or_else(|| ForecastError::PlanDate {
                         model: spec.name.clone(),
+                        kind,
                         sheet: sheet.to_string(),
                         header_row: table.header_row,
                         cell: table.cell(column, i),
@@ -309,8 +432,8 @@ fn plan_rows(
                 .map(|c| (c.name.clone(), c.values.get(i)))
                 .collect();
             let place = format!(
-                "row {} of plan sheet '{sheet}' (header row {})",
-                table.rows[i], table.header_row
+                "row {} of {} sheet '{sheet}' (header row {})",
+                table.rows[i], kind, table.header_row
             );
             Ok((place, FutureRow { period, values }))
         })
