@@ -293,3 +293,38 @@ fn a_scenario_without_every_predictor_stops_the_job_naming_it() {
         "{message}"
     );
 }
+
+#[test]
+fn lags_of_panel_data_are_taken_within_each_series_and_forecast_for_each() {
+    let (expected, ours) = run("panel");
+    assert_fit("panel", &expected, &ours);
+    assert_forecast("panel", &expected, &ours);
+    // A forecast row for each series in each period, in series order.
+    for (g, e) in ours["forecast"]
+        .as_array()
+        .expect("forecast")
+        .iter()
+        .zip(expected["forecast"].as_array().expect("forecast"))
+    {
+        assert_eq!(g["inputs"]["firm"], e["firm"]);
+    }
+}
+
+#[test]
+fn two_rows_of_one_series_in_one_period_stop_the_job() {
+    let scratch = Scratch::new();
+    let text = std::fs::read_to_string(fixture("grunfeld.csv")).expect("fixture");
+    let mut lines: Vec<&str> = text.lines().collect();
+    let copy = lines[3];
+    lines.push(copy);
+    scratch.write("data.csv", &(lines.join("\n") + "\n"));
+    let job = expected("panel")["job"].as_str().expect("job").to_string();
+    scratch.write("job.toml", &job);
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    let message = stderr(&out);
+    assert!(!out.status.success());
+    assert!(
+        message.contains("1937 of series 'firm 01'") && message.contains("A4"),
+        "{message}"
+    );
+}

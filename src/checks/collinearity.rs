@@ -243,6 +243,7 @@ mod tests {
             timing: None,
             log_response: false,
             lag_history: Default::default(),
+            series: None,
         }
     }
 

@@ -123,14 +123,13 @@ impl Design {
                 }
                 TermKind::Lag { lag } => {
                     let p = period()?;
-                    let value =
-                        history
-                            .value(&term.column, p, *lag)
-                            .ok_or_else(|| EncodeError::NoLag {
-                                column: term.column.clone(),
-                                lag: *lag,
-                                period: p.plus(-i64::from(*lag)).to_string(),
-                            })?;
+                    let value = history
+                        .value_for(&term.column, row, p, *lag)
+                        .ok_or_else(|| EncodeError::NoLag {
+                            column: term.column.clone(),
+                            lag: *lag,
+                            period: p.plus(-i64::from(*lag)).to_string(),
+                        })?;
                     out.push(value);
                 }
                 TermKind::Event { kind, at } => out.push(event_value(*kind, at, period()?)),

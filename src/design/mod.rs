@@ -69,6 +69,9 @@ pub struct Design {
     pub log_response: bool,
     /// The lagged columns' values by period, for forecast rows' lags.
     pub lag_history: LagHistory,
+    /// The series of panel data named by the job's `series` column: the
+    /// column and its labels in the rows used, sorted.
+    pub series: Option<(String, Vec<String>)>,
 }
 
 /// Builds the design for `model` from `table`.
@@ -121,6 +124,14 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
     for column in &labels {
         ctx.check_labels(column, &mut usable)?;
     }
+    let series = model
+        .series
+        .as_ref()
+        .map(|name| ctx.column(name))
+        .transpose()?;
+    if let Some(column) = series {
+        ctx.check_labels(column, &mut usable)?;
+    }
     let dates = model
         .date_column()
         .map(|name| {
@@ -144,11 +155,16 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
     let mut history = LagHistory::default();
     let timing = match &dates {
         Some((column, stamps)) => {
-            let mut t = time::timing(&ctx, column, stamps, &keep, model.frequency)?;
+            let mut t = time::timing(&ctx, column, stamps, &keep, model.frequency, series)?;
             if !model.lags.is_empty() {
                 lags::refuse_panel(&ctx, column, &keep, &t)?;
-                history = LagHistory::of_data(&lagged, stamps, &t);
-                (keep, t) = lags::keep_rows_with_lags(&model.lags, &history, keep, t);
+                history = LagHistory::of_data(&lagged, series, stamps, &t);
+                let label_of = |i: usize| {
+                    series
+                        .map(|s| s.values.get(i).to_string())
+                        .unwrap_or_default()
+                };
+                (keep, t) = lags::keep_rows_with_lags(&model.lags, &history, label_of, keep, t);
                 if keep.is_empty() {
                     return Err(DesignError::NoUsableRows {
                         model: model.name.clone(),
@@ -232,10 +248,17 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         for spec in &model.lags {
             for &lag in &spec.lags {
                 let name = format!("{} (lag {lag})", spec.column);
-                let values = t
-                    .periods
+                let values = keep
                     .iter()
-                    .map(|&p| history.value(&spec.column, p, lag).unwrap_or(f64::NAN))
+                    .zip(&t.periods)
+                    .map(|(&i, &p)| {
+                        let label = series
+                            .map(|s| s.values.get(i).to_string())
+                            .unwrap_or_default();
+                        history
+                            .value(&spec.column, &label, p, lag)
+                            .unwrap_or(f64::NAN)
+                    })
                     .collect();
                 parts.push(
                     &spec.column,
@@ -361,6 +384,13 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         timing,
         log_response: model.log_response,
         lag_history: history,
+        series: series.map(|column| {
+            let labels: std::collections::BTreeSet<String> = keep
+                .iter()
+                .map(|&i| column.values.get(i).to_string())
+                .collect();
+            (column.name.clone(), labels.into_iter().collect())
+        }),
     })
 }
 
@@ -415,6 +445,7 @@ impl Design {
             }),
             log_response: self.log_response,
             lag_history: self.lag_history.clone(),
+            series: self.series.clone(),
         }
     }
 

@@ -174,13 +174,15 @@ impl Context<'_> {
 
 /// Periods of the used rows `keep` (indices into the table), with the
 /// frequency from the job or the data. Refuses a single series with two
-/// rows in one period, and a period label of another frequency.
+/// rows in one period (with a `series` column, a series with two rows in
+/// one period), and a period label of another frequency.
 pub(super) fn timing(
     ctx: &Context<'_>,
     column: &Column,
     stamps: &[Option<Stamp>],
     keep: &[usize],
     frequency: Option<Frequency>,
+    series: Option<&Column>,
 ) -> Result<Timing, DesignError> {
     let used: Vec<Stamp> = keep.iter().filter_map(|&i| stamps[i]).collect();
     let (frequency, detected) = match frequency {
@@ -229,7 +231,23 @@ pub(super) fn timing(
     let mut sizes: Vec<usize> = counts.values().map(Vec::len).collect();
     sizes.sort_unstable();
     let median = sizes.get(sizes.len() / 2).copied().unwrap_or(1);
-    if median == 1 {
+    if let Some(series) = series {
+        // Panel data named by series: one row per series and period.
+        let mut seen = std::collections::BTreeMap::<(String, Period), usize>::new();
+        for (&i, &p) in keep.iter().zip(&periods) {
+            let label = series.values.get(i).to_string();
+            if let Some(&first) = seen.get(&(label.clone(), p)) {
+                return Err(DesignError::DuplicatePeriod {
+                    model: ctx.model.name.clone(),
+                    place: ctx.table.place(),
+                    period: format!("{p} of series '{label}' ('{}')", series.name),
+                    first: ctx.table.cell(column, first),
+                    second: ctx.table.cell(column, i),
+                });
+            }
+            seen.insert((label, p), i);
+        }
+    } else if median == 1 {
         if let Some((period, rows)) = counts.iter().find(|(_, rows)| rows.len() > 1) {
             return Err(DesignError::DuplicatePeriod {
                 model: ctx.model.name.clone(),

@@ -186,7 +186,7 @@ pub fn forecast(
     let Some(forecast) = &spec.forecast else {
         return Ok(Vec::new());
     };
-    let predictors: Vec<&str> = spec.columns().skip(1).collect();
+    let predictors: Vec<&str> = spec.row_columns();
     let rows: Vec<(String, FutureRow)> = match (forecast, plan) {
         (ForecastSpec::Horizon { horizon, hold }, _) => {
             let last = design.timing.as_ref().map(|t| t.last());
@@ -200,17 +200,23 @@ pub fn forecast(
                     (column.clone(), value)
                 })
                 .collect();
+            // Panel data named by series: a row for each series in each
+            // period.
+            let series: Vec<Option<(&String, &String)>> = match &design.series {
+                Some((column, labels)) => labels.iter().map(|l| Some((column, l))).collect(),
+                None => vec![None],
+            };
             (1..=i64::from(*horizon))
-                .map(|h| {
+                .flat_map(|h| series.iter().map(move |s| (h, *s)))
+                .map(|(h, series)| {
                     let period = last.map(|p| p.plus(h));
-                    let place = period.map_or(format!("row {h}"), |p| format!("period {p}"));
-                    (
-                        place,
-                        FutureRow {
-                            period,
-                            values: values.clone(),
-                        },
-                    )
+                    let mut place = period.map_or(format!("row {h}"), |p| format!("period {p}"));
+                    let mut values = values.clone();
+                    if let Some((column, label)) = series {
+                        place.push_str(&format!(" of series '{label}'"));
+                        values.insert(column.clone(), Value::text(label));
+                    }
+                    (place, FutureRow { period, values })
                 })
                 .collect()
         }

@@ -47,7 +47,7 @@ pub fn scenarios(
     fit: &Fit,
     sheet: Option<&Table>,
 ) -> Result<Vec<ScenarioRow>, ForecastError> {
-    let predictors: Vec<&str> = spec.columns().skip(1).collect();
+    let predictors: Vec<&str> = spec.row_columns();
     let rows: Vec<(String, String, FutureRow)> = match (&spec.scenarios, sheet) {
         (None, _) | (Some(ScenarioSpec::Sheet { .. }), None) => return Ok(Vec::new()),
         (Some(ScenarioSpec::Rows(rows)), _) => {

@@ -421,6 +421,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             events,
             fourier,
             scenarios,
+            series: m.series,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         scenarios::check_scenarios(&spec).map_err(|(k, msg)| invalid(&key(&k), msg))?;

@@ -140,6 +140,8 @@ pub struct ModelSpec {
     pub fourier: Option<FourierSpec>,
     /// Rows to predict beside the forecast.
     pub scenarios: Option<ScenarioSpec>,
+    /// The column naming each series of panel data.
+    pub series: Option<String>,
 }
 
 impl ModelSpec {
@@ -173,6 +175,7 @@ impl ModelSpec {
             events: vec![],
             fourier: None,
             scenarios: None,
+            series: None,
         }
     }
 
@@ -186,9 +189,30 @@ impl ModelSpec {
     }
 
     /// Whether the model reads the column `name` (a predictor, the
-    /// response or the date column).
+    /// response, the date column or the series column).
     pub fn reads(&self, name: &str) -> bool {
-        self.columns().any(|c| c == name) || self.date_column() == Some(name)
+        self.columns().any(|c| c == name)
+            || self.date_column() == Some(name)
+            || self.series.as_deref() == Some(name)
+    }
+
+    /// The columns a row to predict (a plan-sheet row or a scenario) gives:
+    /// the series column first, when the model has one, then every
+    /// predictor, each once.
+    pub fn row_columns(&self) -> Vec<&str> {
+        let series = self.series.as_deref();
+        series
+            .into_iter()
+            .chain(self.columns().skip(1).filter(|c| Some(*c) != series))
+            .collect()
+    }
+
+    /// The predictors a forecast row needs a value for: every predictor but
+    /// the series column, which each series' rows take from the series.
+    pub fn held_columns(&self) -> impl Iterator<Item = &str> {
+        self.columns()
+            .skip(1)
+            .filter(move |c| self.series.as_deref() != Some(*c))
     }
 
     /// The columns whose cells must be numbers: the response, then the
@@ -480,8 +504,28 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
     if spec.backtest == Some(0) {
         return Err(("backtest", "must be at least 1 period".into()));
     }
+    if let Some(series) = &spec.series {
+        if time.is_empty() {
+            return Err((
+                "series",
+                "needs periods: add `trend` or `season` with the date column".into(),
+            ));
+        }
+        if *series == spec.response || time.contains(&series.as_str()) {
+            return Err((
+                "series",
+                format!("'{series}' is the response or the date column; name the column that identifies each series, such as store"),
+            ));
+        }
+    }
     if let Some(ForecastSpec::Horizon { hold, .. }) = &spec.forecast {
-        let predictors: Vec<&str> = spec.columns().skip(1).collect();
+        if let Some(series) = spec.series.as_ref().filter(|s| hold.contains_key(*s)) {
+            return Err((
+                "forecast.hold",
+                format!("gives '{series}', the series column: the forecast has rows for each series; remove it"),
+            ));
+        }
+        let predictors: Vec<&str> = spec.held_columns().collect();
         if let Some(missing) = predictors.iter().find(|c| !hold.contains_key(**c)) {
             return Err((
                 "forecast.hold",

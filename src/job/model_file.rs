@@ -74,6 +74,10 @@ pub struct ModelFile {
     pub fourier: Option<FourierFile>,
     /// Predictions for rows the job or a sheet describes.
     pub scenarios: Option<ScenariosFile>,
+    /// The column naming each series of panel data (one row per series
+    /// and period): lags are taken within a series, and forecasts made for
+    /// each.
+    pub series: Option<String>,
 }
 
 /// The `[model.scenarios]` table.

@@ -88,7 +88,11 @@ pub(super) fn check_scenarios(spec: &ModelSpec) -> Result<(), (String, String)> 
     let Some(ScenarioSpec::Rows(rows)) = &spec.scenarios else {
         return Ok(());
     };
-    let needed: Vec<&str> = spec.columns().skip(1).chain(spec.date_column()).collect();
+    let needed: Vec<&str> = spec
+        .row_columns()
+        .into_iter()
+        .chain(spec.date_column())
+        .collect();
     for (k, row) in rows.iter().enumerate() {
         let key = format!("scenarios.rows[{}]", k + 1);
         if let Some(missing) = needed.iter().find(|c| !row.values.contains_key(**c)) {

@@ -29,6 +29,13 @@ The cases:
   last quarters and then from the held value.
 * fourier -- co2 ~ trend + 3 Fourier pairs of the year (52.18 weeks: sin
   and cos of 2 pi k t / (365.25 / 7), t the trend index); forecast 8 weeks.
+* panel -- statsmodels' `grunfeld` investment panel (11 firms, 1935-1954;
+  the firms relabelled "firm 01" ... "firm 11" in order of first
+  appearance), the row of firm 06 in 1945 left out: invest ~ value +
+  capital + value lagged one year within each firm + trend + firm
+  (baseline firm 01), `series = "firm"`; forecast 2 years for every firm,
+  value and capital held, so the first year's lag is each firm's 1954 value
+  and the second's the held value.
 * scenarios -- the invented cross-section of tests/fixtures/categorical
   (data.csv): ln(revenue) ~ floor_area + staff_hours + region + format
   (baselines North and Garden shop) by the formula interface, and
@@ -234,6 +241,75 @@ def fourier_case():
     return case
 
 
+def panel_case():
+    raw = sm.datasets.grunfeld.load_pandas().data
+    names = {firm: "firm %02d" % (k + 1) for k, firm in enumerate(dict.fromkeys(raw["firm"]))}
+    data = pd.DataFrame(
+        {
+            "year": raw["year"].astype(int),
+            "firm": raw["firm"].map(names),
+            "invest": raw["invest"].astype(float),
+            "value": raw["value"].astype(float),
+            "capital": raw["capital"].astype(float),
+        }
+    )
+    data = data[~((data["firm"] == "firm 06") & (data["year"] == 1945))].reset_index(drop=True)
+    data.to_csv(os.path.join(OUT, "grunfeld.csv"), index=False)
+    # The lag by year within each firm, on every year, so the missing year
+    # gives blank lags.
+    lags = {}
+    for firm, rows in data.groupby("firm"):
+        full = rows.set_index("year")["value"].reindex(range(1935, 1955))
+        for year, v in full.shift(1).items():
+            lags[(firm, year)] = v
+    data["value_lag1"] = [lags[(f, y)] for f, y in zip(data["firm"], data["year"])]
+    used = data.dropna().copy()
+    first = used["year"].min()
+    firms = sorted(used["firm"].unique())
+
+    def design(rows):
+        X = pd.DataFrame(
+            {
+                "Intercept": 1.0,
+                "value": rows["value"].to_numpy(dtype=float),
+                "capital": rows["capital"].to_numpy(dtype=float),
+                "value (lag 1)": rows["value_lag1"].to_numpy(dtype=float),
+                "trend": (rows["year"].to_numpy() - first + 1).astype(float),
+            }
+        )
+        for firm in firms[1:]:
+            X[f"firm[{firm}]"] = (rows["firm"].to_numpy() == firm).astype(float)
+        return X
+
+    fit, case = fitted(used["invest"].to_numpy(), design(used))
+    hold_value, hold_capital = 1500.0, 400.0
+    last = {firm: rows.set_index("year")["value"][1954] for firm, rows in data.groupby("firm")}
+    new_rows = []
+    for year in (1955, 1956):
+        for firm in firms:
+            new_rows.append(
+                {
+                    "year": year,
+                    "firm": firm,
+                    "value": hold_value,
+                    "capital": hold_capital,
+                    "value_lag1": last[firm] if year == 1955 else hold_value,
+                }
+            )
+    new = pd.DataFrame(new_rows)
+    case["forecast"] = forecast_rows(fit, design(new), [str(y) for y in new["year"]], new["year"] - first + 1)
+    for row, firm in zip(case["forecast"], new["firm"]):
+        row["firm"] = firm
+    case["job"] = (
+        'title = "Terms: panel"\n[input]\nworkbook = "data.csv"\n[output]\nworkbook = "report.xlsx"\n'
+        '[[model]]\nname = "panel"\nresponse = "invest"\nnumeric = ["value", "capital"]\n'
+        'lag = { value = 1 }\ntrend = "year"\ncategorical = { firm = "firm 01" }\nseries = "firm"\n'
+        f"[model.forecast]\nhorizon = 2\nhold = {{ value = {hold_value}, capital = {hold_capital} }}\n"
+    )
+    case["data"] = "grunfeld.csv"
+    return case
+
+
 SCENARIOS = [
     {"name": "East 1500", "floor_area": 1500.0, "staff_hours": 600.0, "region": "East", "format": "Retail park"},
     {"name": "North small", "floor_area": 450.0, "staff_hours": 250.0, "region": "North", "format": "Garden shop"},
@@ -290,7 +366,12 @@ def main():
         "source": "statsmodels %s OLS and get_prediction (numpy %s, pandas %s), Python %s"
         % (statsmodels.__version__, np.__version__, pd.__version__, sys.version.split()[0]),
         "script": SCRIPT,
-        "cases": {"macro": macro_case(), "fourier": fourier_case(), "scenarios": scenarios_case()},
+        "cases": {
+            "macro": macro_case(),
+            "fourier": fourier_case(),
+            "panel": panel_case(),
+            "scenarios": scenarios_case(),
+        },
     }
     with open(os.path.join(OUT, "expected.json"), "w", encoding="utf-8") as fh:
         json.dump(out, fh, indent=1)
