@@ -27,7 +27,7 @@ pub use scenarios::{scenarios, ScenarioRow};
 #[derive(Debug, thiserror::Error)]
 pub enum ForecastError {
     /// A forecast row cannot be coded.
-    #[error("model '{model}': forecast {place} {source}")]
+    #[error("model '{model}': {place} {source}")]
     Row {
         /// The model.
         model: String,
@@ -37,7 +37,7 @@ pub enum ForecastError {
         source: EncodeError,
     },
     /// A forecast row needs a coefficient that could not be estimated.
-    #[error("model '{model}': forecast {place} needs the coefficient {term}, which was left out of the fit ({why}); its effect cannot be estimated from this data, so give the row another value, or drop or merge the predictor")]
+    #[error("model '{model}': {place} needs the coefficient {term}, which was left out of the fit ({why}); its effect cannot be estimated from this data, so give the row another value, or drop or merge the predictor")]
     Aliased {
         /// The model.
         model: String,
@@ -210,7 +210,9 @@ pub fn forecast(
                 .flat_map(|h| series.iter().map(move |s| (h, *s)))
                 .map(|(h, series)| {
                     let period = last.map(|p| p.plus(h));
-                    let mut place = period.map_or(format!("row {h}"), |p| format!("period {p}"));
+                    let mut place = period.map_or(format!("forecast row {h}"), |p| {
+                        format!("forecast period {p}")
+                    });
                     let mut values = values.clone();
                     if let Some((column, label)) = series {
                         place.push_str(&format!(" of series '{label}'"));
@@ -360,6 +362,14 @@ impl SheetKind {
         }
     }
 
+    /// What a row of the sheet is called in messages.
+    fn row_word(self) -> &'static str {
+        match self {
+            SheetKind::Plan => "forecast row",
+            SheetKind::Scenarios => "scenario row",
+        }
+    }
+
     /// The job key that sets the sheet's header row.
     fn key(self) -> &'static str {
         match self {
@@ -438,8 +448,10 @@ fn sheet_rows(
                 .map(|c| (c.name.clone(), c.values.get(i)))
                 .collect();
             let place = format!(
-                "row {} of {} sheet '{sheet}' (header row {})",
-                table.rows[i], kind, table.header_row
+                "{} {} of {kind} sheet '{sheet}' (header row {})",
+                kind.row_word(),
+                table.rows[i],
+                table.header_row
             );
             Ok((place, FutureRow { period, values }))
         })

@@ -34,7 +34,11 @@ pub fn term_notes(design: &Design, fit: &Fit) -> Vec<String> {
             TermKind::Fourier { per_cycle, pairs } => Some(format!(
                 "fourier: {pairs} sine and cosine pair{} of a cycle of {} {frequency}s, from the period index; together they draw a smooth seasonal pattern that forecasts repeat.",
                 if *pairs == 1 { "" } else { "s" },
-                significant(*per_cycle, 6)
+                if per_cycle.fract() == 0.0 {
+                    format!("{per_cycle:.0}")
+                } else {
+                    format!("{per_cycle:.2}")
+                }
             )),
             _ => None,
         })
