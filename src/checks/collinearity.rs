@@ -244,6 +244,7 @@ mod tests {
             log_response: false,
             lag_history: Default::default(),
             series: None,
+            weights: None,
         }
     }
 

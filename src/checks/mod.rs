@@ -375,6 +375,16 @@ pub fn collinearity_checks(
     design: &Design,
     terms: &[collinearity::TermCollinearity],
 ) -> Vec<Check> {
+    if design.weights.is_some() && design.terms.len() > 1 {
+        return vec![Check {
+            name: "variance inflation".into(),
+            statistic: None,
+            p_value: None,
+            rule: "variance inflation factors compare each term with the others about their means (Fox & Monette 1992)".into(),
+            flagged: false,
+            verdict: "not computed for a weighted fit: its predictors overlap as weighted, which the condition number describes".into(),
+        }];
+    }
     if !design.intercept && design.terms.len() > 1 {
         return vec![Check {
             name: "variance inflation".into(),
@@ -478,8 +488,12 @@ pub struct RowTable {
     ordinals: Vec<i64>,
     /// The first period, where the trend index is 1.
     first: Option<Period>,
+    /// The response and residuals on the response's own scale.
     actual: Vec<f64>,
     residuals: Vec<f64>,
+    /// √wᵢ of each row for a weighted fit, else empty: the standardized
+    /// residuals are those of √wᵢ·eᵢ.
+    root_weights: Vec<f64>,
     leverage: Vec<f64>,
     /// Residual standard error s.
     sigma: f64,
@@ -499,8 +513,16 @@ impl RowTable {
                 .as_ref()
                 .map_or_else(Vec::new, |t| t.periods.iter().map(|p| p.ordinal).collect()),
             first: design.timing.as_ref().map(|t| t.first),
-            actual: design.y.iter().copied().collect(),
-            residuals: fit.solution.residuals.iter().copied().collect(),
+            actual: (0..design.y.len())
+                .map(|i| design.unscaled(i, design.y[i]))
+                .collect(),
+            residuals: (0..design.y.len())
+                .map(|i| design.unscaled(i, fit.solution.residuals[i]))
+                .collect(),
+            root_weights: design
+                .weights
+                .as_ref()
+                .map_or_else(Vec::new, |w| w.iter().map(|w| w.sqrt()).collect()),
             leverage: fit.solution.leverage.clone(),
             sigma: fit.quality.sigma,
             rank: fit.solution.kept.len() as f64,
@@ -524,7 +546,7 @@ impl RowTable {
     }
 
     /// Row `i` with its diagnostics: the standardized residual
-    /// e / (s·√(1 − h)), Cook's distance r²·h / (p·(1 − h)), the externally
+    /// e / (s·√(1 − h)) (√w·e with weights, as R defines it), Cook's distance r²·h / (p·(1 − h)), the externally
     /// studentized residual r·√((n − p − 1)/(n − p − r²)) and DFFITS
     /// t·√(h/(1 − h)) (Belsley, Kuh & Welsch 1980), and the rules of thumb
     /// it breaks.
@@ -532,9 +554,10 @@ impl RowTable {
         let (s, p, df) = (self.sigma, self.rank, self.df_resid);
         let n = self.rows.len() as f64;
         let residual = self.residuals[i];
+        let weighted = residual * self.root_weights.get(i).copied().unwrap_or(1.0);
         let h = self.leverage[i];
         let standardized = (s > 0.0 && s.is_finite() && h < 1.0 - 1e-12)
-            .then(|| residual / (s * (1.0 - h).sqrt()));
+            .then(|| weighted / (s * (1.0 - h).sqrt()));
         let period = self
             .ordinals
             .get(i)

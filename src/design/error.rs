@@ -248,6 +248,20 @@ pub enum DesignError {
         /// Another.
         second: CellRef,
     },
+    /// A weight that is not a number above zero.
+    #[error("model '{model}': {place}, cell {cell} in weights column '{column}' holds '{value}'; weights must be numbers above zero: correct the cell, or clear it to leave the row out")]
+    NotAWeight {
+        /// The model.
+        model: String,
+        /// Sheet and file.
+        place: String,
+        /// The column.
+        column: String,
+        /// The cell.
+        cell: CellRef,
+        /// The value as text.
+        value: String,
+    },
     /// A response that cannot be logged.
     #[error("model '{model}': {place}, cell {cell} in response '{column}' holds {value}; `transform = \"log\"` needs every response value above zero")]
     NotPositive {

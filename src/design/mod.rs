@@ -25,6 +25,7 @@ mod matrix;
 mod polynomial;
 mod term;
 mod time;
+mod weights;
 
 use nalgebra::DVector;
 
@@ -47,10 +48,15 @@ pub use time::Timing;
 pub struct Design {
     /// The response column's name.
     pub response: String,
-    /// Response values, one per used row.
+    /// Response values, one per used row (times √w with weights).
     pub y: DVector<f64>,
-    /// Design matrix: one row per used row, one column per coefficient.
+    /// Design matrix: one row per used row, one column per coefficient
+    /// (its rows times √w with weights).
     pub x: DesignMatrix,
+    /// The rows' weights, for weighted least squares: `x` and `y` then hold
+    /// the rows scaled by √w, the problem whose least squares fit is the
+    /// weighted one.
+    pub weights: Option<Vec<f64>>,
     /// Coefficient names, one per column of `x`: `Intercept`, the numeric
     /// column's name, or `column[level]` for an indicator.
     pub names: Vec<String>,
@@ -123,6 +129,14 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .collect::<Result<Vec<_>, _>>()?;
     for column in &labels {
         ctx.check_labels(column, &mut usable)?;
+    }
+    let weights = model
+        .weights
+        .as_ref()
+        .map(|name| ctx.column(name))
+        .transpose()?;
+    if let Some(column) = weights {
+        ctx.check_numbers(column, &mut usable)?;
     }
     let series = model
         .series
@@ -372,10 +386,19 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         .into_iter()
         .map(|c| (c.name, c.column))
         .unzip();
+    let (x, y) = (DesignMatrix::new(rows, columns), DVector::from_vec(y));
+    let row_weights = weights
+        .map(|column| weights::row_weights(&ctx, column, &keep))
+        .transpose()?;
+    let (x, y) = match &row_weights {
+        Some(w) => weights::scaled(&x, &y, w),
+        None => (x, y),
+    };
     Ok(Design {
         response: model.response.clone(),
-        y: DVector::from_vec(y),
-        x: DesignMatrix::new(rows, columns),
+        y,
+        x,
+        weights: row_weights,
         names,
         terms: parts.terms,
         intercept: model.intercept,
@@ -408,6 +431,13 @@ impl Design {
         self.x.row(i)
     }
 
+    /// Row `i`'s value of a quantity held scaled by √wᵢ (the response, a
+    /// residual, a fitted value) on the response's own scale: divided by
+    /// √wᵢ with weights, as it is without.
+    pub fn unscaled(&self, i: usize, value: f64) -> f64 {
+        self.weights.as_ref().map_or(value, |w| value / w[i].sqrt())
+    }
+
     /// The factor that has an indicator for every level (the first factor
     /// of a model without an intercept): its indicators sum to one in every
     /// row, so the model's columns hold a constant though it has no
@@ -434,6 +464,10 @@ impl Design {
             response: self.response.clone(),
             y: self.y.select_rows(keep),
             x: self.x.select_rows(keep),
+            weights: self
+                .weights
+                .as_ref()
+                .map(|w| keep.iter().map(|&i| w[i]).collect()),
             names: self.names.clone(),
             terms: self.terms.clone(),
             intercept: self.intercept,

@@ -303,7 +303,8 @@ pub struct Fit {
     pub aliased: Vec<String>,
     /// Overall statistics.
     pub quality: FitQuality,
-    /// Fitted values X b, one per used row.
+    /// Fitted values X b, one per used row, on the response's own scale
+    /// (unweighted).
     pub fitted: Vec<f64>,
     /// The least-squares solution behind it all.
     pub solution: LeastSquares,
@@ -376,11 +377,29 @@ pub fn fit(model: &str, design: &Design, confidence: f64) -> Result<Fit, FitErro
     } else {
         raw_sse
     };
-    let sst = if intercept == 1 {
-        let mean = design.y.mean();
-        design.y.iter().map(|v| (v - mean).powi(2)).sum()
-    } else {
-        design.y.norm_squared()
+    let sst = match (&design.weights, intercept == 1) {
+        // About the weighted mean: Σ wᵢ(yᵢ − ȳ_w)², the rows held as √wᵢ·yᵢ.
+        (Some(w), true) => {
+            let total: f64 = w.iter().sum();
+            let mean = design
+                .y
+                .iter()
+                .zip(w)
+                .map(|(v, w)| v * w.sqrt())
+                .sum::<f64>()
+                / total;
+            design
+                .y
+                .iter()
+                .zip(w)
+                .map(|(v, w)| (v - w.sqrt() * mean).powi(2))
+                .sum()
+        }
+        (None, true) => {
+            let mean = design.y.mean();
+            design.y.iter().map(|v| (v - mean).powi(2)).sum()
+        }
+        (_, false) => design.y.norm_squared(),
     };
     let ssr = sst - sse;
     let s2 = sse / df_resid as f64;
@@ -411,13 +430,21 @@ pub fn fit(model: &str, design: &Design, confidence: f64) -> Result<Fit, FitErro
     let f_stat = (df_model > 0 && sse > 0.0).then(|| (ssr / df_model as f64) / s2);
     let f_p_value = f_stat.and_then(|f| f_sf(f, df_model as f64, df_resid as f64));
     let nf = n as f64;
-    let log_likelihood = -nf / 2.0 * ((2.0 * std::f64::consts::PI).ln() + (sse / nf).ln() + 1.0);
+    // With weights the density of each yᵢ has variance σ²/wᵢ, which adds
+    // ½Σ ln wᵢ (R's logLik of a weighted fit).
+    let weights_term = design
+        .weights
+        .as_ref()
+        .map_or(0.0, |w| 0.5 * w.iter().map(|w| w.ln()).sum::<f64>());
+    let log_likelihood =
+        weights_term - nf / 2.0 * ((2.0 * std::f64::consts::PI).ln() + (sse / nf).ln() + 1.0);
     let k = (p + 1) as f64;
     let fitted = design
         .y
         .iter()
         .zip(solution.residuals.iter())
-        .map(|(y, e)| y - e)
+        .enumerate()
+        .map(|(i, (y, e))| design.unscaled(i, y - e))
         .collect();
     Ok(Fit {
         n,

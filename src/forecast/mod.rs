@@ -123,9 +123,11 @@ struct Prediction {
     se_new: f64,
 }
 
-/// Predicts the design row `x0` (all columns of the design) from `fit`;
-/// `Err` holds the index of an aliased column the row needs.
-fn predict(fit: &Fit, x0: &[f64]) -> Result<Prediction, usize> {
+/// Predicts the design row `x0` (all columns of the design) from `fit`, a
+/// new value of the row having weight `weight` (1 without weights: its
+/// variance is σ²/w); `Err` holds the index of an aliased column the row
+/// needs.
+fn predict(fit: &Fit, x0: &[f64], weight: f64) -> Result<Prediction, usize> {
     let ls = &fit.solution;
     if let Some(&j) = ls.aliased.iter().find(|&&j| x0[j] != 0.0) {
         return Err(j);
@@ -142,7 +144,7 @@ fn predict(fit: &Fit, x0: &[f64]) -> Result<Prediction, usize> {
     Ok(Prediction {
         estimate,
         se_mean: s * v.max(0.0).sqrt(),
-        se_new: s * (1.0 + v.max(0.0)).sqrt(),
+        se_new: s * (1.0 / weight + v.max(0.0)).sqrt(),
     })
 }
 
@@ -292,7 +294,11 @@ impl<'a> Predictor<'a> {
     fn new(spec: &'a ModelSpec, design: &'a Design, fit: &'a Fit) -> Self {
         let smearing = design.log_response.then(|| {
             let e = &fit.solution.residuals;
-            e.iter().map(|r| r.exp()).sum::<f64>() / e.len() as f64
+            e.iter()
+                .enumerate()
+                .map(|(i, &r)| design.unscaled(i, r).exp())
+                .sum::<f64>()
+                / e.len() as f64
         });
         Predictor {
             spec,
@@ -319,16 +325,17 @@ impl<'a> Predictor<'a> {
                 place: place.to_string(),
                 source,
             })?;
-        let p = predict(self.fit, &x0).map_err(|j| ForecastError::Aliased {
-            model: spec.name.clone(),
-            place: place.to_string(),
-            term: design.names[j].clone(),
-            why: if design.x.column(j).iter().all(|&v| v == 0.0) {
-                "no row of the data has it".into()
-            } else {
-                "it is an exact combination of other columns in the rows used (aliased)".into()
-            },
-        })?;
+        let p =
+            predict(self.fit, &x0, spec.new_row_weight).map_err(|j| ForecastError::Aliased {
+                model: spec.name.clone(),
+                place: place.to_string(),
+                term: design.names[j].clone(),
+                why: if design.x.column(j).iter().all(|&v| v == 0.0) {
+                    "no row of the data has it".into()
+                } else {
+                    "it is an exact combination of other columns in the rows used (aliased)".into()
+                },
+            })?;
         let back = |v: f64| if design.log_response { v.exp() } else { v };
         let t = self.t;
         Ok(Predicted {
@@ -553,13 +560,21 @@ pub fn backtest(
             })?;
             let t = t_quantile((1.0 + refit.confidence) / 2.0, refit.df_resid as f64);
             for i in (0..design.rows.len()).filter(|&i| targets.contains(&timing.periods[i])) {
+                // A weighted design holds the row as √wᵢ·xᵢ: its prediction
+                // and standard errors scale back by √wᵢ, which gives the
+                // new value the row's own weight.
                 let x0 = design.row(i);
-                let Ok(p) = predict(&refit, &x0) else {
+                let Ok(p) = predict(&refit, &x0, 1.0) else {
                     skipped += 1;
                     continue;
                 };
+                let p = Prediction {
+                    estimate: design.unscaled(i, p.estimate),
+                    se_mean: design.unscaled(i, p.se_mean),
+                    se_new: design.unscaled(i, p.se_new),
+                };
                 let back = |v: f64| if design.log_response { v.exp() } else { v };
-                let actual = back(design.y[i]);
+                let actual = back(design.unscaled(i, design.y[i]));
                 let (lower, upper) = (
                     back(p.estimate - t * p.se_new),
                     back(p.estimate + t * p.se_new),

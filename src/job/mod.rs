@@ -378,6 +378,18 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                 ))
             }
         };
+        let new_row_weight = match (
+            m.forecast.as_ref().and_then(|f| f.weight),
+            m.scenarios.as_ref().and_then(|s| s.weight),
+        ) {
+            (Some(a), Some(b)) if a != b => {
+                return Err(invalid(
+                    &key("scenarios.weight"),
+                    format!("{b} differs from forecast.weight = {a}; a new row has one weight, so give it once"),
+                ))
+            }
+            (a, b) => a.or(b).unwrap_or(1.0),
+        };
         let forecast = m
             .forecast
             .map(|f| {
@@ -422,6 +434,8 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             fourier,
             scenarios,
             series: m.series,
+            weights: m.weights,
+            new_row_weight,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;
         scenarios::check_scenarios(&spec).map_err(|(k, msg)| invalid(&key(&k), msg))?;

@@ -142,6 +142,11 @@ pub struct ModelSpec {
     pub scenarios: Option<ScenarioSpec>,
     /// The column naming each series of panel data.
     pub series: Option<String>,
+    /// The column of weights, for weighted least squares.
+    pub weights: Option<String>,
+    /// The weight of a new row (forecast or scenario) in its prediction
+    /// interval: `forecast.weight`, default 1.
+    pub new_row_weight: f64,
 }
 
 impl ModelSpec {
@@ -176,6 +181,8 @@ impl ModelSpec {
             fourier: None,
             scenarios: None,
             series: None,
+            weights: None,
+            new_row_weight: 1.0,
         }
     }
 
@@ -189,11 +196,12 @@ impl ModelSpec {
     }
 
     /// Whether the model reads the column `name` (a predictor, the
-    /// response, the date column or the series column).
+    /// response, the date column, the series or the weights column).
     pub fn reads(&self, name: &str) -> bool {
         self.columns().any(|c| c == name)
             || self.date_column() == Some(name)
             || self.series.as_deref() == Some(name)
+            || self.weights.as_deref() == Some(name)
     }
 
     /// The columns a row to predict (a plan-sheet row or a scenario) gives:
@@ -517,6 +525,29 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
                 format!("'{series}' is the response or the date column; name the column that identifies each series, such as store"),
             ));
         }
+    }
+    if let Some(weights) = &spec.weights {
+        if *weights == spec.response || spec.date_column() == Some(weights.as_str()) {
+            return Err((
+                "weights",
+                format!("'{weights}' is the response or the date column; name a column of positive weights"),
+            ));
+        }
+    }
+    if !(spec.new_row_weight > 0.0 && spec.new_row_weight.is_finite()) {
+        return Err((
+            "forecast.weight",
+            format!(
+                "{} is not a positive number; a new row's weight is above zero (default 1)",
+                spec.new_row_weight
+            ),
+        ));
+    }
+    if spec.weights.is_none() && spec.new_row_weight != 1.0 {
+        return Err((
+            "forecast.weight",
+            "goes with `weights`; without weights every row weighs 1".into(),
+        ));
     }
     if let Some(ForecastSpec::Horizon { hold, .. }) = &spec.forecast {
         if let Some(series) = spec.series.as_ref().filter(|s| hold.contains_key(*s)) {

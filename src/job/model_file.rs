@@ -78,6 +78,8 @@ pub struct ModelFile {
     /// and period): lags are taken within a series, and forecasts made for
     /// each.
     pub series: Option<String>,
+    /// A column of positive weights: weighted least squares.
+    pub weights: Option<String>,
 }
 
 /// The `[model.scenarios]` table.
@@ -93,6 +95,9 @@ pub struct ScenariosFile {
     /// Scenarios written in the job: `{ name = "...", column = value, ... }`.
     #[serde(default)]
     pub rows: Vec<IndexMap<String, toml::Value>>,
+    /// With `weights`: the weight of a scenario in its prediction interval,
+    /// as `forecast.weight`; default 1.
+    pub weight: Option<f64>,
 }
 
 /// The `fourier` table of a model.
@@ -156,6 +161,9 @@ pub struct ForecastFile {
     /// With `horizon`: the value of each predictor in the forecast rows.
     #[serde(default)]
     pub hold: IndexMap<String, toml::Value>,
+    /// With `weights`: the weight of a new row in its prediction interval;
+    /// default 1.
+    pub weight: Option<f64>,
 }
 
 /// `numeric = [...]`: a list of column names; any other shape is refused

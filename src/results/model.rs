@@ -98,6 +98,8 @@ pub struct ModelResults {
     pub standard_errors: Option<String>,
     /// `log` when the model was fitted to the natural log of the response.
     pub transform: Option<String>,
+    /// The weights column, for a weighted least squares fit.
+    pub weights: Option<String>,
     /// The periods, when the model has a date column.
     pub timing: Option<TimingNote>,
     /// Confidence level of every interval.
@@ -163,7 +165,11 @@ pub fn analyse(
 ) -> ModelResults {
     // The checks' auxiliary regressions come first, so that their working
     // columns are let go before the per-row table is copied out.
-    let collinearity = collinearity(design, &fit.solution.kept);
+    let collinearity = if design.weights.is_some() {
+        Vec::new()
+    } else {
+        collinearity(design, &fit.solution.kept)
+    };
     let mut checks = assumption_checks(design, fit);
     let residuals = RowTable::of(design, fit);
     checks.extend([condition_check(fit), influence_check(&residuals)]);
@@ -216,6 +222,7 @@ pub fn analyse(
         response: spec.response.clone(),
         intercept: spec.intercept,
         transform: design.log_response.then(|| "log".to_string()),
+        weights: spec.weights.clone(),
         standard_errors: fit.standard_errors.map(|k| k.label().to_string()),
         timing: design.timing.as_ref().map(|t| TimingNote {
             column: t.column.clone(),
@@ -327,7 +334,10 @@ fn history(design: &Design, fit: &Fit) -> Vec<HistoryPoint> {
             period: period.to_string(),
             date: period.start().to_string(),
             rows: end - start,
-            actual: (start..end).map(|i| back(design.y[i])).sum::<f64>() / n,
+            actual: (start..end)
+                .map(|i| back(design.unscaled(i, design.y[i])))
+                .sum::<f64>()
+                / n,
             fitted: (start..end).map(|i| back(fit.fitted[i])).sum::<f64>() / n,
         });
         start = end;

@@ -710,6 +710,11 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
             b.levels.join(", ")
         ));
     }
+    if let Some(w) = &m.weights {
+        notes.push(format!(
+            "Fitted by weighted least squares, each row weighted by '{w}': rows of larger weight count more, standard errors, R², F and the log-likelihood are the weighted ones, and residuals are shown on the response's own scale."
+        ));
+    }
     notes.extend(m.term_notes.iter().cloned());
     for a in &m.aliased {
         notes.push(format!(
