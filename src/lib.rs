@@ -140,41 +140,25 @@ fn model_results(
     mut table: Table,
     scope: Scope,
     inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
-) -> Result<(Vec<results::ModelResults>, compare::Comparisons), Error> {
-    let mut models = Vec::with_capacity(job.models.len());
+) -> Result<Analysed, Error> {
+    let mut out = Analysed::default();
     let mut candidates = Vec::with_capacity(job.models.len());
     let mut suggestions = Vec::new();
     let mut suggested_candidates = Vec::new();
     for (k, spec) in job.models.iter().enumerate() {
+        if spec.by.is_some() {
+            by_level_results(job, input, &table, spec, inspect, &mut out)?;
+            let later = &job.models[k + 1..];
+            table.clear_columns(|name| later.iter().any(|m| m.reads(name)));
+            continue;
+        }
         let design = design::build(&table, spec)?;
         // The columns no later model reads are let go before this model is
         // fitted and checked.
         let later = &job.models[k + 1..];
         table.clear_columns(|name| later.iter().any(|m| m.reads(name)));
-        let fit = fit::fit(&spec.name, &design, spec.confidence)?;
-        let fit = match spec.standard_errors {
-            Some(kind) => fit::with_robust_errors(fit, &design, kind),
-            None => fit,
-        };
-        inspect(spec, &design, &fit);
-        let plan = match &spec.forecast {
-            Some(job::ForecastSpec::Plan { sheet, header_row }) => {
-                Some(input.read_table(Some(sheet), *header_row, &job.limits)?)
-            }
-            _ => None,
-        };
-        let rows = forecast::forecast(spec, &design, &fit, plan.as_ref())?;
-        let scenario_sheet = match &spec.scenarios {
-            Some(job::ScenarioSpec::Sheet { sheet, header_row }) => {
-                Some(input.read_table(Some(sheet), *header_row, &job.limits)?)
-            }
-            _ => None,
-        };
-        let scenarios = forecast::scenarios(spec, &design, &fit, scenario_sheet.as_ref())?;
-        let backtest = forecast::backtest(spec, &design, &fit)?;
-        let mut results = analyse(spec, &design, &fit, rows, backtest);
-        results.scenarios = scenarios;
-        models.push(results);
+        let (results, fit) = fit_and_analyse(job, input, spec, &design, inspect)?;
+        out.models.push(results);
         candidates.push(compare::Candidate::new(&spec.name, &design, &fit));
         let name = format!("{} (suggested)", spec.name);
         let suggested = match scope {
@@ -196,12 +180,100 @@ fn model_results(
         }
     }
     candidates.extend(suggested_candidates);
-    let comparisons = match scope {
+    out.comparisons = match scope {
         Scope::Everything => compare::compare(&candidates),
         Scope::Models => compare::Comparisons::default(),
     };
-    models.extend(suggestions);
-    Ok((models, comparisons))
+    out.models.extend(suggestions);
+    Ok(out)
+}
+
+/// What [`model_results`] hands back: every model's results, their
+/// comparisons, and the levels of models fitted by level that could not be
+/// fitted.
+#[derive(Default)]
+struct Analysed {
+    models: Vec<results::ModelResults>,
+    comparisons: compare::Comparisons,
+    by_skipped: Vec<results::SkippedLevel>,
+}
+
+/// Fits one design and computes its results: the fit (with robust
+/// standard errors when asked for), forecast, scenarios and back-test.
+fn fit_and_analyse(
+    job: &Job,
+    input: &source::Input,
+    spec: &job::ModelSpec,
+    design: &design::Design,
+    inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
+) -> Result<(results::ModelResults, fit::Fit), Error> {
+    let fit = fit::fit(&spec.name, design, spec.confidence)?;
+    let fit = match spec.standard_errors {
+        Some(kind) => fit::with_robust_errors(fit, design, kind),
+        None => fit,
+    };
+    inspect(spec, design, &fit);
+    let plan = match &spec.forecast {
+        Some(job::ForecastSpec::Plan { sheet, header_row }) => {
+            Some(input.read_table(Some(sheet), *header_row, &job.limits)?)
+        }
+        _ => None,
+    };
+    let rows = forecast::forecast(spec, design, &fit, plan.as_ref())?;
+    let scenario_sheet = match &spec.scenarios {
+        Some(job::ScenarioSpec::Sheet { sheet, header_row }) => {
+            Some(input.read_table(Some(sheet), *header_row, &job.limits)?)
+        }
+        _ => None,
+    };
+    let scenarios = forecast::scenarios(spec, design, &fit, scenario_sheet.as_ref())?;
+    let backtest = forecast::backtest(spec, design, &fit)?;
+    let mut results = analyse(spec, design, &fit, rows, backtest);
+    results.scenarios = scenarios;
+    Ok((results, fit))
+}
+
+/// The model `spec` fitted to each level of its `by` column in turn, as a
+/// model named "name [level]"; a level that cannot be fitted (too few rows,
+/// a predictor without variation in it, ...) is listed with the reason and
+/// the others go on. No suggested models or comparisons are made for them.
+fn by_level_results(
+    job: &Job,
+    input: &source::Input,
+    table: &Table,
+    spec: &job::ModelSpec,
+    inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
+    out: &mut Analysed,
+) -> Result<(), Error> {
+    let column = spec.by.clone().unwrap_or_default();
+    for (level, rows) in design::by_levels(table, spec)? {
+        let level_spec = job::ModelSpec {
+            name: format!("{} [{level}]", spec.name),
+            by: None,
+            ..spec.clone()
+        };
+        let fitted = design::build(&table.select_rows(&rows), &level_spec)
+            .map_err(Error::from)
+            .and_then(|design| fit_and_analyse(job, input, &level_spec, &design, inspect));
+        match fitted {
+            Ok((mut results, _)) => {
+                results.by = Some(results::ByLevel {
+                    model: spec.name.clone(),
+                    column: column.clone(),
+                    level,
+                });
+                out.models.push(results);
+            }
+            Err(e) => out.by_skipped.push(results::SkippedLevel {
+                model: spec.name.clone(),
+                column: column.clone(),
+                level,
+                rows: rows.len(),
+                reason: e.to_string(),
+            }),
+        }
+    }
+    Ok(())
 }
 
 /// How much of a job [`model_results`] computes.
@@ -260,8 +332,11 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         table.sheet.clone(),
         table.rows.len() + screened.summary_rows_left_out.len(),
     );
-    let (models, comparisons) =
-        model_results(job, &input, table, Scope::Everything, &mut |_, _, _| {})?;
+    let Analysed {
+        models,
+        comparisons,
+        by_skipped,
+    } = model_results(job, &input, table, Scope::Everything, &mut |_, _, _| {})?;
     // The plan sheets were the last reads of the input.
     input.check_unchanged()?;
     let changes = options
@@ -288,7 +363,10 @@ pub fn analyse_job(job: &Job, options: &RunOptions) -> Result<(Results, Timings)
         rows_read,
         screened,
     };
-    Ok((collect(job, run, models, comparisons, changes), timings))
+    Ok((
+        collect(job, run, models, comparisons, by_skipped, changes),
+        timings,
+    ))
 }
 
 /// The report path with its placeholders filled: `{period}` the last
@@ -419,7 +497,7 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
     out.push_str(&describe_columns(&table));
     // Each model as a run computes it, so check meets the errors the data
     // can raise; suggested models and comparisons are left to run.
-    let (models, _) = model_results(
+    let analysed = model_results(
         &job,
         &input,
         table,
@@ -428,9 +506,16 @@ pub fn check_job(path: &Path) -> Result<String, Error> {
             describe_model(&mut out, spec, design, fit);
         },
     )?;
+    for skipped in &analysed.by_skipped {
+        let _ = writeln!(
+            out,
+            "model '{} [{}]' ({} rows) would not be fitted: {}",
+            skipped.model, skipped.level, skipped.rows, skipped.reason
+        );
+    }
     input.check_unchanged()?;
     if let Some(previous) = &job.compare_with {
-        results::changes::against(previous, &models)?;
+        results::changes::against(previous, &analysed.models)?;
     }
     Ok(out)
 }

@@ -328,3 +328,50 @@ fn two_rows_of_one_series_in_one_period_stop_the_job() {
         "{message}"
     );
 }
+
+#[test]
+fn a_model_by_level_fits_each_level_as_its_own_model_and_lists_those_it_cannot() {
+    let expected = expected("by_firm");
+    let scratch = Scratch::new();
+    // A twelfth firm of three rows: too few for four coefficients.
+    let mut data = std::fs::read_to_string(fixture("grunfeld.csv")).expect("fixture");
+    for (year, value, capital) in [
+        (1950, 300.0, 40.0),
+        (1951, 320.0, 41.0),
+        (1952, 310.0, 45.0),
+    ] {
+        data.push_str(&format!("{year},firm 12,10.5,{value},{capital}\n"));
+    }
+    scratch.write("data.csv", &data);
+    scratch.write("job.toml", expected["job"].as_str().expect("job"));
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let json = read_json(&scratch.path("report.json"));
+    let models = json["models"].as_array().expect("models");
+    let levels = expected["levels"].as_array().expect("levels");
+    assert_eq!(models.len(), levels.len());
+    for (ours, level) in models.iter().zip(levels) {
+        let name = level["level"].as_str().expect("level");
+        assert_eq!(ours["name"], format!("per firm [{name}]"));
+        assert_eq!(ours["by"]["level"], name);
+        // Source: statsmodels OLS of that firm's rows alone.
+        assert_fit(name, level, ours);
+        assert_forecast(name, level, ours);
+    }
+    let skipped = json["by_skipped"].as_array().expect("skipped levels");
+    assert_eq!(skipped.len(), 1);
+    assert_eq!(skipped[0]["level"], "firm 12");
+    assert_eq!(skipped[0]["rows"], 3);
+    assert!(
+        skipped[0]["reason"]
+            .as_str()
+            .expect("a reason")
+            .contains("has 3 usable rows for"),
+        "{}",
+        skipped[0]
+    );
+    let book: calamine::Xlsx<_> =
+        calamine::open_workbook(scratch.path("report.xlsx")).expect("report");
+    use calamine::Reader;
+    assert!(book.sheet_names().contains(&"By series".to_string()));
+}

@@ -13,6 +13,7 @@
 // so their size does not matter.
 #![allow(clippy::result_large_err)]
 
+mod by;
 mod categorical;
 mod context;
 mod error;
@@ -32,6 +33,7 @@ use nalgebra::DVector;
 use crate::job::ModelSpec;
 use crate::source::{Column, Table, Value};
 
+pub use by::by_levels;
 pub use error::DesignError;
 pub use future::{EncodeError, FutureRow};
 pub use lags::LagHistory;

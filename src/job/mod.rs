@@ -435,6 +435,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             scenarios,
             series: m.series,
             weights: m.weights,
+            by: m.by,
             new_row_weight,
         };
         check_roles(&spec).map_err(|(k, msg)| invalid(&key(k), msg))?;

@@ -144,6 +144,8 @@ pub struct ModelSpec {
     pub series: Option<String>,
     /// The column of weights, for weighted least squares.
     pub weights: Option<String>,
+    /// The column whose levels each get their own fit of the model.
+    pub by: Option<String>,
     /// The weight of a new row (forecast or scenario) in its prediction
     /// interval: `forecast.weight`, default 1.
     pub new_row_weight: f64,
@@ -182,6 +184,7 @@ impl ModelSpec {
             scenarios: None,
             series: None,
             weights: None,
+            by: None,
             new_row_weight: 1.0,
         }
     }
@@ -202,6 +205,7 @@ impl ModelSpec {
             || self.date_column() == Some(name)
             || self.series.as_deref() == Some(name)
             || self.weights.as_deref() == Some(name)
+            || self.by.as_deref() == Some(name)
     }
 
     /// The columns a row to predict (a plan-sheet row or a scenario) gives:
@@ -523,6 +527,14 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
             return Err((
                 "series",
                 format!("'{series}' is the response or the date column; name the column that identifies each series, such as store"),
+            ));
+        }
+    }
+    if let Some(by) = &spec.by {
+        if spec.columns().any(|c| c == by) || spec.date_column() == Some(by.as_str()) {
+            return Err((
+                "by",
+                format!("'{by}' is the response, a predictor or the date column; within one of its levels it would not vary: name a column that only splits the rows, such as store"),
             ));
         }
     }

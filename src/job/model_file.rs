@@ -80,6 +80,8 @@ pub struct ModelFile {
     pub series: Option<String>,
     /// A column of positive weights: weighted least squares.
     pub weights: Option<String>,
+    /// A column whose levels each get their own fit of the model.
+    pub by: Option<String>,
 }
 
 /// The `[model.scenarios]` table.

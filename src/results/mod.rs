@@ -18,7 +18,7 @@ pub mod model;
 pub mod terms;
 
 pub use changes::RunChanges;
-pub use model::{analyse, equation, ModelResults};
+pub use model::{analyse, equation, ByLevel, ModelResults, SkippedLevel};
 
 /// The cautions printed on the overview sheet and carried in the JSON.
 pub const CAUTIONS: [&str; 3] = [
@@ -70,6 +70,8 @@ pub struct Results {
     /// Pairs of models not compared: pairs that are not nested, past the
     /// first [`crate::compare::UNNESTED_PAIRS_AMONG`] models.
     pub comparisons_left_out: usize,
+    /// Levels of models fitted by level (`by`) that could not be fitted.
+    pub by_skipped: Vec<SkippedLevel>,
     /// What changed since last run, when the job compares with one.
     #[serde(flatten)]
     pub changes: Option<RunChanges>,
@@ -81,6 +83,7 @@ pub fn collect(
     run: RunStamp,
     models: Vec<ModelResults>,
     comparisons: Comparisons,
+    by_skipped: Vec<SkippedLevel>,
     changes: Option<RunChanges>,
 ) -> Results {
     Results {
@@ -90,6 +93,7 @@ pub fn collect(
         models,
         comparisons: comparisons.pairs,
         comparisons_left_out: comparisons.left_out,
+        by_skipped,
         changes,
     }
 }

@@ -38,6 +38,32 @@ pub struct BaselineNote {
     pub in_interactions: bool,
 }
 
+/// The level a model fitted by level (`by`) was fitted to.
+#[derive(Debug, Clone, Serialize)]
+pub struct ByLevel {
+    /// The job's model.
+    pub model: String,
+    /// The `by` column.
+    pub column: String,
+    /// The level.
+    pub level: String,
+}
+
+/// A level of a model fitted by level that could not be fitted, and why.
+#[derive(Debug, Clone, Serialize)]
+pub struct SkippedLevel {
+    /// The job's model.
+    pub model: String,
+    /// The `by` column.
+    pub column: String,
+    /// The level.
+    pub level: String,
+    /// Its rows in the sheet.
+    pub rows: usize,
+    /// Why it was not fitted, as the error says.
+    pub reason: String,
+}
+
 /// The periods of a model with a date column.
 #[derive(Debug, Clone, Serialize)]
 pub struct TimingNote {
@@ -87,8 +113,12 @@ pub struct NormalPoint {
 /// One model's results.
 #[derive(Debug, Clone, Serialize)]
 pub struct ModelResults {
-    /// Model name from the job.
+    /// Model name from the job (with the level for a model fitted by
+    /// level: "name [level]").
     pub name: String,
+    /// For a model fitted by level: the job's model, the column and the
+    /// level.
+    pub by: Option<ByLevel>,
     /// Response column.
     pub response: String,
     /// Whether an intercept was fitted.
@@ -219,6 +249,7 @@ pub fn analyse(
         .collect();
     ModelResults {
         name: spec.name.clone(),
+        by: None,
         response: spec.response.clone(),
         intercept: spec.intercept,
         transform: design.log_response.then(|| "log".to_string()),

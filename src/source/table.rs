@@ -84,6 +84,31 @@ impl Table {
         self.rows = keep.iter().map(|&i| self.rows[i]).collect();
     }
 
+    /// The table of the data rows `keep` (indices into this table), in that
+    /// order: one level's rows for a model fitted by level.
+    pub fn select_rows(&self, keep: &[usize]) -> Table {
+        Table {
+            path: self.path.clone(),
+            sheet: self.sheet.clone(),
+            header_row: self.header_row,
+            rows: keep.iter().map(|&i| self.rows[i]).collect(),
+            columns: self
+                .columns
+                .iter()
+                .map(|c| Column {
+                    name: c.name.clone(),
+                    col: c.col,
+                    values: if c.values.is_empty() {
+                        Cells::default()
+                    } else {
+                        keep.iter().map(|&i| c.values.get(i)).collect()
+                    },
+                })
+                .collect(),
+            formulas: Vec::new(),
+        }
+    }
+
     /// Where the data came from, for messages: "sheet 'records' of data.xlsx".
     pub fn place(&self) -> String {
         format!("sheet '{}' of {}", self.sheet, self.path.display())

@@ -36,6 +36,10 @@ The cases:
   (baseline firm 01), `series = "firm"`; forecast 2 years for every firm,
   value and capital held, so the first year's lag is each firm's 1954 value
   and the second's the held value.
+* by_firm -- the same panel fitted separately for each firm (`by =
+  "firm"`): invest ~ value + capital + trend, the trend counting years from
+  each firm's first; each firm's coefficients, R² and sigma, and its
+  forecast of 1955-1956 with value and capital held.
 * scenarios -- the invented cross-section of tests/fixtures/categorical
   (data.csv): ln(revenue) ~ floor_area + staff_hours + region + format
   (baselines North and Garden shop) by the formula interface, and
@@ -310,6 +314,42 @@ def panel_case():
     return case
 
 
+def by_firm_case():
+    data = pd.read_csv(os.path.join(OUT, "grunfeld.csv"))
+    hold_value, hold_capital = 1500.0, 400.0
+    levels = []
+    for firm, rows in sorted(data.groupby("firm"), key=lambda kv: kv[0]):
+        first = rows["year"].min()
+
+        def design(years, value, capital):
+            return pd.DataFrame(
+                {
+                    "Intercept": 1.0,
+                    "value": np.asarray(value, dtype=float),
+                    "capital": np.asarray(capital, dtype=float),
+                    "trend": (np.asarray(years) - first + 1).astype(float),
+                }
+            )
+
+        fit, case = fitted(rows["invest"].to_numpy(), design(rows["year"], rows["value"], rows["capital"]))
+        years = np.array([1955, 1956])
+        case["forecast"] = forecast_rows(
+            fit, design(years, [hold_value] * 2, [hold_capital] * 2), [str(y) for y in years], years - first + 1
+        )
+        case["level"] = firm
+        levels.append(case)
+    return {
+        "levels": levels,
+        "data": "grunfeld.csv",
+        "job": (
+            'title = "Terms: by firm"\nsuggest = false\n[input]\nworkbook = "data.csv"\n'
+            '[output]\nworkbook = "report.xlsx"\n[[model]]\nname = "per firm"\nresponse = "invest"\nnumeric = ["value", "capital"]\n'
+            'trend = "year"\nby = "firm"\n'
+            f"[model.forecast]\nhorizon = 2\nhold = {{ value = {hold_value}, capital = {hold_capital} }}\n"
+        ),
+    }
+
+
 SCENARIOS = [
     {"name": "East 1500", "floor_area": 1500.0, "staff_hours": 600.0, "region": "East", "format": "Retail park"},
     {"name": "North small", "floor_area": 450.0, "staff_hours": 250.0, "region": "North", "format": "Garden shop"},
@@ -370,6 +410,7 @@ def main():
             "macro": macro_case(),
             "fourier": fourier_case(),
             "panel": panel_case(),
+            "by_firm": by_firm_case(),
             "scenarios": scenarios_case(),
         },
     }

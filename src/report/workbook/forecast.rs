@@ -7,14 +7,14 @@ use rust_xlsxwriter::{
 };
 
 use super::{
-    axis_range, num, opt, text, write_table, Cell, Formats, Style, BACKTEST, BACKTEST_ROWS,
-    CHART_DATA,
+    axis_range, charted, num, opt, text, write_table, Cell, Formats, Style, BACKTEST,
+    BACKTEST_ROWS, CHART_DATA,
 };
 use crate::results::{ModelResults, Results};
 
 /// Where a model's forecast-chart data sit on the chart-data sheet.
 pub struct ChartBlock {
-    /// Index of the model in the results.
+    /// Index of the model among the charted ones (`charted`).
     pub model: usize,
     /// First and last data row (zero-based) of the block.
     pub first: u32,
@@ -236,7 +236,7 @@ pub(super) fn chart_data(
 ) -> Result<Vec<ChartBlock>, XlsxError> {
     let mut rows = Vec::new();
     let mut blocks = Vec::new();
-    for (k, m) in results.models.iter().enumerate() {
+    for (k, m) in charted(results).enumerate() {
         if m.forecast.is_empty() || m.history.is_empty() {
             continue;
         }

@@ -18,6 +18,7 @@ use rust_xlsxwriter::{
 use crate::results::{ModelResults, Results, RUN_ID_PROPERTY};
 use crate::text::row_ranges;
 
+mod by_series;
 mod forecast;
 
 /// Sheet names.
@@ -35,6 +36,9 @@ const CHART_DATA: &str = "Chart data";
 const NORMAL_PLOT: &str = "Normal plot";
 const CHART_POINTS: &str = "Chart points";
 const CHARTS: &str = "Charts";
+/// Sheet added after the overview when a model is fitted by level.
+const BY_SERIES: &str = "By series";
+
 /// Sheet added after the forecast when a model has scenarios.
 const SCENARIOS: &str = "Scenarios";
 
@@ -342,6 +346,13 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
         &formats,
         results,
     )?;
+    if results.models.iter().any(|m| m.by.is_some()) || !results.by_skipped.is_empty() {
+        by_series::by_series_sheet(
+            workbook.add_worksheet().set_name(BY_SERIES)?,
+            &formats,
+            results,
+        )?;
+    }
     coefficients(
         workbook.add_worksheet().set_name(COEFFICIENTS)?,
         &formats,
@@ -485,12 +496,19 @@ fn changes_sheets(
     write_table(sheet, f, "Tracking_table", 0, &headers, &rows)
 }
 
+/// The models shown side by side and charted: the job's models and the
+/// suggested ones. A model fitted by level (`by`) is summarised on the By
+/// series sheet instead, its tables kept in the other sheets.
+fn charted(results: &Results) -> impl Iterator<Item = &ModelResults> + Clone {
+    results.models.iter().filter(|m| m.by.is_none())
+}
+
 fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(), XlsxError> {
     // Printed in landscape, so the cautions' lines fit a page's width (the
     // fitted equations run on to the pages beside).
     sheet.set_landscape();
     sheet.set_column_width(0, 36)?;
-    for c in 1..=results.models.len() as u16 {
+    for c in 1..=charted(results).count() as u16 {
         sheet.set_column_width(c, 22)?;
     }
     sheet.write_string_with_format(0, 0, &results.title, &f.title)?;
@@ -498,7 +516,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
     sheet.write_string_with_format(r, 0, "Models side by side", &f.heading)?;
     r += 1;
     sheet.write_string_with_format(r, 0, "Statistic", &f.bold)?;
-    for (j, m) in results.models.iter().enumerate() {
+    for (j, m) in charted(results).enumerate() {
         sheet.write_string_with_format(r, 1 + j as u16, &m.name, &f.bold)?;
     }
     type Row = (&'static str, fn(&ModelResults) -> Cell);
@@ -556,7 +574,7 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
     for (label, value) in rows {
         r += 1;
         sheet.write_string(r, 0, label)?;
-        for (j, m) in results.models.iter().enumerate() {
+        for (j, m) in charted(results).enumerate() {
             match value(m) {
                 Cell::Text(s) => sheet.write_string(r, 1 + j as u16, s)?,
                 Cell::Number(x, style) => {
@@ -569,16 +587,27 @@ fn overview(sheet: &mut Worksheet, f: &Formats, results: &Results) -> Result<(),
 
     r += 2;
     sheet.write_string_with_format(r, 0, "Fitted equations", &f.heading)?;
-    for m in &results.models {
+    for m in charted(results) {
         r = beside(sheet, f, r, &m.name, &m.equation)?;
     }
 
     r += 2;
     sheet.write_string_with_format(r, 0, "How each model was set up", &f.heading)?;
-    for m in &results.models {
+    for m in charted(results) {
         for note in model_notes(m) {
             r = beside(sheet, f, r, &m.name, &note)?;
         }
+    }
+    for (model, levels, skipped) in by_models(results) {
+        let note = format!(
+            "Fitted separately for each of {levels} levels (sheet By series, one row per level; each level's tables are in the other sheets under the name \"{model} [level]\"){}.",
+            if skipped == 0 {
+                String::new()
+            } else {
+                format!("; {skipped} levels could not be fitted and are listed there with the reason")
+            }
+        );
+        r = beside(sheet, f, r, &model, &note)?;
     }
 
     r += 2;
@@ -673,6 +702,25 @@ fn lines(text: &str, width: usize) -> Vec<&str> {
     }
     if start < text.len() {
         out.push(&text[start..]);
+    }
+    out
+}
+
+/// Each model fitted by level: its name, the levels fitted and the levels
+/// that could not be.
+fn by_models(results: &Results) -> Vec<(String, usize, usize)> {
+    let mut out: Vec<(String, usize, usize)> = Vec::new();
+    for b in results.models.iter().filter_map(|m| m.by.as_ref()) {
+        match out.iter_mut().find(|(name, _, _)| *name == b.model) {
+            Some(entry) => entry.1 += 1,
+            None => out.push((b.model.clone(), 1, 0)),
+        }
+    }
+    for s in &results.by_skipped {
+        match out.iter_mut().find(|(name, _, _)| *name == s.model) {
+            Some(entry) => entry.2 += 1,
+            None => out.push((s.model.clone(), 0, 1)),
+        }
     }
     out
 }
@@ -1106,7 +1154,7 @@ fn chart_points(
     let headers = ["Model", "Sheet row", "Actual", "Fitted", "Residual"];
     let mut rows = Vec::new();
     let mut spans = Vec::new();
-    for m in &results.models {
+    for m in charted(results) {
         let first = 1 + rows.len() as u32;
         let shown = scatter_rows(m.residuals.residuals());
         for &i in &shown {
@@ -1141,7 +1189,7 @@ fn normal_plot_data(
     let headers = ["Model", "Normal quantile", "Standardized residual (sorted)"];
     let mut rows = Vec::new();
     let mut spans = Vec::new();
-    for m in &results.models {
+    for m in charted(results) {
         let first = 1 + rows.len() as u32;
         for p in &m.normal_plot {
             rows.push(vec![
@@ -1217,12 +1265,12 @@ fn charts(
     // Printed (or converted to PDF) one page wide, in landscape, three
     // models' charts a page so that no chart is cut by a page break.
     sheet.set_landscape().set_print_fit_to_pages(1, 0);
-    let breaks: Vec<u32> = (CHART_ROWS_A_PAGE..results.models.len())
+    let breaks: Vec<u32> = (CHART_ROWS_A_PAGE..charted(results).count())
         .step_by(CHART_ROWS_A_PAGE)
         .map(|k| k as u32 * CHART_ROW_HEIGHT)
         .collect();
     sheet.set_page_breaks(&breaks)?;
-    for (k, (m, &(span, shown))) in results.models.iter().zip(points).enumerate() {
+    for (k, (m, &(span, shown))) in charted(results).zip(points).enumerate() {
         let top = k as u32 * CHART_ROW_HEIGHT;
         let fitted = (CHART_POINTS, span.first, FITTED_COL, span.last, FITTED_COL);
         let sample = if shown < m.residuals.len() {
