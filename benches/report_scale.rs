@@ -23,6 +23,13 @@
 //! and prints wall time and peak RSS (`ru_maxrss` from `wait4`) of both,
 //! with their ratios. The machines are shared and noisy: compare ratios
 //! within one run, not seconds between runs.
+//!
+//! `cargo bench --bench report_scale -- by` runs the per-series case
+//! instead: an invented CSV of 2,000 series (parcel lockers) of 60 months
+//! each, and a job that fits one model per series (`by`) with a trend, a
+//! monthly season and a 6-month forecast each; it prints the wall time and
+//! peak RSS against the README's targets (10 s, 500 MB). `--smoke` runs
+//! it on 200 series as well.
 
 use std::error::Error;
 use std::f64::consts::PI;
@@ -284,6 +291,88 @@ fn run_size(rows: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> 
     Ok(())
 }
 
+/// Series in the per-series case, and months of each.
+const BY_SERIES: usize = 2_000;
+const BY_MONTHS: usize = 60;
+
+/// The per-series job: one model per locker.
+const BY_JOB: &str = r#"title = "Parcel lockers (invented scale data)"
+suggest = false
+
+[input]
+workbook = "{input}"
+
+[output]
+workbook = "{output}"
+overwrite = true
+
+[[model]]
+name = "per locker"
+response = "parcels"
+numeric = ["footfall", "rain_mm"]
+trend = "month"
+season = { column = "month", by = "month" }
+by = "locker"
+
+[model.forecast]
+horizon = 6
+hold = { footfall = 900, rain_mm = 60 }
+"#;
+
+/// Writes `series` invented lockers of [`BY_MONTHS`] months each as CSV.
+fn generate_by(path: &Path, series: usize) -> Result<(), Box<dyn Error>> {
+    let mut rng = SplitMix64::new(SEED);
+    let mut text = String::from("month,locker,footfall,rain_mm,parcels\n");
+    for locker in 0..series {
+        let level = 50.0 + 100.0 * rng.uniform();
+        for m in 0..BY_MONTHS {
+            let (year, month) = (2021 + m / 12, m % 12 + 1);
+            let footfall = 500.0 + 800.0 * rng.uniform();
+            let rain = 120.0 * rng.uniform();
+            let season = 10.0 * (2.0 * PI * month as f64 / 12.0).sin();
+            let parcels =
+                level + 0.05 * footfall - 0.1 * rain + 0.3 * m as f64 + season + 5.0 * rng.normal();
+            text.push_str(&format!(
+                "{year}-{month:02}-01,L{locker:04},{footfall:.0},{rain:.1},{parcels:.1}\n"
+            ));
+        }
+    }
+    fs::write(path, text)?;
+    Ok(())
+}
+
+/// The per-series case: `series` lockers, one model each.
+fn run_by(series: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> {
+    let input = dir.join(format!("by-{series}.csv"));
+    if !input.exists() {
+        generate_by(&input, series)?;
+    }
+    let report = dir.join(format!("by-{series}-report.xlsx"));
+    let job = dir.join(format!("by-{series}.toml"));
+    let text = BY_JOB
+        .replace("{input}", &input.display().to_string())
+        .replace("{output}", &report.display().to_string());
+    fs::write(&job, text)?;
+    let tool = measure(
+        Command::new(env!("CARGO_BIN_EXE_sheetfit"))
+            .args(["run", "-q"])
+            .arg(&job),
+    )?;
+    if !tool.status.success() || !report.with_extension("json").exists() {
+        return Err(format!("sheetfit failed on {} ({})", job.display(), tool.status).into());
+    }
+    if smoke {
+        println!("smoke run: {series} series by level, ok");
+    } else {
+        println!(
+            "by: {series} series of {BY_MONTHS} rows, {:.1} s (target 10 s), {:.0} MB (target 500 MB)",
+            tool.wall.as_secs_f64(),
+            tool.peak_mb
+        );
+    }
+    Ok(())
+}
+
 fn parse_shape(text: &str) -> Result<Vec<(u32, u16)>, Box<dyn Error>> {
     text.split(',')
         .map(|part| {
@@ -315,6 +404,9 @@ fn main() -> Result<(), Box<dyn Error>> {
         .join("target")
         .join("scale");
     fs::create_dir_all(&dir)?;
+    if args.iter().any(|a| a == "by") {
+        return run_by(BY_SERIES, &dir, false);
+    }
     if !smoke {
         println!(
             "{:>9} {:>11} {:>8} {:>8} {:>6} {:>9} {:>9} {:>6}",
@@ -323,6 +415,9 @@ fn main() -> Result<(), Box<dyn Error>> {
     }
     for rows in sizes {
         run_size(rows, &dir, smoke)?;
+    }
+    if smoke {
+        run_by(BY_SERIES / 10, &dir, true)?;
     }
     Ok(())
 }
