@@ -219,7 +219,7 @@ fn fit_and_analyse(
         }
         _ => None,
     };
-    let rows = forecast::forecast(spec, design, &fit, plan.as_ref())?;
+    let (rows, totals) = forecast::forecast(spec, design, &fit, plan.as_ref())?;
     let scenario_sheet = match &spec.scenarios {
         Some(job::ScenarioSpec::Sheet { sheet, header_row }) => {
             Some(input.read_table(Some(sheet), *header_row, &job.limits)?)
@@ -230,6 +230,7 @@ fn fit_and_analyse(
     let backtest = forecast::backtest(spec, design, &fit)?;
     let mut results = analyse(spec, design, &fit, rows, backtest);
     results.scenarios = scenarios;
+    results.forecast_totals = totals;
     Ok((results, fit))
 }
 

@@ -308,6 +308,26 @@ fn lags_of_panel_data_are_taken_within_each_series_and_forecast_for_each() {
     {
         assert_eq!(g["inputs"]["firm"], e["firm"]);
     }
+    // Each year's total over the firms, with its intervals (source:
+    // statsmodels get_prediction of the summed design row, a new total
+    // carrying one error per firm).
+    let got = ours["forecast_totals"].as_array().expect("totals");
+    let exp = expected["forecast_totals"].as_array().expect("totals");
+    assert_eq!(got.len(), exp.len());
+    for (g, e) in got.iter().zip(exp) {
+        assert_eq!(g["period"], e["period"]);
+        assert_eq!(g["series"], e["series"]);
+        for key in [
+            "estimate",
+            "mean_lower",
+            "mean_upper",
+            "pred_lower",
+            "pred_upper",
+        ] {
+            let what = format!("total {} {key}", e["period"]);
+            assert_close(&what, f(g, key), f(e, key), TOL);
+        }
+    }
 }
 
 #[test]

@@ -10,6 +10,7 @@
 //! exp(x₀ᵀb)·mean(exp(eᵢ)) (Duan 1983, JASA 78) estimates the mean.
 
 mod scenarios;
+mod totals;
 
 use std::collections::BTreeSet;
 
@@ -22,6 +23,7 @@ use crate::period::{read_stamp, year_of_number, Period};
 use crate::source::{CellRef, Table, Value};
 
 pub use scenarios::{scenarios, ScenarioRow};
+pub use totals::ForecastTotal;
 
 /// An error that stops a model's forecast or back-test.
 #[derive(Debug, thiserror::Error)]
@@ -184,9 +186,9 @@ pub fn forecast(
     design: &Design,
     fit: &Fit,
     plan: Option<&Table>,
-) -> Result<Vec<ForecastRow>, ForecastError> {
+) -> Result<(Vec<ForecastRow>, Vec<ForecastTotal>), ForecastError> {
     let Some(forecast) = &spec.forecast else {
-        return Ok(Vec::new());
+        return Ok((Vec::new(), Vec::new()));
     };
     let predictors: Vec<&str> = spec.row_columns();
     let rows: Vec<(String, FutureRow)> = match (forecast, plan) {
@@ -235,7 +237,9 @@ pub fn forecast(
         history.record(row);
     }
     let predictor = Predictor::new(spec, design, fit);
-    rows.into_iter()
+    let totals = totals::totals(&predictor, &rows, &history)?;
+    let rows = rows
+        .into_iter()
         .map(|(place, row)| {
             let p = predictor.predict(&place, &row, &history)?;
             Ok(ForecastRow {
@@ -254,7 +258,8 @@ pub fn forecast(
                 smeared_mean: p.smeared_mean,
             })
         })
-        .collect()
+        .collect::<Result<_, ForecastError>>()?;
+    Ok((rows, totals))
 }
 
 /// The value of each of `columns` in `row`, as text, for the report.
@@ -309,6 +314,38 @@ impl<'a> Predictor<'a> {
         }
     }
 
+    /// The design row of `row` (`place` names it in errors), its lags read
+    /// from `history`.
+    fn encode(
+        &self,
+        place: &str,
+        row: &FutureRow,
+        history: &LagHistory,
+    ) -> Result<Vec<f64>, ForecastError> {
+        self.design
+            .encode(row, history)
+            .map_err(|source| ForecastError::Row {
+                model: self.spec.name.clone(),
+                place: place.to_string(),
+                source,
+            })
+    }
+
+    /// The error for a row at `place` that needs the aliased column `j`.
+    fn aliased(&self, place: &str, j: usize) -> ForecastError {
+        let design = self.design;
+        ForecastError::Aliased {
+            model: self.spec.name.clone(),
+            place: place.to_string(),
+            term: design.names[j].clone(),
+            why: if design.x.column(j).iter().all(|&v| v == 0.0) {
+                "no row of the data has it".into()
+            } else {
+                "it is an exact combination of other columns in the rows used (aliased)".into()
+            },
+        }
+    }
+
     /// The estimate and intervals of `row` (`place` names it in errors),
     /// its lags read from `history`; transformed back for a log response.
     fn predict(
@@ -317,25 +354,10 @@ impl<'a> Predictor<'a> {
         row: &FutureRow,
         history: &LagHistory,
     ) -> Result<Predicted, ForecastError> {
-        let (spec, design) = (self.spec, self.design);
-        let x0 = design
-            .encode(row, history)
-            .map_err(|source| ForecastError::Row {
-                model: spec.name.clone(),
-                place: place.to_string(),
-                source,
-            })?;
+        let design = self.design;
+        let x0 = self.encode(place, row, history)?;
         let p =
-            predict(self.fit, &x0, spec.new_row_weight).map_err(|j| ForecastError::Aliased {
-                model: spec.name.clone(),
-                place: place.to_string(),
-                term: design.names[j].clone(),
-                why: if design.x.column(j).iter().all(|&v| v == 0.0) {
-                    "no row of the data has it".into()
-                } else {
-                    "it is an exact combination of other columns in the rows used (aliased)".into()
-                },
-            })?;
+            predict(self.fit, &x0, self.spec.new_row_weight).map_err(|j| self.aliased(place, j))?;
         let back = |v: f64| if design.log_response { v.exp() } else { v };
         let t = self.t;
         Ok(Predicted {

@@ -12,7 +12,7 @@ use crate::checks::{
 use crate::compare::DroppedTerm;
 use crate::design::{Design, TermKind};
 use crate::fit::{Coefficient, Fit, FitQuality};
-use crate::forecast::{Backtest, ForecastRow, ScenarioRow};
+use crate::forecast::{Backtest, ForecastRow, ForecastTotal, ScenarioRow};
 use crate::job::{Baseline, ModelSpec};
 use crate::period::Frequency;
 use crate::text::significant;
@@ -176,6 +176,9 @@ pub struct ModelResults {
     pub forecast: Vec<ForecastRow>,
     /// Scenario predictions, empty when the job asks for none.
     pub scenarios: Vec<ScenarioRow>,
+    /// For panel data named by `series`: each forecast period's total over
+    /// the series, with its intervals (none with a log response).
+    pub forecast_totals: Vec<ForecastTotal>,
     /// The back-test, when the job asks for one.
     pub backtest: Option<Backtest>,
     /// For a suggested model: the model it was reduced from.
@@ -295,6 +298,7 @@ pub fn analyse(
         history: history(design, fit),
         forecast,
         scenarios: Vec::new(),
+        forecast_totals: Vec::new(),
         backtest,
         suggested_from: None,
         dropped_terms: Vec::new(),

@@ -35,7 +35,8 @@ The cases:
   capital + value lagged one year within each firm + trend + firm
   (baseline firm 01), `series = "firm"`; forecast 2 years for every firm,
   value and capital held, so the first year's lag is each firm's 1954 value
-  and the second's the held value.
+  and the second's the held value; and each year's forecast total over the
+  firms (the summed design row, one error per firm in a new total).
 * by_firm -- the same panel fitted separately for each firm (`by =
   "firm"`): invest ~ value + capital + trend, the trend counting years from
   each firm's first; each firm's coefficients, R² and sigma, and its
@@ -304,6 +305,28 @@ def panel_case():
     case["forecast"] = forecast_rows(fit, design(new), [str(y) for y in new["year"]], new["year"] - first + 1)
     for row, firm in zip(case["forecast"], new["firm"]):
         row["firm"] = firm
+    # Each year's total over the firms: the summed design row, its new
+    # value carrying one error per firm (weights 1/k in get_prediction).
+    X_new = design(new)
+    totals = []
+    for year in (1955, 1956):
+        rows = X_new[(new["year"] == year).to_numpy()]
+        k = len(rows)
+        x_tot = rows.sum(axis=0).to_frame().T
+        frame = fit.get_prediction(x_tot, weights=np.array([1.0 / k])).summary_frame(alpha=0.05)
+        r = frame.iloc[0]
+        totals.append(
+            {
+                "period": str(year),
+                "series": k,
+                "estimate": f(r["mean"]),
+                "mean_lower": f(r["mean_ci_lower"]),
+                "mean_upper": f(r["mean_ci_upper"]),
+                "pred_lower": f(r["obs_ci_lower"]),
+                "pred_upper": f(r["obs_ci_upper"]),
+            }
+        )
+    case["forecast_totals"] = totals
     case["job"] = (
         'title = "Terms: panel"\n[input]\nworkbook = "data.csv"\n[output]\nworkbook = "report.xlsx"\n'
         '[[model]]\nname = "panel"\nresponse = "invest"\nnumeric = ["value", "capital"]\n'

@@ -242,6 +242,12 @@ pub(super) fn chart_data(
         }
         let first = 1 + rows.len() as u32;
         let last_history = m.history.len() - 1;
+        // Panel data named by series is drawn as its total over the series
+        // (the sum of each period's rows), so the forecast does not zig-zag
+        // from series to series.
+        let total = !m.forecast_totals.is_empty();
+        let scale =
+            |h: &crate::results::model::HistoryPoint| if total { h.rows as f64 } else { 1.0 };
         for (i, h) in m.history.iter().enumerate() {
             // The last period of the history starts the forecast line and a
             // band of no width at its fitted mean, so both grow out of the
@@ -253,18 +259,31 @@ pub(super) fn chart_data(
                     Cell::Empty
                 }
             };
+            let k = scale(h);
             rows.push(vec![
                 text(m.name.as_str()),
                 text(h.period.as_str()),
                 date(&h.date),
-                num(h.actual, Style::Value),
-                num(h.fitted, Style::Value),
-                start(h.fitted),
-                start(h.fitted),
+                num(k * h.actual, Style::Value),
+                num(k * h.fitted, Style::Value),
+                start(k * h.fitted),
+                start(k * h.fitted),
                 start(0.0),
             ]);
         }
-        for r in &m.forecast {
+        for r in &m.forecast_totals {
+            rows.push(vec![
+                text(m.name.as_str()),
+                text(r.period.as_str()),
+                date(&r.date),
+                Cell::Empty,
+                Cell::Empty,
+                num(r.estimate, Style::Value),
+                num(r.pred_lower, Style::Value),
+                num(r.pred_upper - r.pred_lower, Style::Value),
+            ]);
+        }
+        for r in m.forecast.iter().filter(|_| !total) {
             rows.push(vec![
                 text(m.name.as_str()),
                 r.period.as_deref().map_or(Cell::Empty, text),
@@ -290,8 +309,8 @@ pub(super) fn chart_data(
         "Model",
         "Period",
         "Period start",
-        "Actual (period mean)",
-        "Fitted (period mean)",
+        "Actual (period mean, or total over series)",
+        "Fitted (period mean, or total over series)",
         "Forecast",
         "Prediction lower",
         "Prediction band (upper − lower)",
@@ -354,12 +373,19 @@ pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
     }
     band.combine(&lines);
     let panel = m.history.iter().any(|h| h.rows > 1);
+    let total = !m.forecast_totals.is_empty();
     band.title().set_name(
         format!(
             "{}: {} history{} and forecast",
             m.name,
             m.response,
-            if panel { " (mean per period)" } else { "" }
+            if total {
+                " (total over the series)"
+            } else if panel {
+                " (mean per period)"
+            } else {
+                ""
+            }
         )
         .as_str(),
     );
@@ -367,11 +393,22 @@ pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
         .set_name("Period")
         .set_date_axis(true)
         .set_num_format("mmm yyyy");
+    let k = |h: &crate::results::model::HistoryPoint| if total { h.rows as f64 } else { 1.0 };
     let shown = m
         .history
         .iter()
-        .flat_map(|h| [h.actual, h.fitted])
-        .chain(m.forecast.iter().flat_map(|r| [r.pred_lower, r.pred_upper]));
+        .flat_map(|h| [k(h) * h.actual, k(h) * h.fitted])
+        .chain(
+            m.forecast
+                .iter()
+                .filter(|_| !total)
+                .flat_map(|r| [r.pred_lower, r.pred_upper]),
+        )
+        .chain(
+            m.forecast_totals
+                .iter()
+                .flat_map(|r| [r.pred_lower, r.pred_upper]),
+        );
     let (low, high) = axis_range(shown);
     band.y_axis()
         .set_name(m.response.as_str())
