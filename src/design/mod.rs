@@ -77,9 +77,20 @@ pub struct Design {
     pub log_response: bool,
     /// The lagged columns' values by period, for forecast rows' lags.
     pub lag_history: LagHistory,
-    /// The series of panel data named by the job's `series` column: the
-    /// column and its labels in the rows used, sorted.
-    pub series: Option<(String, Vec<String>)>,
+    /// The series of panel data named by the job's `series` column.
+    pub series: Option<SeriesIds>,
+}
+
+/// The series of panel data: the column naming them, their labels and the
+/// series of each used row.
+#[derive(Debug, Clone)]
+pub struct SeriesIds {
+    /// The `series` column.
+    pub column: String,
+    /// The labels in the rows used, sorted.
+    pub labels: Vec<String>,
+    /// Each used row's series, as an index into `labels`.
+    pub of_row: Vec<u32>,
 }
 
 /// Builds the design for `model` from `table`.
@@ -410,11 +421,24 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
         log_response: model.log_response,
         lag_history: history,
         series: series.map(|column| {
-            let labels: std::collections::BTreeSet<String> = keep
+            let of_row: Vec<String> = keep
                 .iter()
                 .map(|&i| column.values.get(i).to_string())
                 .collect();
-            (column.name.clone(), labels.into_iter().collect())
+            let labels: Vec<String> = of_row
+                .iter()
+                .cloned()
+                .collect::<std::collections::BTreeSet<String>>()
+                .into_iter()
+                .collect();
+            SeriesIds {
+                column: column.name.clone(),
+                of_row: of_row
+                    .iter()
+                    .map(|l| labels.binary_search(l).unwrap_or(0) as u32)
+                    .collect(),
+                labels,
+            }
         }),
     })
 }
@@ -481,7 +505,10 @@ impl Design {
             }),
             log_response: self.log_response,
             lag_history: self.lag_history.clone(),
-            series: self.series.clone(),
+            series: self.series.as_ref().map(|s| SeriesIds {
+                of_row: keep.iter().map(|&i| s.of_row[i]).collect(),
+                ..s.clone()
+            }),
         }
     }
 

@@ -159,6 +159,8 @@ pub struct ForecastRow {
     pub index: Option<i64>,
     /// First day of the period, ISO 8601.
     pub date: Option<String>,
+    /// The row's series, for panel data named by `series`.
+    pub series: Option<String>,
     /// The predictor values used, as text, in model order.
     pub inputs: indexmap::IndexMap<String, String>,
     /// Point forecast x₀ᵀb (with a log response: exp(x₀ᵀb), a median).
@@ -207,7 +209,7 @@ pub fn forecast(
             // Panel data named by series: a row for each series in each
             // period.
             let series: Vec<Option<(&String, &String)>> = match &design.series {
-                Some((column, labels)) => labels.iter().map(|l| Some((column, l))).collect(),
+                Some(s) => s.labels.iter().map(|l| Some((&s.column, l))).collect(),
                 None => vec![None],
             };
             (1..=i64::from(*horizon))
@@ -249,6 +251,11 @@ pub fn forecast(
                     .zip(design.timing.as_ref())
                     .map(|(p, t)| t.index(p)),
                 date: row.period.map(|p| p.start().to_string()),
+                series: design
+                    .series
+                    .as_ref()
+                    .and_then(|s| row.values.get(&s.column))
+                    .map(Value::to_string),
                 inputs: inputs(&predictors, &row),
                 estimate: p.estimate,
                 mean_lower: p.mean_lower,

@@ -172,6 +172,10 @@ pub struct ModelResults {
     /// Per-period means of actual and fitted values, for models with a
     /// date column.
     pub history: Vec<HistoryPoint>,
+    /// For panel data of at most [`SERIES_LINES_UP_TO`] series: each
+    /// series' own history, which the forecast chart draws as a line per
+    /// series.
+    pub series_history: Vec<SeriesHistory>,
     /// Forecast rows, empty when the job asks for none.
     pub forecast: Vec<ForecastRow>,
     /// Scenario predictions, empty when the job asks for none.
@@ -296,6 +300,7 @@ pub fn analyse(
         residuals,
         normal_plot,
         history: history(design, fit),
+        series_history: series_history(design, fit),
         forecast,
         scenarios: Vec::new(),
         forecast_totals: Vec::new(),
@@ -351,6 +356,52 @@ fn normal_plot(standardized: impl Iterator<Item = f64>) -> Vec<NormalPoint> {
 
 /// Per-period means of the actual and fitted values, back on the
 /// response's scale (exp for a log response).
+/// Most series the forecast chart draws a line for; past it, it draws
+/// their total with its interval.
+pub const SERIES_LINES_UP_TO: usize = 8;
+
+/// One series' history, for the forecast chart.
+#[derive(Debug, Clone, Serialize)]
+pub struct SeriesHistory {
+    /// The series' label.
+    pub series: String,
+    /// Its periods, one row each.
+    pub points: Vec<HistoryPoint>,
+}
+
+/// Each series' actual and fitted values by period, when the model has
+/// from 2 to [`SERIES_LINES_UP_TO`] series.
+fn series_history(design: &Design, fit: &Fit) -> Vec<SeriesHistory> {
+    let (Some(timing), Some(series)) = (&design.timing, &design.series) else {
+        return Vec::new();
+    };
+    if !(2..=SERIES_LINES_UP_TO).contains(&series.labels.len()) {
+        return Vec::new();
+    }
+    let back = |v: f64| if design.log_response { v.exp() } else { v };
+    series
+        .labels
+        .iter()
+        .zip(0u32..)
+        .map(|(label, code)| SeriesHistory {
+            series: label.clone(),
+            points: (0..timing.periods.len())
+                .filter(|&i| series.of_row[i] == code)
+                .map(|i| {
+                    let period = timing.periods[i];
+                    HistoryPoint {
+                        period: period.to_string(),
+                        date: period.start().to_string(),
+                        rows: 1,
+                        actual: back(design.unscaled(i, design.y[i])),
+                        fitted: back(fit.fitted[i]),
+                    }
+                })
+                .collect(),
+        })
+        .collect()
+}
+
 fn history(design: &Design, fit: &Fit) -> Vec<HistoryPoint> {
     let Some(timing) = &design.timing else {
         return Vec::new();

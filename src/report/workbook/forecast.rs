@@ -10,6 +10,7 @@ use super::{
     axis_range, charted, num, opt, text, write_table, Cell, Formats, Style, BACKTEST,
     BACKTEST_ROWS, CHART_DATA,
 };
+use crate::results::model::SERIES_LINES_UP_TO;
 use crate::results::{ModelResults, Results};
 
 /// Where a model's forecast-chart data sit on the chart-data sheet.
@@ -20,6 +21,9 @@ pub struct ChartBlock {
     pub first: u32,
     /// Last data row of the block.
     pub last: u32,
+    /// For a model drawn as a line per series: each series' label and rows
+    /// (first and last), else empty.
+    pub series: Vec<(String, u32, u32)>,
 }
 
 fn date(iso: &str) -> Cell<'static> {
@@ -241,6 +245,51 @@ pub(super) fn chart_data(
             continue;
         }
         let first = 1 + rows.len() as u32;
+        if !m.series_history.is_empty() {
+            // A line per series: each series' history, then its forecast.
+            let mut series = Vec::new();
+            for sh in &m.series_history {
+                let from = 1 + rows.len() as u32;
+                for h in &sh.points {
+                    rows.push(vec![
+                        text(m.name.as_str()),
+                        text(h.period.as_str()),
+                        date(&h.date),
+                        num(h.actual, Style::Value),
+                        num(h.fitted, Style::Value),
+                        Cell::Empty,
+                        Cell::Empty,
+                        Cell::Empty,
+                        text(sh.series.as_str()),
+                    ]);
+                }
+                for r in m
+                    .forecast
+                    .iter()
+                    .filter(|r| r.series.as_deref() == Some(sh.series.as_str()))
+                {
+                    rows.push(vec![
+                        text(m.name.as_str()),
+                        r.period.as_deref().map_or(Cell::Empty, text),
+                        r.date.as_deref().map_or(Cell::Empty, date),
+                        Cell::Empty,
+                        Cell::Empty,
+                        num(r.estimate, Style::Value),
+                        num(r.pred_lower, Style::Value),
+                        num(r.pred_upper - r.pred_lower, Style::Value),
+                        text(sh.series.as_str()),
+                    ]);
+                }
+                series.push((sh.series.clone(), from, rows.len() as u32));
+            }
+            blocks.push(ChartBlock {
+                model: k,
+                first,
+                last: rows.len() as u32,
+                series,
+            });
+            continue;
+        }
         let last_history = m.history.len() - 1;
         // Panel data named by series is drawn as its total over the series
         // (the sum of each period's rows), so the forecast does not zig-zag
@@ -269,6 +318,7 @@ pub(super) fn chart_data(
                 start(k * h.fitted),
                 start(k * h.fitted),
                 start(0.0),
+                Cell::Empty,
             ]);
         }
         for r in &m.forecast_totals {
@@ -281,6 +331,7 @@ pub(super) fn chart_data(
                 num(r.estimate, Style::Value),
                 num(r.pred_lower, Style::Value),
                 num(r.pred_upper - r.pred_lower, Style::Value),
+                text(format!("total of {} series", r.series)),
             ]);
         }
         for r in m.forecast.iter().filter(|_| !total) {
@@ -293,12 +344,14 @@ pub(super) fn chart_data(
                 num(r.estimate, Style::Value),
                 num(r.pred_lower, Style::Value),
                 num(r.pred_upper - r.pred_lower, Style::Value),
+                Cell::Empty,
             ]);
         }
         blocks.push(ChartBlock {
             model: k,
             first,
             last: rows.len() as u32,
+            series: Vec::new(),
         });
     }
     if rows.is_empty() {
@@ -314,9 +367,64 @@ pub(super) fn chart_data(
         "Forecast",
         "Prediction lower",
         "Prediction band (upper − lower)",
+        "Series",
     ];
     write_table(sheet, f, "Chart_data_table", 0, &headers, &rows)?;
     Ok(blocks)
+}
+
+/// Line colours of the series, at most [`SERIES_LINES_UP_TO`].
+const SERIES_COLORS: [&str; SERIES_LINES_UP_TO] = [
+    "#1F4E79", "#C55A11", "#548235", "#7030A0", "#BF9000", "#2E75B6", "#A50021", "#404040",
+];
+
+/// The forecast chart of panel data of a few series: a line per series,
+/// its actual values solid and its forecast dashed, on a date axis.
+fn series_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
+    let mut chart = Chart::new(ChartType::Line);
+    for ((label, first, last), color) in block.series.iter().zip(SERIES_COLORS) {
+        let range = |col: u16| (CHART_DATA, *first, col, *last, col);
+        for (name, col, dash) in [
+            (label.clone(), ACTUAL_COL, false),
+            (format!("{label} forecast"), FORECAST_COL, true),
+        ] {
+            let mut line = rust_xlsxwriter::ChartLine::new();
+            line.set_color(color).set_width(1.5);
+            if dash {
+                line.set_dash_type(rust_xlsxwriter::ChartLineDashType::Dash);
+            }
+            chart
+                .add_series()
+                .set_categories(range(DATE_COL))
+                .set_values(range(col))
+                .set_name(name.as_str())
+                .set_format(ChartFormat::new().set_line(&line));
+        }
+    }
+    chart.title().set_name(
+        format!(
+            "{}: {} history and forecast, one line per series",
+            m.name, m.response
+        )
+        .as_str(),
+    );
+    chart
+        .x_axis()
+        .set_name("Period")
+        .set_date_axis(true)
+        .set_num_format("mmm yyyy");
+    let shown = m
+        .series_history
+        .iter()
+        .flat_map(|s| s.points.iter().map(|h| h.actual))
+        .chain(m.forecast.iter().map(|r| r.estimate));
+    let (low, high) = axis_range(shown);
+    chart
+        .y_axis()
+        .set_name(m.response.as_str())
+        .set_min(low)
+        .set_max(high);
+    chart
 }
 
 /// Columns of the chart-data table.
@@ -331,6 +439,9 @@ const BAND_COL: u16 = 7;
 /// stacked-area band, with the actual, fitted and forecast lines over it,
 /// on a date axis.
 pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
+    if !block.series.is_empty() {
+        return series_chart(m, block);
+    }
     let data = CHART_DATA;
     let range = |col: u16| (data, block.first, col, block.last, col);
     let mut band = Chart::new(ChartType::AreaStacked);
