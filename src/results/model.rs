@@ -130,6 +130,9 @@ pub struct ModelResults {
     pub transform: Option<String>,
     /// The weights column, for a weighted least squares fit.
     pub weights: Option<String>,
+    /// With weights: the weight a new row (forecast or scenario) takes in
+    /// its prediction interval.
+    pub new_row_weight: Option<f64>,
     /// The periods, when the model has a date column.
     pub timing: Option<TimingNote>,
     /// Confidence level of every interval.
@@ -261,6 +264,7 @@ pub fn analyse(
         intercept: spec.intercept,
         transform: design.log_response.then(|| "log".to_string()),
         weights: spec.weights.clone(),
+        new_row_weight: spec.weights.as_ref().map(|_| spec.new_row_weight),
         standard_errors: fit.standard_errors.map(|k| k.label().to_string()),
         timing: design.timing.as_ref().map(|t| TimingNote {
             column: t.column.clone(),

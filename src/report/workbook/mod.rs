@@ -760,7 +760,8 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
     }
     if let Some(w) = &m.weights {
         notes.push(format!(
-            "Fitted by weighted least squares, each row weighted by '{w}': rows of larger weight count more, standard errors, R², F and the log-likelihood are the weighted ones, and residuals are shown on the response's own scale."
+            "Fitted by weighted least squares, each row weighted by '{w}': rows of larger weight count more, standard errors, R², F and the log-likelihood are the weighted ones, and residuals are shown on the response's own scale. The prediction intervals of forecast and scenario rows take a weight of {} (`weight` under [model.forecast] or [model.scenarios]): a new value's variance is σ² divided by its weight.",
+            m.new_row_weight.map_or("1".to_string(), |w| w.to_string())
         ));
     }
     notes.extend(m.term_notes.iter().cloned());
