@@ -231,8 +231,9 @@ pub fn robust_check(design: &Design, fit: &Fit) -> Option<Check> {
             crate::job::Robust::Hc3 => format!(
                 "{which}: the HC3 standard errors of {coefficients} are undefined and left blank, with their t, p and intervals; the other coefficients' do not depend on those rows. HC1 would give these coefficients standard errors that are too small"
             ),
-            crate::job::Robust::Hc1 => format!(
-                "{which}: the HC1 standard errors of {coefficients} leave that variance out and are too small (HC3 reports them as undefined); read those coefficients with care"
+            crate::job::Robust::Hc1 | crate::job::Robust::Hac(_) => format!(
+                "{which}: the {} standard errors of {coefficients} leave that variance out and are too small (HC3 reports them as undefined); read those coefficients with care",
+                kind.label()
             ),
         },
     })

@@ -262,6 +262,12 @@ pub enum DesignError {
         /// The value as text.
         value: String,
     },
+    /// Newey-West standard errors of panel data.
+    #[error("model '{model}': standard_errors = \"HAC\" needs one series in period order, but several rows share a period (panel data), whose correlation across series Newey-West does not cover; fit one series per model (`by`), or use \"HC3\"")]
+    HacOfPanel {
+        /// The model.
+        model: String,
+    },
     /// A response that cannot be logged.
     #[error("model '{model}': {place}, cell {cell} in response '{column}' holds {value}; `transform = \"log\"` needs every response value above zero")]
     NotPositive {

@@ -183,6 +183,11 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
     let timing = match &dates {
         Some((column, stamps)) => {
             let mut t = time::timing(&ctx, column, stamps, &keep, model.frequency, series)?;
+            if matches!(model.standard_errors, Some(crate::job::Robust::Hac(_))) && t.panel {
+                return Err(DesignError::HacOfPanel {
+                    model: model.name.clone(),
+                });
+            }
             if !model.lags.is_empty() {
                 lags::refuse_panel(&ctx, column, &keep, &t)?;
                 history = LagHistory::of_data(&lagged, series, stamps, &t);

@@ -319,6 +319,10 @@ pub struct Fit {
 /// of freedom. The overall F test and the forecast intervals keep the
 /// classical variance.
 pub fn with_robust_errors(mut fit: Fit, design: &Design, kind: Robust) -> Fit {
+    let kind = match kind {
+        Robust::Hac(None) => Robust::Hac(Some(robust::newey_west_lags(fit.n))),
+        other => other,
+    };
     let ls = &fit.solution;
     let residuals: Vec<f64> = ls.residuals.iter().copied().collect();
     let cov = robust_covariance(

@@ -119,6 +119,9 @@ pub fn robust_covariance(
     if !shapes_agree || n <= p {
         return DMatrix::from_element(p, p, f64::NAN);
     }
+    if let Robust::Hac(lags) = kind {
+        return newey_west(x, kept, xtx_inv, residuals, lags.unwrap_or(0) as usize);
+    }
     // Row i of W is √ωᵢ cᵢ', cᵢ' = xᵢ'(X'X)⁻¹ ((X'X)⁻¹ is symmetric); V =
     // W'W, summed over blocks of rows.
     let hc1_scale = (n as f64 / (n - p) as f64).sqrt();
@@ -130,7 +133,8 @@ pub fn robust_covariance(
             let i = start + k;
             let e = residuals[i].abs();
             let root_weight = match kind {
-                Robust::Hc1 => hc1_scale * e,
+                // HAC was computed above; HC1 here.
+                Robust::Hc1 | Robust::Hac(_) => hc1_scale * e,
                 Robust::Hc3 => {
                     let room = 1.0 - leverage[i];
                     if room <= UNIT_LEVERAGE_TOLERANCE {
@@ -153,6 +157,42 @@ pub fn robust_covariance(
     v
 }
 
+/// The usual number of Newey-West lags for `n` rows in period order,
+/// floor(4 (n/100)^(2/9)) (Newey & West 1994; common practice).
+pub fn newey_west_lags(n: usize) -> u32 {
+    (4.0 * (n as f64 / 100.0).powf(2.0 / 9.0)).floor() as u32
+}
+
+/// Newey-West covariance (Newey & West 1987): with sᵢ = (X'X)⁻¹xᵢeᵢ the
+/// rows' scores in period order, V = Σᵢ sᵢsᵢ' + Σₗ₌₁ᴸ (1 − l/(L + 1))
+/// Σᵢ₌ₗ₊₁ⁿ (sᵢsᵢ₋ₗ' + sᵢ₋ₗsᵢ'), without a small-sample factor (as R's
+/// `sandwich::NeweyWest(fit, lag = L, prewhite = FALSE, adjust = FALSE)`).
+fn newey_west(
+    x: &DesignMatrix,
+    kept: &[usize],
+    xtx_inv: &DMatrix<f64>,
+    residuals: &[f64],
+    lags: usize,
+) -> DMatrix<f64> {
+    let (n, p) = (x.nrows(), kept.len());
+    let mut scores = DMatrix::zeros(n, p);
+    for rows in x.blocks() {
+        let start = rows.start;
+        let mut block = x.dense_block(rows, kept) * xtx_inv;
+        for (k, mut row) in block.row_iter_mut().enumerate() {
+            row *= residuals[start + k];
+        }
+        scores.rows_mut(start, block.nrows()).copy_from(&block);
+    }
+    let mut v = scores.transpose() * &scores;
+    for l in 1..=lags.min(n.saturating_sub(1)) {
+        let weight = 1.0 - l as f64 / (lags as f64 + 1.0);
+        let cross = scores.rows(l, n - l).transpose() * scores.rows(0, n - l);
+        v += (&cross + cross.transpose()) * weight;
+    }
+    v
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -166,6 +206,38 @@ mod tests {
         let ys = [1.2, 1.9, 3.4, 3.7, 5.9, 5.1];
         let x = DMatrix::from_fn(6, 2, |i, j| if j == 0 { 1.0 } else { xs[i] });
         (x, DVector::from_row_slice(&ys))
+    }
+
+    #[test]
+    fn newey_west_without_lags_is_white_and_its_lags_add_the_bartlett_terms() {
+        let (x, y) = line();
+        let design = DesignMatrix::from_dense(&x, None);
+        let ls = least_squares(&design, &y);
+        let e = ls.residuals.as_slice();
+        let hac = |lags| {
+            robust_covariance(
+                &design,
+                &ls.kept,
+                &ls.xtx_inv,
+                e,
+                &ls.leverage,
+                Robust::Hac(Some(lags)),
+            )
+        };
+        let hc1 = robust_covariance(&design, &ls.kept, &ls.xtx_inv, e, &ls.leverage, Robust::Hc1);
+        // Lag 0 is White's HC0, HC1 without its n/(n − p).
+        let white = hac(0);
+        assert!((white[(1, 1)] * 6.0 / 4.0 - hc1[(1, 1)]).abs() < 1e-15);
+        // Lag 1 adds (1 − 1/2)·Σ (sᵢsᵢ₋₁' + sᵢ₋₁sᵢ') for the slope's scores
+        // sᵢ = (xᵢ − x̄)eᵢ/Sxx.
+        let xs: Vec<f64> = x.column(1).iter().copied().collect();
+        let mean = xs.iter().sum::<f64>() / 6.0;
+        let sxx: f64 = xs.iter().map(|v| (v - mean).powi(2)).sum();
+        let score: Vec<f64> = (0..6).map(|i| (xs[i] - mean) * e[i] / sxx).collect();
+        let cross: f64 = (1..6).map(|i| score[i] * score[i - 1]).sum();
+        assert!((hac(1)[(1, 1)] - (white[(1, 1)] + cross)).abs() < 1e-14);
+        assert_eq!(newey_west_lags(100), 4);
+        assert_eq!(newey_west_lags(60), 3);
     }
 
     #[test]

@@ -43,7 +43,7 @@ pub const DEFAULT_MAX_MODELS: usize = 1000;
 /// The confidence level used for intervals when a model does not set one.
 pub const DEFAULT_CONFIDENCE: f64 = 0.95;
 
-/// Which heteroscedasticity-consistent estimator.
+/// Which robust estimator of the coefficients' covariance.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
 pub enum Robust {
     /// HC1: ωᵢ = n/(n − p)·eᵢ², White's HC0 with the degrees-of-freedom
@@ -54,14 +54,35 @@ pub enum Robust {
     /// 1985, their jackknife approximation); recommended by Long & Ervin
     /// (2000), above all for samples under 250 rows.
     Hc3,
+    /// Newey-West heteroscedasticity-and-autocorrelation-consistent
+    /// (HAC): the products of the rows' scores up to `lags` rows apart, in
+    /// period order, weighted by the Bartlett kernel 1 − l/(L + 1) (Newey &
+    /// West 1987), without a small-sample factor. `None` until the fit
+    /// settles the usual rule floor(4 (n/100)^(2/9)).
+    Hac(Option<u32>),
 }
 
 impl Robust {
-    /// The estimator's usual short name, for the report: "HC1" or "HC3".
+    /// The estimator's usual short name, for the report: "HC1", "HC3" or
+    /// "HAC".
     pub fn label(self) -> &'static str {
         match self {
             Robust::Hc1 => "HC1",
             Robust::Hc3 => "HC3",
+            Robust::Hac(_) => "HAC",
+        }
+    }
+
+    /// The estimator in words, with its lag count: "HC3
+    /// (heteroscedasticity-consistent)", "HAC (Newey-West, 4 lags)".
+    pub fn describe(self) -> String {
+        match self {
+            Robust::Hac(Some(lags)) => format!(
+                "HAC (Newey-West, {lags} lag{})",
+                if lags == 1 { "" } else { "s" }
+            ),
+            Robust::Hac(None) => "HAC (Newey-West)".into(),
+            other => format!("{} (heteroscedasticity-consistent)", other.label()),
         }
     }
 }
@@ -364,15 +385,28 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                 ))
             }
         };
+        if m.hac_lags.is_some()
+            && m.standard_errors
+                .as_deref()
+                .map(str::to_ascii_uppercase)
+                .as_deref()
+                != Some("HAC")
+        {
+            return Err(invalid(
+                &key("hac_lags"),
+                "goes with standard_errors = \"HAC\"; set that too, or remove hac_lags".into(),
+            ));
+        }
         let standard_errors = match m.standard_errors.as_deref().map(str::to_ascii_uppercase).as_deref() {
             None | Some("CLASSICAL") => None,
             Some("HC1") => Some(Robust::Hc1),
             Some("HC3") => Some(Robust::Hc3),
+            Some("HAC") => Some(Robust::Hac(m.hac_lags)),
             Some(_) => {
                 return Err(invalid(
                     &key("standard_errors"),
                     format!(
-                        "'{}' is not a choice; use \"HC3\" or \"HC1\" (or leave it out for the classical ones)",
+                        "'{}' is not a choice; use \"HC3\", \"HC1\" or \"HAC\" (or leave it out for the classical ones)",
                         m.standard_errors.unwrap_or_default()
                     ),
                 ))

@@ -530,6 +530,14 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
             ));
         }
     }
+    if let Some(crate::job::Robust::Hac(_)) = spec.standard_errors {
+        if spec.date_column().is_none() {
+            return Err((
+                "standard_errors",
+                "\"HAC\" (Newey-West) needs the rows in period order: add `trend` or `season` with the date column, or use \"HC3\"".into(),
+            ));
+        }
+    }
     if let Some(by) = &spec.by {
         if spec.columns().any(|c| c == by) || spec.date_column() == Some(by.as_str()) {
             return Err((

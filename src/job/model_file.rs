@@ -82,6 +82,9 @@ pub struct ModelFile {
     pub weights: Option<String>,
     /// A column whose levels each get their own fit of the model.
     pub by: Option<String>,
+    /// With `standard_errors = "HAC"`: the lags of the Newey-West
+    /// estimator; default floor(4 (n/100)^(2/9)).
+    pub hac_lags: Option<u32>,
 }
 
 /// The `[model.scenarios]` table.

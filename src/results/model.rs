@@ -126,6 +126,13 @@ pub struct ModelResults {
     /// `HC3` or `HC1` when the coefficients' standard errors are
     /// heteroscedasticity-consistent; absent for the classical ones.
     pub standard_errors: Option<String>,
+    /// The same in words with its lag count, as the coefficient sheet
+    /// names it: "HAC (Newey-West, 4 lags)".
+    #[serde(skip)]
+    pub standard_errors_described: Option<String>,
+    /// With HAC standard errors: the Newey-West lags used.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub hac_lags: Option<u32>,
     /// `log` when the model was fitted to the natural log of the response.
     pub transform: Option<String>,
     /// The weights column, for a weighted least squares fit.
@@ -266,6 +273,11 @@ pub fn analyse(
         weights: spec.weights.clone(),
         new_row_weight: spec.weights.as_ref().map(|_| spec.new_row_weight),
         standard_errors: fit.standard_errors.map(|k| k.label().to_string()),
+        standard_errors_described: fit.standard_errors.map(|k| k.describe()),
+        hac_lags: match fit.standard_errors {
+            Some(crate::job::Robust::Hac(lags)) => lags,
+            _ => None,
+        },
         timing: design.timing.as_ref().map(|t| TimingNote {
             column: t.column.clone(),
             frequency: t.frequency,

@@ -34,10 +34,11 @@ pub(super) fn coefficients(
                 num(c.ci_lower, Style::Value),
                 num(c.ci_upper, Style::Value),
                 num(m.confidence, Style::Share),
-                text(match &m.standard_errors {
-                    Some(kind) => format!("{kind} (heteroscedasticity-consistent)"),
-                    None => "classical".to_string(),
-                }),
+                text(
+                    m.standard_errors_described
+                        .as_deref()
+                        .unwrap_or("classical"),
+                ),
                 Cell::Empty,
             ]);
         }
