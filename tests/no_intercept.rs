@@ -15,7 +15,9 @@ mod common;
 use std::collections::HashMap;
 use std::path::PathBuf;
 
-use common::{assert_close, read_json, sheetfit, Scratch};
+use common::{
+    assert_close, assert_numbers, read_json, sheetfit, Scratch, COEFFICIENT_KEYS, INTERVAL_KEYS,
+};
 use serde_json::Value;
 
 fn fixtures() -> PathBuf {
@@ -72,16 +74,7 @@ fn assert_matches(case: &str, ours: &Value) {
         let g = got
             .get(term)
             .unwrap_or_else(|| panic!("{case}: no coefficient {term} in {:?}", got.keys()));
-        for key in [
-            "estimate",
-            "std_error",
-            "t_stat",
-            "p_value",
-            "ci_lower",
-            "ci_upper",
-        ] {
-            assert_close(&format!("{case} {term} {key}"), f(g, key), f(e, key), TOL);
-        }
+        assert_numbers(&format!("{case} {term}"), g, e, &COEFFICIENT_KEYS, TOL);
     }
     for key in ["r_squared", "adj_r_squared", "sigma", "f_stat"] {
         assert_close(
@@ -172,15 +165,12 @@ fn seasons_without_an_intercept_get_every_month_and_forecast_the_same() {
     for (g, e) in got.iter().zip(exp) {
         assert_eq!(g["period"], e["period"]);
         assert_eq!(g["index"], e["index"]);
-        for key in [
-            "estimate",
-            "mean_lower",
-            "mean_upper",
-            "pred_lower",
-            "pred_upper",
-        ] {
-            let what = format!("forecast {} {key}", e["period"]);
-            assert_close(&what, f(g, key), f(e, key), TOL);
-        }
+        assert_numbers(
+            &format!("forecast {}", e["period"]),
+            g,
+            e,
+            &INTERVAL_KEYS,
+            TOL,
+        );
     }
 }

@@ -13,7 +13,10 @@ mod common;
 
 use std::path::PathBuf;
 
-use common::{assert_close, read_json, sheetfit, stderr, Scratch};
+use common::{
+    assert_close, assert_numbers, read_json, sheetfit, stderr, Scratch, COEFFICIENT_KEYS,
+    INTERVAL_KEYS,
+};
 use serde_json::Value;
 
 fn fixture(name: &str) -> PathBuf {
@@ -60,16 +63,7 @@ fn assert_fit(case: &str, expected: &Value, ours: &Value) {
     for (g, e) in got.iter().zip(exp) {
         let term = e["term"].as_str().expect("term");
         assert_eq!(g["term"], e["term"], "{case}");
-        for key in [
-            "estimate",
-            "std_error",
-            "t_stat",
-            "p_value",
-            "ci_lower",
-            "ci_upper",
-        ] {
-            assert_close(&format!("{case} {term} {key}"), f(g, key), f(e, key), TOL);
-        }
+        assert_numbers(&format!("{case} {term}"), g, e, &COEFFICIENT_KEYS, TOL);
     }
     for key in [
         "r_squared",
@@ -97,16 +91,13 @@ fn assert_forecast(case: &str, expected: &Value, ours: &Value) {
     for (g, e) in got.iter().zip(exp) {
         assert_eq!(g["period"], e["period"], "{case}");
         assert_eq!(g["index"], e["index"], "{case}");
-        for key in [
-            "estimate",
-            "mean_lower",
-            "mean_upper",
-            "pred_lower",
-            "pred_upper",
-        ] {
-            let what = format!("{case} forecast {} {key}", e["period"]);
-            assert_close(&what, f(g, key), f(e, key), TOL);
-        }
+        assert_numbers(
+            &format!("{case} forecast {}", e["period"]),
+            g,
+            e,
+            &INTERVAL_KEYS,
+            TOL,
+        );
     }
 }
 
@@ -317,16 +308,7 @@ fn lags_of_panel_data_are_taken_within_each_series_and_forecast_for_each() {
     for (g, e) in got.iter().zip(exp) {
         assert_eq!(g["period"], e["period"]);
         assert_eq!(g["series"], e["series"]);
-        for key in [
-            "estimate",
-            "mean_lower",
-            "mean_upper",
-            "pred_lower",
-            "pred_upper",
-        ] {
-            let what = format!("total {} {key}", e["period"]);
-            assert_close(&what, f(g, key), f(e, key), TOL);
-        }
+        assert_numbers(&format!("total {}", e["period"]), g, e, &INTERVAL_KEYS, TOL);
     }
 }
 

@@ -12,7 +12,10 @@ mod common;
 
 use std::path::PathBuf;
 
-use common::{assert_close, read_json, sheetfit, stderr, Scratch};
+use common::{
+    assert_close, assert_numbers, read_json, sheetfit, stderr, Scratch, COEFFICIENT_KEYS,
+    INTERVAL_KEYS,
+};
 use serde_json::Value;
 
 fn fixture(name: &str) -> PathBuf {
@@ -77,16 +80,7 @@ fn coefficients_and_fit_statistics_match_weighted_lm() {
     for (g, e) in got.iter().zip(exp) {
         let term = e["term"].as_str().expect("term");
         assert_eq!(g["term"], e["term"]);
-        for key in [
-            "estimate",
-            "std_error",
-            "t_stat",
-            "p_value",
-            "ci_lower",
-            "ci_upper",
-        ] {
-            assert_close(&format!("{term} {key}"), f(g, key), f(e, key), TOL);
-        }
+        assert_numbers(term, g, e, &COEFFICIENT_KEYS, TOL);
     }
     for key in [
         "r_squared",
@@ -136,16 +130,7 @@ fn predictions_take_the_new_rows_weight() {
     let exp = expected["scenarios"].as_array().expect("scenarios");
     assert_eq!(got.len(), exp.len());
     for (g, e) in got.iter().zip(exp) {
-        for key in [
-            "estimate",
-            "mean_lower",
-            "mean_upper",
-            "pred_lower",
-            "pred_upper",
-        ] {
-            let what = format!("{} {key}", e["name"]);
-            assert_close(&what, f(g, key), f(e, key), TOL);
-        }
+        assert_numbers(&format!("{}", e["name"]), g, e, &INTERVAL_KEYS, TOL);
     }
 }
 

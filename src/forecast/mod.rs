@@ -163,18 +163,9 @@ pub struct ForecastRow {
     pub series: Option<String>,
     /// The predictor values used, as text, in model order.
     pub inputs: indexmap::IndexMap<String, String>,
-    /// Point forecast x₀ᵀb (with a log response: exp(x₀ᵀb), a median).
-    pub estimate: f64,
-    /// Lower limit of the confidence interval of the mean.
-    pub mean_lower: f64,
-    /// Upper limit of the confidence interval of the mean.
-    pub mean_upper: f64,
-    /// Lower limit of the prediction interval of a new value.
-    pub pred_lower: f64,
-    /// Upper limit of the prediction interval of a new value.
-    pub pred_upper: f64,
-    /// With a log response: the smearing estimate of the mean (Duan 1983).
-    pub smeared_mean: Option<f64>,
+    /// The estimate and its intervals.
+    #[serde(flatten)]
+    pub prediction: Predicted,
 }
 
 /// The forecast rows of a model: the next periods (`horizon`, other
@@ -257,12 +248,7 @@ pub fn forecast(
                     .and_then(|s| row.values.get(&s.column))
                     .map(Value::to_string),
                 inputs: inputs(&predictors, &row),
-                estimate: p.estimate,
-                mean_lower: p.mean_lower,
-                mean_upper: p.mean_upper,
-                pred_lower: p.pred_lower,
-                pred_upper: p.pred_upper,
-                smeared_mean: p.smeared_mean,
+                prediction: p,
             })
         })
         .collect::<Result<_, ForecastError>>()?;
@@ -281,14 +267,20 @@ fn inputs(columns: &[&str], row: &FutureRow) -> indexmap::IndexMap<String, Strin
 }
 
 /// A row's estimate and intervals on the response's own scale.
-#[derive(Debug, Clone, Copy)]
-struct Predicted {
-    estimate: f64,
-    mean_lower: f64,
-    mean_upper: f64,
-    pred_lower: f64,
-    pred_upper: f64,
-    smeared_mean: Option<f64>,
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct Predicted {
+    /// Point prediction x₀ᵀb (with a log response: exp(x₀ᵀb), a median).
+    pub estimate: f64,
+    /// Lower limit of the confidence interval of the mean.
+    pub mean_lower: f64,
+    /// Upper limit of the confidence interval of the mean.
+    pub mean_upper: f64,
+    /// Lower limit of the prediction interval of a new value.
+    pub pred_lower: f64,
+    /// Upper limit of the prediction interval of a new value.
+    pub pred_upper: f64,
+    /// With a log response: the smearing estimate of the mean (Duan 1983).
+    pub smeared_mean: Option<f64>,
 }
 
 /// Predicts rows of one fitted model.

@@ -4,7 +4,7 @@
 use indexmap::IndexMap;
 use serde::Serialize;
 
-use super::{inputs, sheet_rows, ForecastError, Predictor, SheetKind};
+use super::{inputs, sheet_rows, ForecastError, Predicted, Predictor, SheetKind};
 use crate::design::{Design, FutureRow};
 use crate::fit::Fit;
 use crate::job::{HoldValue, ModelSpec, ScenarioSpec};
@@ -20,18 +20,9 @@ pub struct ScenarioRow {
     pub period: Option<String>,
     /// The predictor values, as given.
     pub inputs: IndexMap<String, String>,
-    /// Point prediction (a median for a log response).
-    pub estimate: f64,
-    /// Lower limit of the confidence interval of the mean.
-    pub mean_lower: f64,
-    /// Upper limit of the confidence interval of the mean.
-    pub mean_upper: f64,
-    /// Lower limit of the prediction interval of a new value.
-    pub pred_lower: f64,
-    /// Upper limit of the prediction interval of a new value.
-    pub pred_upper: f64,
-    /// With a log response: the smearing estimate of the mean (Duan 1983).
-    pub smeared_mean: Option<f64>,
+    /// The estimate and its intervals.
+    #[serde(flatten)]
+    pub prediction: Predicted,
 }
 
 /// The scenarios of a model, from the job's rows or from `sheet` (the
@@ -131,12 +122,7 @@ pub fn scenarios(
                 name,
                 period: row.period.map(|p| p.to_string()),
                 inputs: inputs(&predictors, &row),
-                estimate: p.estimate,
-                mean_lower: p.mean_lower,
-                mean_upper: p.mean_upper,
-                pred_lower: p.pred_lower,
-                pred_upper: p.pred_upper,
-                smeared_mean: p.smeared_mean,
+                prediction: p,
             })
         })
         .collect()

@@ -165,6 +165,49 @@ pub fn assert_close(what: &str, a: f64, b: f64, tol: f64) {
     );
 }
 
+/// Checks each number `keys` of `got` against `expected`'s (JSON objects)
+/// with [`assert_close`], naming `what` and the key on failure.
+pub fn assert_numbers(
+    what: &str,
+    got: &serde_json::Value,
+    expected: &serde_json::Value,
+    keys: &[&str],
+    tol: f64,
+) {
+    for key in keys {
+        let number = |v: &serde_json::Value, side: &str| {
+            v[*key]
+                .as_f64()
+                .unwrap_or_else(|| panic!("{what} {key}: {side} has no number in {v}"))
+        };
+        assert_close(
+            &format!("{what} {key}"),
+            number(got, "ours"),
+            number(expected, "the reference"),
+            tol,
+        );
+    }
+}
+
+/// The keys of a coefficient the reference libraries report.
+pub const COEFFICIENT_KEYS: [&str; 6] = [
+    "estimate",
+    "std_error",
+    "t_stat",
+    "p_value",
+    "ci_lower",
+    "ci_upper",
+];
+
+/// The keys of a predicted row: the estimate and both intervals.
+pub const INTERVAL_KEYS: [&str; 5] = [
+    "estimate",
+    "mean_lower",
+    "mean_upper",
+    "pred_lower",
+    "pred_upper",
+];
+
 /// Exit status of a finished run.
 pub fn status(out: &Output) -> i32 {
     out.status.code().expect("sheetfit ended by a signal")

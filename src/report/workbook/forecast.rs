@@ -10,6 +10,7 @@ use super::{
     axis_range, charted, num, opt, text, write_table, Cell, Formats, Style, BACKTEST,
     BACKTEST_ROWS, CHART_DATA,
 };
+use crate::forecast::Predicted;
 use crate::results::model::SERIES_LINES_UP_TO;
 use crate::results::{ModelResults, Results};
 
@@ -37,6 +38,31 @@ fn note(sheet: &mut Worksheet, f: &Formats, words: &str) -> Result<(), XlsxError
     Ok(())
 }
 
+/// The estimate, both intervals, the smeared mean and the confidence level
+/// of a predicted row, as the Forecast and Scenarios sheets show them.
+fn prediction_cells(p: &Predicted, confidence: f64) -> [Cell<'static>; 7] {
+    [
+        num(p.estimate, Style::Value),
+        num(p.mean_lower, Style::Value),
+        num(p.mean_upper, Style::Value),
+        num(p.pred_lower, Style::Value),
+        num(p.pred_upper, Style::Value),
+        opt(p.smeared_mean, Style::Value),
+        num(confidence, Style::Share),
+    ]
+}
+
+/// A predicted row's predictor values: "x = 1; region = East".
+fn inputs_cell(inputs: &indexmap::IndexMap<String, String>) -> Cell<'static> {
+    text(
+        inputs
+            .iter()
+            .map(|(k, v)| format!("{k} = {v}"))
+            .collect::<Vec<_>>()
+            .join("; "),
+    )
+}
+
 /// The forecast rows of every model.
 pub(super) fn forecast_sheet(
     sheet: &mut Worksheet,
@@ -62,26 +88,15 @@ pub(super) fn forecast_sheet(
         .iter()
         .flat_map(|m| {
             m.forecast.iter().map(move |r| {
-                vec![
+                let mut row = vec![
                     text(m.name.as_str()),
                     r.period.as_deref().map_or(Cell::Empty, text),
                     r.date.as_deref().map_or(Cell::Empty, date),
                     opt(r.index.map(|i| i as f64), Style::Count),
-                    num(r.estimate, Style::Value),
-                    num(r.mean_lower, Style::Value),
-                    num(r.mean_upper, Style::Value),
-                    num(r.pred_lower, Style::Value),
-                    num(r.pred_upper, Style::Value),
-                    opt(r.smeared_mean, Style::Value),
-                    num(m.confidence, Style::Share),
-                    text(
-                        r.inputs
-                            .iter()
-                            .map(|(k, v)| format!("{k} = {v}"))
-                            .collect::<Vec<_>>()
-                            .join("; "),
-                    ),
-                ]
+                ];
+                row.extend(prediction_cells(&r.prediction, m.confidence));
+                row.push(inputs_cell(&r.inputs));
+                row
             })
         })
         .collect();
@@ -119,25 +134,14 @@ pub(super) fn scenarios_sheet(
         .iter()
         .flat_map(|m| {
             m.scenarios.iter().map(move |r| {
-                vec![
+                let mut row = vec![
                     text(m.name.as_str()),
                     text(r.name.as_str()),
                     r.period.as_deref().map_or(Cell::Empty, text),
-                    num(r.estimate, Style::Value),
-                    num(r.mean_lower, Style::Value),
-                    num(r.mean_upper, Style::Value),
-                    num(r.pred_lower, Style::Value),
-                    num(r.pred_upper, Style::Value),
-                    opt(r.smeared_mean, Style::Value),
-                    num(m.confidence, Style::Share),
-                    text(
-                        r.inputs
-                            .iter()
-                            .map(|(k, v)| format!("{k} = {v}"))
-                            .collect::<Vec<_>>()
-                            .join("; "),
-                    ),
-                ]
+                ];
+                row.extend(prediction_cells(&r.prediction, m.confidence));
+                row.push(inputs_cell(&r.inputs));
+                row
             })
         })
         .collect();
@@ -274,9 +278,12 @@ pub(super) fn chart_data(
                         r.date.as_deref().map_or(Cell::Empty, date),
                         Cell::Empty,
                         Cell::Empty,
-                        num(r.estimate, Style::Value),
-                        num(r.pred_lower, Style::Value),
-                        num(r.pred_upper - r.pred_lower, Style::Value),
+                        num(r.prediction.estimate, Style::Value),
+                        num(r.prediction.pred_lower, Style::Value),
+                        num(
+                            r.prediction.pred_upper - r.prediction.pred_lower,
+                            Style::Value,
+                        ),
                         text(sh.series.as_str()),
                     ]);
                 }
@@ -341,9 +348,12 @@ pub(super) fn chart_data(
                 r.date.as_deref().map_or(Cell::Empty, date),
                 Cell::Empty,
                 Cell::Empty,
-                num(r.estimate, Style::Value),
-                num(r.pred_lower, Style::Value),
-                num(r.pred_upper - r.pred_lower, Style::Value),
+                num(r.prediction.estimate, Style::Value),
+                num(r.prediction.pred_lower, Style::Value),
+                num(
+                    r.prediction.pred_upper - r.prediction.pred_lower,
+                    Style::Value,
+                ),
                 Cell::Empty,
             ]);
         }
@@ -417,7 +427,7 @@ fn series_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
         .series_history
         .iter()
         .flat_map(|s| s.points.iter().map(|h| h.actual))
-        .chain(m.forecast.iter().map(|r| r.estimate));
+        .chain(m.forecast.iter().map(|r| r.prediction.estimate));
     let (low, high) = axis_range(shown);
     chart
         .y_axis()
@@ -513,7 +523,7 @@ pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
             m.forecast
                 .iter()
                 .filter(|_| !total)
-                .flat_map(|r| [r.pred_lower, r.pred_upper]),
+                .flat_map(|r| [r.prediction.pred_lower, r.prediction.pred_upper]),
         )
         .chain(
             m.forecast_totals
