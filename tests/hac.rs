@@ -79,21 +79,24 @@ fn newey_west_with_hac_lags_matches_sandwich() {
     assert_matches(&ours, "2");
 }
 
-#[test]
-fn newey_west_needs_periods_and_hac_lags_needs_hac() {
+/// Runs a model of `response` with `terms` and Newey-West standard errors
+/// on the fixture `data` (a path under tests/fixtures) and returns the
+/// message the refused job prints.
+fn refused(data: &str, response: &str, terms: &str) -> String {
     let scratch = Scratch::new();
-    std::fs::copy(
-        fixtures().join("periods/nile.csv"),
-        scratch.path("nile.csv"),
-    )
-    .expect("copy");
+    std::fs::copy(fixtures().join(data), scratch.path("data.csv")).expect("copy");
     scratch.write(
         "job.toml",
-        "[input]\nworkbook = \"nile.csv\"\n[[model]]\nname = \"m\"\nresponse = \"volume\"\nnumeric = [\"year\"]\nstandard_errors = \"HAC\"\n",
+        &format!("[input]\nworkbook = \"data.csv\"\n[[model]]\nname = \"m\"\nresponse = \"{response}\"\n{terms}standard_errors = \"HAC\"\n"),
     );
     let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
-    let message = stderr(&out);
-    assert!(!out.status.success());
+    assert!(!out.status.success(), "the job should stop");
+    stderr(&out)
+}
+
+#[test]
+fn newey_west_needs_periods_and_hac_lags_needs_hac() {
+    let message = refused("periods/nile.csv", "volume", "numeric = [\"year\"]\n");
     assert!(
         message.contains("model[1].standard_errors") && message.contains("period order"),
         "{message}"
@@ -104,19 +107,11 @@ fn newey_west_needs_periods_and_hac_lags_needs_hac() {
 
 #[test]
 fn newey_west_of_panel_data_is_refused_with_the_reason() {
-    let scratch = Scratch::new();
-    std::fs::copy(
-        fixtures().join("terms/grunfeld.csv"),
-        scratch.path("data.csv"),
-    )
-    .expect("copy");
-    scratch.write(
-        "job.toml",
-        "[input]\nworkbook = \"data.csv\"\n[[model]]\nname = \"m\"\nresponse = \"invest\"\nnumeric = [\"value\"]\ntrend = \"year\"\nstandard_errors = \"HAC\"\n",
+    let message = refused(
+        "terms/grunfeld.csv",
+        "invest",
+        "numeric = [\"value\"]\ntrend = \"year\"\n",
     );
-    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
-    let message = stderr(&out);
-    assert!(!out.status.success());
     assert!(
         message.contains("one series in period order") && message.contains("`by`"),
         "{message}"

@@ -187,16 +187,7 @@ pub fn forecast(
     let rows: Vec<(String, FutureRow)> = match (forecast, plan) {
         (ForecastSpec::Horizon { horizon, hold }, _) => {
             let last = design.timing.as_ref().map(|t| t.last());
-            let values: std::collections::HashMap<String, Value> = hold
-                .iter()
-                .map(|(column, v)| {
-                    let value = match v {
-                        HoldValue::Number(x) => Value::Number(*x),
-                        HoldValue::Level(l) => Value::text(l),
-                    };
-                    (column.clone(), value)
-                })
-                .collect();
+            let values = held_values(hold);
             // Panel data named by series: a row for each series in each
             // period.
             let series: Vec<Option<(&String, &String)>> = match &design.series {
@@ -253,6 +244,23 @@ pub fn forecast(
         })
         .collect::<Result<_, ForecastError>>()?;
     Ok((rows, totals))
+}
+
+/// Values written in the job (`hold`, a scenario's) as cells of a row to
+/// predict.
+fn held_values(
+    written: &indexmap::IndexMap<String, HoldValue>,
+) -> std::collections::HashMap<String, Value> {
+    written
+        .iter()
+        .map(|(column, v)| {
+            let value = match v {
+                HoldValue::Number(x) => Value::Number(*x),
+                HoldValue::Level(l) => Value::text(l),
+            };
+            (column.clone(), value)
+        })
+        .collect()
 }
 
 /// The value of each of `columns` in `row`, as text, for the report.

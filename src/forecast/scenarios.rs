@@ -4,7 +4,7 @@
 use indexmap::IndexMap;
 use serde::Serialize;
 
-use super::{inputs, sheet_rows, ForecastError, Predicted, Predictor, SheetKind};
+use super::{held_values, inputs, sheet_rows, ForecastError, Predicted, Predictor, SheetKind};
 use crate::design::{Design, FutureRow};
 use crate::fit::Fit;
 use crate::job::{HoldValue, ModelSpec, ScenarioSpec};
@@ -63,17 +63,7 @@ pub fn scenarios(
                         }
                         _ => None,
                     };
-                    let values = s
-                        .values
-                        .iter()
-                        .map(|(c, v)| {
-                            let value = match v {
-                                HoldValue::Number(x) => Value::Number(*x),
-                                HoldValue::Level(l) => Value::text(l),
-                            };
-                            (c.clone(), value)
-                        })
-                        .collect();
+                    let values = held_values(&s.values);
                     Ok((
                         s.name.clone(),
                         format!("scenario '{}'", s.name),
