@@ -150,8 +150,13 @@ pub struct ModelResults {
     pub df_model: usize,
     /// Residual degrees of freedom.
     pub df_resid: usize,
-    /// Sheet rows left out for a blank in a used column.
+    /// Sheet rows left out for a blank in a used column (or, with lags,
+    /// for a lag reaching a period without a value).
     pub dropped_rows: Vec<u32>,
+    /// Whether the model has lagged terms, so rows may be left out for a
+    /// lag without a value.
+    #[serde(skip)]
+    pub has_lags: bool,
     /// Baseline of each categorical predictor.
     pub baselines: Vec<BaselineNote>,
     /// How the derived terms (logs, lags, events, Fourier seasons) are
@@ -296,6 +301,10 @@ pub fn analyse(
         df_model: fit.df_model,
         df_resid: fit.df_resid,
         dropped_rows: design.dropped.clone(),
+        has_lags: design
+            .terms
+            .iter()
+            .any(|t| matches!(t.kind, TermKind::Lag { .. })),
         baselines,
         term_notes: super::terms::term_notes(design, fit),
         aliased: fit.aliased.clone(),

@@ -34,7 +34,7 @@ pub(super) fn overview(
     let rows: [Row; 18] = [
         ("Response", |m| text(&m.response)),
         ("Rows used (n)", |m| num(m.n as f64, Style::Count)),
-        ("Rows left out (blank cells)", |m| {
+        ("Rows left out (blank cells, missing lags)", |m| {
             num(m.dropped_rows.len() as f64, Style::Count)
         }),
         ("Coefficients estimated", |m| {
@@ -309,8 +309,13 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
         notes.push("No rows were left out.".to_string());
     } else {
         notes.push(format!(
-            "{} rows left out for a blank cell in a column this model uses; sheet rows {}.",
+            "{} rows left out for a blank cell in a column this model uses{}; sheet rows {}.",
             m.dropped_rows.len(),
+            if m.has_lags {
+                ", or for a lag reaching a period without a value"
+            } else {
+                ""
+            },
             row_ranges(&m.dropped_rows)
         ));
     }
