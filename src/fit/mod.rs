@@ -138,21 +138,23 @@ pub fn auxiliary_least_squares_with(
 /// for, by the main fit's rule: repeated in double-double arithmetic, with
 /// the columns' low parts, when `extended` asks for it (the model itself
 /// needed it) or when the condition number of the joined columns exceeds
-/// [`EXTENDED_ABOVE`].
+/// [`EXTENDED_ABOVE`]. `extra(low)` forms the added columns, with their low
+/// parts when `low`: they are formed only for the solve that reads them.
 pub fn auxiliary_least_squares_precise(
     x: &DesignMatrix,
-    extra: &DesignMatrix,
+    extra: impl Fn(bool) -> DesignMatrix,
     y: &[f64],
     extended: bool,
 ) -> Auxiliary {
-    let joined = x.joined(extra);
     let y = DVector::from_column_slice(y);
     if !extended {
+        let joined = x.joined(&extra(false));
         let double = qr::effects::<f64>(Columns::of(&joined), &y);
         if qr::condition_number(&double.r) <= EXTENDED_ABOVE {
             return double;
         }
     }
+    let joined = x.joined(&extra(true));
     qr::effects::<DoubleDouble>(Columns::of(&joined).with_low_parts(), &y)
 }
 

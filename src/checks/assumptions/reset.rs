@@ -59,14 +59,15 @@ pub fn reset_or_why(
     }
     let p = x.ncols();
     let centre = x.holds_constant();
-    let powers = DesignMatrix::new(n, scaled_powers(&fitted_extended(x, solution), centre));
+    let powers =
+        |low: bool| DesignMatrix::new(n, scaled_powers(fitted_extended(x, solution), centre, low));
     // With a constant in the model, y less its mean leaves every sum of
     // squares as it is and keeps the digits of a response that is large
     // beside its spread.
     let y = if centre { centred(y) } else { y.to_vec() };
     let ls = auxiliary_least_squares_precise(
         x,
-        &powers,
+        powers,
         &y,
         solution.precision == Precision::DoubleDouble,
     );
@@ -121,9 +122,9 @@ fn centred(values: &[f64]) -> Vec<f64> {
 
 /// The columns z² and z³ of z = (ŷ − m)/s, m the mean of `fitted` when
 /// `centre` and else 0, s the largest |ŷ − m| (1 when every fitted value
-/// is m), formed in double-double and kept as rounded values with their
-/// remainders.
-fn scaled_powers(fitted: &[DoubleDouble], centre: bool) -> Vec<DesignColumn> {
+/// is m), formed in double-double and kept as rounded values, with their
+/// remainders when `low`.
+fn scaled_powers(mut fitted: Vec<DoubleDouble>, centre: bool, low: bool) -> Vec<DesignColumn> {
     let mean = if centre {
         mean(fitted.iter().copied())
     } else {
@@ -134,17 +135,18 @@ fn scaled_powers(fitted: &[DoubleDouble], centre: bool) -> Vec<DesignColumn> {
         .map(|&f| (f - mean).hi().abs())
         .fold(0.0, f64::max);
     let scale = DoubleDouble::from_f64(if largest > 0.0 { largest } else { 1.0 });
-    let z: Vec<DoubleDouble> = fitted.iter().map(|&f| (f - mean) / scale).collect();
+    // z in place of ŷ, and each power's parts formed straight from it, so
+    // a million rows hold no more than ŷ and the two columns.
+    for f in &mut fitted {
+        *f = (*f - mean) / scale;
+    }
     [2, 3]
         .into_iter()
         .map(|power| {
-            let values: Vec<DoubleDouble> = z
-                .iter()
-                .map(|&v| if power == 2 { v * v } else { v * v * v })
-                .collect();
+            let of = |v: DoubleDouble| if power == 2 { v * v } else { v * v * v };
             DesignColumn::Values {
-                hi: values.iter().map(|v| v.hi()).collect(),
-                lo: Some(values.iter().map(|v| v.lo()).collect()),
+                hi: fitted.iter().map(|&v| of(v).hi()).collect(),
+                lo: low.then(|| fitted.iter().map(|&v| of(v).lo()).collect()),
             }
         })
         .collect()
