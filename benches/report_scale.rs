@@ -228,23 +228,23 @@ fn sheet_shapes(path: &Path) -> Result<Vec<(u32, u16)>, Box<dyn Error>> {
     Ok(shapes)
 }
 
-fn run_size(rows: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> {
-    let input = dir.join(format!("rows-{rows}.xlsx"));
-    if !input.exists() {
-        eprintln!("generating {} ...", input.display());
-        generate(&input, rows)?;
-    }
-    let report = dir.join(format!("rows-{rows}-report.xlsx"));
-    let job = dir.join(format!("rows-{rows}.toml"));
-    let text = JOB
+/// Writes `template` with `{input}` and `{output}` filled in as the job
+/// file `job`, runs the release binary on it and measures the run; an
+/// error when it fails or writes no results JSON beside `report`.
+fn run_job(
+    template: &str,
+    input: &Path,
+    report: &Path,
+    job: &Path,
+) -> Result<measure::Measured, Box<dyn Error>> {
+    let text = template
         .replace("{input}", &input.display().to_string())
         .replace("{output}", &report.display().to_string());
-    fs::write(&job, text)?;
-
+    fs::write(job, text)?;
     let tool = measure(
         Command::new(env!("CARGO_BIN_EXE_sheetfit"))
             .args(["run", "-q"])
-            .arg(&job),
+            .arg(job),
     )?;
     if !tool.status.success() {
         return Err(format!("sheetfit failed on {} ({})", job.display(), tool.status).into());
@@ -253,6 +253,17 @@ fn run_size(rows: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> 
     if !json.exists() {
         return Err(format!("sheetfit wrote no {}", json.display()).into());
     }
+    Ok(tool)
+}
+
+fn run_size(rows: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> {
+    let input = dir.join(format!("rows-{rows}.xlsx"));
+    if !input.exists() {
+        eprintln!("generating {} ...", input.display());
+        generate(&input, rows)?;
+    }
+    let report = dir.join(format!("rows-{rows}-report.xlsx"));
+    let tool = run_job(JOB, &input, &report, &dir.join(format!("rows-{rows}.toml")))?;
     let shape = sheet_shapes(&report)?;
     let cells: u64 = shape
         .iter()
@@ -348,19 +359,12 @@ fn run_by(series: usize, dir: &Path, smoke: bool) -> Result<(), Box<dyn Error>> 
         generate_by(&input, series)?;
     }
     let report = dir.join(format!("by-{series}-report.xlsx"));
-    let job = dir.join(format!("by-{series}.toml"));
-    let text = BY_JOB
-        .replace("{input}", &input.display().to_string())
-        .replace("{output}", &report.display().to_string());
-    fs::write(&job, text)?;
-    let tool = measure(
-        Command::new(env!("CARGO_BIN_EXE_sheetfit"))
-            .args(["run", "-q"])
-            .arg(&job),
+    let tool = run_job(
+        BY_JOB,
+        &input,
+        &report,
+        &dir.join(format!("by-{series}.toml")),
     )?;
-    if !tool.status.success() || !report.with_extension("json").exists() {
-        return Err(format!("sheetfit failed on {} ({})", job.display(), tool.status).into());
-    }
     if smoke {
         println!("smoke run: {series} series by level, ok");
     } else {
