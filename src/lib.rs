@@ -157,7 +157,8 @@ fn model_results(
         // fitted and checked.
         let later = &job.models[k + 1..];
         table.clear_columns(|name| later.iter().any(|m| m.reads(name)));
-        let (results, fit) = fit_and_analyse(job, input, spec, &design, inspect)?;
+        let offer_ar1 = scope == Scope::Everything && spec.suggest;
+        let (results, fit) = fit_and_analyse(job, input, spec, &design, offer_ar1, inspect)?;
         out.models.push(results);
         candidates.push(compare::Candidate::new(&spec.name, &design, &fit));
         let name = format!("{} (suggested)", spec.name);
@@ -199,12 +200,15 @@ struct Analysed {
 }
 
 /// Fits one design and computes its results: the fit (with robust
-/// standard errors when asked for), forecast, scenarios and back-test.
+/// standard errors when asked for), forecast, scenarios and back-test, and
+/// the regression with AR(1) errors when the job asks for it or, with
+/// `offer_ar1`, when the residuals are flagged for autocorrelation.
 fn fit_and_analyse(
     job: &Job,
     input: &source::Input,
     spec: &job::ModelSpec,
     design: &design::Design,
+    offer_ar1: bool,
     inspect: &mut dyn FnMut(&job::ModelSpec, &design::Design, &fit::Fit),
 ) -> Result<(results::ModelResults, fit::Fit), Error> {
     let fit = fit::fit(&spec.name, design, spec.confidence)?;
@@ -231,7 +235,53 @@ fn fit_and_analyse(
     let mut results = analyse(spec, design, &fit, rows, backtest);
     results.scenarios = scenarios;
     results.forecast_totals = totals;
+    let ar1 = match spec.errors {
+        job::Errors::Ar1 => Some(
+            fit::ar1::ar1_errors(design, &fit, fit::ar1::Ar1Origin::Job).map_err(|source| {
+                fit::FitError::Ar1 {
+                    model: spec.name.clone(),
+                    source,
+                }
+            })?,
+        ),
+        // An offer that cannot be fitted is simply not made.
+        job::Errors::Independent if offer_ar1 && ar1_called_for(design, &results) => {
+            fit::ar1::ar1_errors(design, &fit, fit::ar1::Ar1Origin::Suggested).ok()
+        }
+        job::Errors::Independent => None,
+    };
+    if let Some(ar1) = ar1 {
+        let rows = forecast::forecast_ar1(spec, design, &fit, plan.as_ref(), &ar1)?;
+        let backtest = match forecast::backtest_ar1(spec, design, fit.confidence) {
+            Ok(backtest) => backtest,
+            // An offer whose back-test cannot be made is not made either.
+            Err(_) if ar1.origin == fit::ar1::Ar1Origin::Suggested => return Ok((results, fit)),
+            Err(e) => return Err(e.into()),
+        };
+        results.ar1_errors = Some(results::ar1::ar1_results(&ar1, rows, backtest));
+    }
     Ok((results, fit))
+}
+
+/// Whether a model's least-squares residuals call for an offer of its
+/// AR(1)-error version: a single series of consecutive periods (at most
+/// [`fit::ar1::OFFER_UP_TO_ROWS`]), unweighted, whose Durbin-Watson or
+/// Breusch-Godfrey check is flagged.
+fn ar1_called_for(design: &design::Design, results: &results::ModelResults) -> bool {
+    let Some(timing) = &design.timing else {
+        return false;
+    };
+    let consecutive = timing
+        .periods
+        .windows(2)
+        .all(|w| w[1].ordinal == w[0].ordinal + 1);
+    consecutive
+        && design.weights.is_none()
+        && design.y.len() <= fit::ar1::OFFER_UP_TO_ROWS
+        && results
+            .checks
+            .iter()
+            .any(|c| c.flagged && matches!(c.name.as_str(), "durbin-watson" | "breusch-godfrey"))
 }
 
 /// The model `spec` fitted to each level of its `by` column in turn, as a
@@ -255,7 +305,7 @@ fn by_level_results(
         };
         let fitted = design::build(&table.select_rows(&rows), &level_spec)
             .map_err(Error::from)
-            .and_then(|design| fit_and_analyse(job, input, &level_spec, &design, inspect));
+            .and_then(|design| fit_and_analyse(job, input, &level_spec, &design, false, inspect));
         match fitted {
             Ok((mut results, _)) => {
                 results.by = Some(results::ByLevel {

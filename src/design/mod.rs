@@ -30,7 +30,7 @@ mod weights;
 
 use nalgebra::DVector;
 
-use crate::job::ModelSpec;
+use crate::job::{Errors, ModelSpec};
 use crate::source::{Column, Table, Value};
 
 pub use by::by_levels;
@@ -188,6 +188,11 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
                     model: model.name.clone(),
                 });
             }
+            if model.errors == Errors::Ar1 && t.panel {
+                return Err(DesignError::Ar1OfPanel {
+                    model: model.name.clone(),
+                });
+            }
             if !model.lags.is_empty() {
                 lags::refuse_panel(&ctx, column, &keep, &t)?;
                 history = LagHistory::of_data(&lagged, series, stamps, &t);
@@ -208,10 +213,21 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             let mut order: Vec<usize> = (0..keep.len()).collect();
             order.sort_by_key(|&k| t.periods[k]);
             keep = order.iter().map(|&k| keep[k]).collect();
-            Some(Timing {
-                periods: order.iter().map(|&k| t.periods[k]).collect(),
-                ..t
-            })
+            let periods: Vec<_> = order.iter().map(|&k| t.periods[k]).collect();
+            if model.errors == Errors::Ar1 {
+                if let Some(k) =
+                    (1..periods.len()).find(|&k| periods[k].ordinal != periods[k - 1].ordinal + 1)
+                {
+                    return Err(DesignError::Ar1Gap {
+                        model: model.name.clone(),
+                        before: periods[k - 1].to_string(),
+                        before_row: table.rows[keep[k - 1]],
+                        after: periods[k].to_string(),
+                        after_row: table.rows[keep[k]],
+                    });
+                }
+            }
+            Some(Timing { periods, ..t })
         }
         None => None,
     };

@@ -10,6 +10,7 @@
 //! the solution, stay on the fast path.
 
 mod absorb;
+pub mod ar1;
 pub mod qr;
 pub mod robust;
 
@@ -63,6 +64,14 @@ pub enum FitError {
         rows: usize,
         /// Coefficients that could be estimated.
         coefficients: usize,
+    },
+    /// The regression with AR(1) errors the job asks for cannot be fitted.
+    #[error("model '{model}': errors = \"ar1\": {source}; or leave `errors` out for least squares alone")]
+    Ar1 {
+        /// The model.
+        model: String,
+        /// Why.
+        source: ar1::Ar1Error,
     },
 }
 

@@ -9,19 +9,21 @@
 //! point forecast is then a median, and the smearing estimate
 //! exp(x₀ᵀb)·mean(exp(eᵢ)) (Duan 1983, JASA 78) estimates the mean.
 
+mod ar1;
+mod backtest;
 mod scenarios;
 mod totals;
-
-use std::collections::BTreeSet;
 
 use serde::Serialize;
 
 use crate::design::{Design, EncodeError, FutureRow, LagHistory};
-use crate::fit::{fit, t_quantile, Fit, FitError};
+use crate::fit::ar1::{Ar1Error, Ar1Errors};
+use crate::fit::{t_quantile, Fit, FitError};
 use crate::job::{ForecastSpec, HoldValue, ModelSpec};
 use crate::period::{read_stamp, year_of_number, Period};
 use crate::source::{CellRef, Table, Value};
 
+pub use backtest::{backtest, backtest_ar1, Accuracy, Backtest, BacktestPoint};
 pub use scenarios::{scenarios, ScenarioRow};
 pub use totals::ForecastTotal;
 
@@ -115,6 +117,14 @@ pub enum ForecastError {
         /// The fit's error.
         source: FitError,
     },
+    /// A back-test refit with AR(1) errors failed.
+    #[error("model '{model}': back-test refit with AR(1) errors without the last periods failed: {source}; hold out fewer periods, or leave `errors` out")]
+    BacktestAr1 {
+        /// The model.
+        model: String,
+        /// The likelihood's error.
+        source: Ar1Error,
+    },
 }
 
 /// A prediction on the fitted scale.
@@ -169,7 +179,8 @@ pub struct ForecastRow {
 }
 
 /// The forecast rows of a model: the next periods (`horizon`, other
-/// predictors held) or the rows of a plan sheet (`plan`, read by the caller).
+/// predictors held) or the rows of a plan sheet (`plan`, read by the
+/// caller), with each period's total over the series for panel data.
 ///
 /// # Errors
 /// [`ForecastError`] for a row that cannot be coded or needs an aliased
@@ -184,7 +195,59 @@ pub fn forecast(
         return Ok((Vec::new(), Vec::new()));
     };
     let predictors: Vec<&str> = spec.row_columns();
-    let rows: Vec<(String, FutureRow)> = match (forecast, plan) {
+    let rows = future_rows(spec, design, forecast, plan, &predictors)?;
+    // Each row's lags read the data and the rows before it.
+    let mut history = design.lag_history.clone();
+    for (_, row) in &rows {
+        history.record(row);
+    }
+    let predictor = Predictor::new(spec, design, fit);
+    let totals = totals::totals(&predictor, &rows, &history)?;
+    let rows = rows
+        .into_iter()
+        .map(|(place, row)| {
+            let p = predictor.predict(&place, &row, &history)?;
+            Ok(forecast_row(design, &predictors, &row, p))
+        })
+        .collect::<Result<_, ForecastError>>()?;
+    Ok((rows, totals))
+}
+
+/// The forecast rows of the model's regression with AR(1) errors `ar1`:
+/// the rows [`forecast`] predicts, those after the last period fitted.
+///
+/// # Errors
+/// As [`forecast`].
+pub fn forecast_ar1(
+    spec: &ModelSpec,
+    design: &Design,
+    fit: &Fit,
+    plan: Option<&Table>,
+    ar1: &Ar1Errors,
+) -> Result<Vec<ForecastRow>, ForecastError> {
+    let Some(forecast) = &spec.forecast else {
+        return Ok(Vec::new());
+    };
+    let predictors: Vec<&str> = spec.row_columns();
+    let rows = future_rows(spec, design, forecast, plan, &predictors)?;
+    let mut history = design.lag_history.clone();
+    for (_, row) in &rows {
+        history.record(row);
+    }
+    let predictor = Predictor::new(spec, design, fit);
+    ar1::forecast_rows(&predictor, ar1, &rows, &history, &predictors)
+}
+
+/// The forecast rows as rows to predict, each with the words that place it
+/// in messages.
+fn future_rows(
+    spec: &ModelSpec,
+    design: &Design,
+    forecast: &ForecastSpec,
+    plan: Option<&Table>,
+    predictors: &[&str],
+) -> Result<Vec<(String, FutureRow)>, ForecastError> {
+    Ok(match (forecast, plan) {
         (ForecastSpec::Horizon { horizon, hold }, _) => {
             let last = design.timing.as_ref().map(|t| t.last());
             let values = held_values(hold);
@@ -211,39 +274,34 @@ pub fn forecast(
                 .collect()
         }
         (ForecastSpec::Plan { sheet, .. }, Some(table)) => {
-            sheet_rows(spec, design, SheetKind::Plan, sheet, table, &predictors)?
+            sheet_rows(spec, design, SheetKind::Plan, sheet, table, predictors)?
         }
         (ForecastSpec::Plan { .. }, None) => Vec::new(),
-    };
-    // Each row's lags read the data and the rows before it.
-    let mut history = design.lag_history.clone();
-    for (_, row) in &rows {
-        history.record(row);
+    })
+}
+
+/// The forecast row of `row` with its prediction.
+fn forecast_row(
+    design: &Design,
+    predictors: &[&str],
+    row: &FutureRow,
+    prediction: Predicted,
+) -> ForecastRow {
+    ForecastRow {
+        period: row.period.map(|p| p.to_string()),
+        index: row
+            .period
+            .zip(design.timing.as_ref())
+            .map(|(p, t)| t.index(p)),
+        date: row.period.map(|p| p.start().to_string()),
+        series: design
+            .series
+            .as_ref()
+            .and_then(|s| row.values.get(&s.column))
+            .map(Value::to_string),
+        inputs: inputs(predictors, row),
+        prediction,
     }
-    let predictor = Predictor::new(spec, design, fit);
-    let totals = totals::totals(&predictor, &rows, &history)?;
-    let rows = rows
-        .into_iter()
-        .map(|(place, row)| {
-            let p = predictor.predict(&place, &row, &history)?;
-            Ok(ForecastRow {
-                period: row.period.map(|p| p.to_string()),
-                index: row
-                    .period
-                    .zip(design.timing.as_ref())
-                    .map(|(p, t)| t.index(p)),
-                date: row.period.map(|p| p.start().to_string()),
-                series: design
-                    .series
-                    .as_ref()
-                    .and_then(|s| row.values.get(&s.column))
-                    .map(Value::to_string),
-                inputs: inputs(&predictors, &row),
-                prediction: p,
-            })
-        })
-        .collect::<Result<_, ForecastError>>()?;
-    Ok((rows, totals))
 }
 
 /// Values written in the job (`hold`, a scenario's) as cells of a row to
@@ -492,198 +550,4 @@ fn sheet_rows(
             Ok((place, FutureRow { period, values }))
         })
         .collect()
-}
-
-/// One held-out row of a back-test.
-#[derive(Debug, Clone, Serialize)]
-pub struct BacktestPoint {
-    /// Period label.
-    pub period: String,
-    /// Sheet row of the observation.
-    pub row: u32,
-    /// Observed response.
-    pub actual: f64,
-    /// Forecast from the refit.
-    pub estimate: f64,
-    /// Lower prediction limit.
-    pub pred_lower: f64,
-    /// Upper prediction limit.
-    pub pred_upper: f64,
-    /// Whether the actual lies inside the prediction interval.
-    pub inside: bool,
-}
-
-/// Forecast accuracy over a set of held-out rows.
-#[derive(Debug, Clone, Serialize)]
-pub struct Accuracy {
-    /// Mean absolute error.
-    pub mae: f64,
-    /// Root mean squared error.
-    pub rmse: f64,
-    /// Mean absolute percentage error, in percent; absent when every
-    /// actual is zero.
-    pub mape: Option<f64>,
-    /// Share of actuals inside their prediction interval (0 to 1).
-    pub coverage: f64,
-    /// Rows that could not be forecast (they need a coefficient the refit
-    /// could not estimate, e.g. a season seen only in the held-out periods).
-    pub skipped: usize,
-    /// The held-out rows.
-    pub points: Vec<BacktestPoint>,
-}
-
-/// A back-test: refit without the last periods, forecast them.
-#[derive(Debug, Clone, Serialize)]
-pub struct Backtest {
-    /// Number of final periods held out.
-    pub holdout: u32,
-    /// Accuracy of the single refit on all earlier periods.
-    #[serde(flatten)]
-    pub accuracy: Accuracy,
-    /// Accuracy from a rolling origin: for each held-out period in turn,
-    /// refit on all earlier periods and forecast that period.
-    pub rolling: Option<Accuracy>,
-}
-
-/// The model's back-test, when the job asks for one.
-///
-/// # Errors
-/// [`ForecastError::BacktestTooLong`] when the holdout leaves no period to
-/// fit on, [`ForecastError::BacktestFit`] when a refit has too few rows.
-pub fn backtest(
-    spec: &ModelSpec,
-    design: &Design,
-    fit_full: &Fit,
-) -> Result<Option<Backtest>, ForecastError> {
-    let (Some(k), Some(timing)) = (spec.backtest, &design.timing) else {
-        return Ok(None);
-    };
-    let periods: Vec<Period> = timing
-        .periods
-        .iter()
-        .copied()
-        .collect::<BTreeSet<_>>()
-        .into_iter()
-        .collect();
-    if k as usize >= periods.len() {
-        return Err(ForecastError::BacktestTooLong {
-            model: spec.name.clone(),
-            holdout: k,
-            periods: periods.len(),
-        });
-    }
-    let held = &periods[periods.len() - k as usize..];
-    let run = |origins: &[(Period, Vec<Period>)]| -> Result<Accuracy, ForecastError> {
-        let mut points = Vec::new();
-        let mut skipped = 0;
-        for (cutoff, targets) in origins {
-            let train: Vec<usize> = (0..design.rows.len())
-                .filter(|&i| timing.periods[i] < *cutoff)
-                .collect();
-            let sub = design.subset(&train);
-            let refit = fit(&spec.name, &sub, fit_full.confidence).map_err(|source| {
-                ForecastError::BacktestFit {
-                    model: spec.name.clone(),
-                    source,
-                }
-            })?;
-            let t = t_quantile((1.0 + refit.confidence) / 2.0, refit.df_resid as f64);
-            for i in (0..design.rows.len()).filter(|&i| targets.contains(&timing.periods[i])) {
-                // A weighted design holds the row as √wᵢ·xᵢ: its prediction
-                // and standard errors scale back by √wᵢ, which gives the
-                // new value the row's own weight.
-                let x0 = design.row(i);
-                let Ok(p) = predict(&refit, &x0, 1.0) else {
-                    skipped += 1;
-                    continue;
-                };
-                let p = Prediction {
-                    estimate: design.unscaled(i, p.estimate),
-                    se_mean: design.unscaled(i, p.se_mean),
-                    se_new: design.unscaled(i, p.se_new),
-                };
-                let back = |v: f64| if design.log_response { v.exp() } else { v };
-                let actual = back(design.unscaled(i, design.y[i]));
-                let (lower, upper) = (
-                    back(p.estimate - t * p.se_new),
-                    back(p.estimate + t * p.se_new),
-                );
-                points.push(BacktestPoint {
-                    period: timing.periods[i].to_string(),
-                    row: design.rows[i],
-                    actual,
-                    estimate: back(p.estimate),
-                    pred_lower: lower,
-                    pred_upper: upper,
-                    inside: (lower..=upper).contains(&actual),
-                });
-            }
-        }
-        Ok(accuracy(points, skipped))
-    };
-    let holdout = run(&[(held[0], held.to_vec())])?;
-    let rolling = spec
-        .backtest_rolling
-        .then(|| {
-            let origins: Vec<(Period, Vec<Period>)> = held.iter().map(|&p| (p, vec![p])).collect();
-            run(&origins)
-        })
-        .transpose()?;
-    Ok(Some(Backtest {
-        holdout: k,
-        accuracy: holdout,
-        rolling,
-    }))
-}
-
-/// MAE, RMSE, MAPE and coverage of `points`.
-fn accuracy(points: Vec<BacktestPoint>, skipped: usize) -> Accuracy {
-    let n = points.len().max(1) as f64;
-    let errors: Vec<f64> = points.iter().map(|p| p.actual - p.estimate).collect();
-    let mae = errors.iter().map(|e| e.abs()).sum::<f64>() / n;
-    let rmse = (errors.iter().map(|e| e * e).sum::<f64>() / n).sqrt();
-    let relative: Vec<f64> = points
-        .iter()
-        .filter(|p| p.actual != 0.0)
-        .map(|p| ((p.actual - p.estimate) / p.actual).abs())
-        .collect();
-    let mape = (!relative.is_empty())
-        .then(|| relative.iter().sum::<f64>() / relative.len() as f64 * 100.0);
-    let coverage = points.iter().filter(|p| p.inside).count() as f64 / n;
-    Accuracy {
-        mae,
-        rmse,
-        mape,
-        coverage,
-        skipped,
-        points,
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    fn point(actual: f64, estimate: f64, inside: bool) -> BacktestPoint {
-        BacktestPoint {
-            period: "2024-01".into(),
-            row: 2,
-            actual,
-            estimate,
-            pred_lower: 0.0,
-            pred_upper: 0.0,
-            inside,
-        }
-    }
-
-    #[test]
-    fn accuracy_follows_the_definitions() {
-        // Errors 1 and −3 on actuals 10 and 20: MAE 2, RMSE √5,
-        // MAPE (10% + 15%)/2 = 12.5%, one of two inside.
-        let a = accuracy(vec![point(10.0, 9.0, true), point(20.0, 23.0, false)], 0);
-        assert_eq!(a.mae, 2.0);
-        assert!((a.rmse - 5f64.sqrt()).abs() < 1e-15);
-        assert!((a.mape.unwrap() - 12.5).abs() < 1e-12);
-        assert_eq!(a.coverage, 0.5);
-    }
 }

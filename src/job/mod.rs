@@ -87,6 +87,17 @@ impl Robust {
     }
 }
 
+/// The model of the regression's errors.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Errors {
+    /// Independent errors: least squares alone.
+    #[default]
+    Independent,
+    /// Also a regression with AR(1) errors, uₜ = φuₜ₋₁ + eₜ, fitted by
+    /// exact Gaussian maximum likelihood (`errors = "ar1"`).
+    Ar1,
+}
+
 /// An error in the job file itself: it could not be read, parsed or checked.
 #[derive(Debug, thiserror::Error)]
 pub enum JobError {
@@ -412,6 +423,17 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
                 ))
             }
         };
+        let errors = match m.errors.as_deref().map(str::to_ascii_lowercase).as_deref() {
+            None | Some("independent") => Errors::Independent,
+            Some("ar1") => Errors::Ar1,
+            Some(_) => return Err(invalid(
+                &key("errors"),
+                format!(
+                    "'{}' is not a choice; use \"ar1\" (or leave it out for independent errors)",
+                    m.errors.unwrap_or_default()
+                ),
+            )),
+        };
         let new_row_weight = match (
             m.forecast.as_ref().and_then(|f| f.weight),
             m.scenarios.as_ref().and_then(|s| s.weight),
@@ -450,6 +472,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             intercept: m.intercept.unwrap_or(true),
             confidence,
             trend: m.trend,
+            date: m.date,
             season,
             frequency,
             log_response,
@@ -458,6 +481,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
             forecast,
             interactions: m.interactions.into_iter().map(|[a, b]| (a, b)).collect(),
             standard_errors,
+            errors,
             suggest: m.suggest.or(file.suggest).unwrap_or(true),
             max_levels: file.input.max_levels.unwrap_or(DEFAULT_MAX_LEVELS),
             case_sensitive_levels: file.input.case_sensitive_levels.unwrap_or(false),

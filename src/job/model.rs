@@ -8,7 +8,7 @@ use indexmap::IndexMap;
 
 use super::scenarios::ScenarioSpec;
 use super::terms::{EventSpec, FourierSpec, LagSpec};
-use super::{ForecastFile, Robust, SeasonFile};
+use super::{Errors, ForecastFile, Robust, SeasonFile};
 use crate::period::{Frequency, LabelRules, SeasonBy};
 
 /// How a categorical predictor's baseline level was chosen.
@@ -102,6 +102,9 @@ pub struct ModelSpec {
     pub confidence: f64,
     /// Date column of the trend term.
     pub trend: Option<String>,
+    /// A date column that only orders the rows (`date`), for a model
+    /// without a trend or seasons.
+    pub date: Option<String>,
     /// Seasonal indicators.
     pub season: Option<SeasonSpec>,
     /// The period of the date column, when the job sets it.
@@ -118,6 +121,9 @@ pub struct ModelSpec {
     pub interactions: Vec<(String, String)>,
     /// Heteroscedasticity-consistent standard errors, when asked for.
     pub standard_errors: Option<Robust>,
+    /// The model of the errors: with AR(1) errors the model is also fitted
+    /// by maximum likelihood.
+    pub errors: Errors,
     /// Whether a suggested smaller model is searched for.
     pub suggest: bool,
     /// Most levels a categorical predictor (or a season) may have: the
@@ -165,6 +171,7 @@ impl ModelSpec {
             intercept: true,
             confidence: super::DEFAULT_CONFIDENCE,
             trend: None,
+            date: None,
             season: None,
             frequency: None,
             log_response: false,
@@ -173,6 +180,7 @@ impl ModelSpec {
             forecast: None,
             interactions: vec![],
             standard_errors: None,
+            errors: Errors::Independent,
             suggest: true,
             max_levels: super::DEFAULT_MAX_LEVELS,
             case_sensitive_levels: false,
@@ -190,12 +198,14 @@ impl ModelSpec {
     }
 
     /// The date column that orders the rows and counts periods: the trend
-    /// column, else the season column, else the Fourier seasons' column.
+    /// column, else the season column, else the Fourier seasons' column,
+    /// else the `date` column.
     pub fn date_column(&self) -> Option<&str> {
         self.trend
             .as_deref()
             .or(self.season.as_ref().map(|s| s.column.as_str()))
             .or(self.fourier.as_ref().map(|f| f.column.as_str()))
+            .or(self.date.as_deref())
     }
 
     /// Whether the model reads the column `name` (a predictor, the
@@ -428,6 +438,14 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
         .map(String::as_str)
         .chain(spec.season.iter().map(|s| s.column.as_str()))
         .collect();
+    if let (Some(date), Some(&other)) = (&spec.date, time.first()) {
+        if date != other {
+            return Err((
+                "date",
+                format!("'{date}' differs from the date column '{other}' of the trend or season; read them from one date column (or leave `date` out)"),
+            ));
+        }
+    }
     if let [trend, season] = time[..] {
         if trend != season {
             return Err((
@@ -449,13 +467,14 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
         if !spec.lags.is_empty() {
             return Err((
                 "lag",
-                "needs periods to count back: add `trend` or `season` with the date column".into(),
+                "needs periods to count back: add `trend` or `season` with the date column (or `date` alone)".into(),
             ));
         }
         if let Some(event) = spec.events.first() {
             return Err((
                 event.kind.key(),
-                "needs periods: add `trend` or `season` with the date column".into(),
+                "needs periods: add `trend` or `season` with the date column (or `date` alone)"
+                    .into(),
             ));
         }
     }
@@ -480,13 +499,14 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
         if spec.backtest.is_some() {
             return Err((
                 "backtest",
-                "needs periods: add `trend` or `season` with the date column".into(),
+                "needs periods: add `trend` or `season` with the date column (or `date` alone)"
+                    .into(),
             ));
         }
         if matches!(spec.forecast, Some(ForecastSpec::Horizon { .. })) {
             return Err((
                 "forecast.horizon",
-                "needs periods to advance: add `trend` or `season` with the date column, or use `plan_sheet`".into(),
+                "needs periods to advance: add `trend` or `season` with the date column (or `date` alone), or use `plan_sheet`".into(),
             ));
         }
     }
@@ -520,7 +540,8 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
         if time.is_empty() {
             return Err((
                 "series",
-                "needs periods: add `trend` or `season` with the date column".into(),
+                "needs periods: add `trend` or `season` with the date column (or `date` alone)"
+                    .into(),
             ));
         }
         if *series == spec.response || time.contains(&series.as_str()) {
@@ -534,7 +555,27 @@ pub(super) fn check_roles(spec: &ModelSpec) -> Result<(), (&'static str, String)
         if spec.date_column().is_none() {
             return Err((
                 "standard_errors",
-                "\"HAC\" (Newey-West) needs the rows in period order: add `trend` or `season` with the date column, or use \"HC3\"".into(),
+                "\"HAC\" (Newey-West) needs the rows in period order: add `trend` or `season` with the date column (or `date` alone), or use \"HC3\"".into(),
+            ));
+        }
+    }
+    if spec.errors == Errors::Ar1 {
+        if spec.date_column().is_none() {
+            return Err((
+                "errors",
+                "\"ar1\" needs the rows in period order: add `trend` or `season` with the date column (or `date` alone)".into(),
+            ));
+        }
+        if spec.weights.is_some() {
+            return Err((
+                "errors",
+                "\"ar1\" is not combined with `weights`: the errors' variance would change from row to row; remove one of the two".into(),
+            ));
+        }
+        if spec.series.is_some() && spec.by.is_none() {
+            return Err((
+                "errors",
+                "\"ar1\" fits one series of errors, but `series` names several; add `by` with the series column to fit each series on its own".into(),
             ));
         }
     }

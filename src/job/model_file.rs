@@ -32,6 +32,9 @@ pub struct ModelFile {
     /// A date column: the model gains a `trend` term, the period index
     /// 1, 2, … counted in periods from the first one; rows are sorted by it.
     pub trend: Option<String>,
+    /// A date column that only orders the rows and counts periods, for a
+    /// model without a trend or seasons (events, lags, AR(1) errors).
+    pub date: Option<String>,
     /// Seasonal indicators from a date column.
     pub season: Option<SeasonFile>,
     /// The period of the date column: day, week, month, quarter or year;
@@ -85,6 +88,9 @@ pub struct ModelFile {
     /// With `standard_errors = "HAC"`: the lags of the Newey-West
     /// estimator; default floor(4 (n/100)^(2/9)).
     pub hac_lags: Option<u32>,
+    /// `"ar1"`: also fit the model with AR(1) errors by exact maximum
+    /// likelihood.
+    pub errors: Option<String>,
 }
 
 /// The `[model.scenarios]` table.

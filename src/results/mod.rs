@@ -13,6 +13,7 @@ use crate::source::screen::Screened;
 use crate::compare::{Comparison, Comparisons};
 use crate::job::Job;
 
+pub mod ar1;
 pub mod changes;
 pub mod model;
 pub mod terms;

@@ -15,6 +15,7 @@ use crate::fit::{Coefficient, Fit, FitQuality};
 use crate::forecast::{Backtest, ForecastRow, ForecastTotal, ScenarioRow};
 use crate::job::{Baseline, ModelSpec};
 use crate::period::Frequency;
+use crate::results::ar1::Ar1Results;
 use crate::text::significant;
 
 /// How a categorical predictor's baseline was chosen, for the report.
@@ -200,6 +201,9 @@ pub struct ModelResults {
     pub forecast_totals: Vec<ForecastTotal>,
     /// The back-test, when the job asks for one.
     pub backtest: Option<Backtest>,
+    /// The model refitted with AR(1) errors, when the job asks for it or
+    /// the residuals' autocorrelation calls for it.
+    pub ar1_errors: Option<Ar1Results>,
     /// For a suggested model: the model it was reduced from.
     pub suggested_from: Option<String>,
     /// For a suggested model: the terms dropped, in order.
@@ -330,6 +334,7 @@ pub fn analyse(
         scenarios: Vec::new(),
         forecast_totals: Vec::new(),
         backtest,
+        ar1_errors: None,
         suggested_from: None,
         dropped_terms: Vec::new(),
     }

@@ -24,11 +24,13 @@ use statrs::distribution::{ChiSquared, ContinuousCDF, Normal};
 use crate::design::{DesignColumn, DesignMatrix};
 
 mod durbin_watson;
+mod ljung_box;
 mod reset;
 mod shapiro_wilk;
 
 use crate::fit::{auxiliary_least_squares, auxiliary_least_squares_with, Auxiliary};
 pub use durbin_watson::{durbin_watson, DW_EXACT_BELOW, DW_EXACT_TOLERANCE};
+pub use ljung_box::{ljung_box, ljung_box_lags};
 pub use reset::{reset, reset_or_why};
 pub use shapiro_wilk::{shapiro_wilk, SHAPIRO_WILK_MAX, SHAPIRO_WILK_MIN};
 

@@ -1,0 +1,349 @@
+# Reference fixture generator for sheetfit's linear regression with AR(1)
+# errors, fitted by exact Gaussian maximum likelihood:
+#
+#     y = X b + u,  u_t = phi u_{t-1} + e_t,  e_t ~ N(0, sigma2),
+#
+# with the full likelihood, the first observation included at its stationary
+# variance sigma2 / (1 - phi^2).
+#
+# What it produces
+# ----------------
+# In tests/fixtures/ar1/:
+#   * nottem.csv: datasets::nottem (monthly mean air temperature at
+#     Nottingham Castle, 1920-01 to 1939-12), columns month ("1920-01"),
+#     temperature (printed as R prints it; the values have one decimal).
+#   * expected.json: for three cases,
+#       - "nile": datasets::Nile, read from tests/fixtures/periods/nile.csv
+#         (checked here to equal datasets::Nile), volume on
+#         X = [Intercept, dam], dam = 1 from 1899 on; forecast 1971-1975
+#         with dam = 1.
+#       - "nottem": temperature on X = [Intercept, trend, season[Feb], ...,
+#         season[Dec]], trend = 1..240, January the baseline; forecast
+#         1940-01 to 1940-12, trend 241..252.
+#       - "macro": statsmodels' macrodata (1959-Q1 to 2009-Q3), written to
+#         tests/fixtures/ar1/macro.csv by make_ar1_data.py, infl on
+#         X = [Intercept, unemp]; forecast 2009-Q4 to 2010-Q3 with unemp
+#         held at 9.6.
+#     Each case holds R's arima() fit (phi and the regression coefficients
+#     with standard errors from var.coef, the full var.coef, sigma2, the log
+#     likelihood, AIC, BIC, n), the standardized one-step innovations
+#     residuals(fit) (sqrt(1 - phi^2) u_1, then u_t - phi u_{t-1}), a
+#     Ljung-Box test of them (fitdf = 1), predict() forecasts with three
+#     standard errors (see `forecast_rows` below), and "profile_check": an
+#     independent maximisation of the concentrated (profile) log likelihood
+#     over phi through the Prais-Winsten transform, with the relative
+#     differences from arima().
+#
+# Why
+# ---
+# The expected values come from R's base `stats` (arima, predict, Box.test)
+# so that sheetfit's Rust tests can check its AR(1)-error regression against
+# an outside implementation. arima() maximises the likelihood numerically
+# (BFGS with a numerical gradient) and takes var.coef from a numerical
+# Hessian, so profile_check re-derives the optimum by a second route (a
+# one-dimensional search, then the root of the analytic derivative) and gives
+# the covariance from the analytic Hessian of the concentrated log
+# likelihood, to show how many digits of each number can be trusted.
+# tests/reference/check_ar1_reference.py compares the fits with statsmodels'
+# SARIMAX as a third implementation. The files are committed; the Rust tests
+# read them and need neither R nor Python.
+#
+# How to rerun
+# ------------
+# From the project root, with Debian's r-base-core (base R only) and, for
+# macro.csv, python3 with statsmodels:
+#
+#     python3 tests/reference/make_ar1_data.py
+#     Rscript tests/reference/make_ar1_reference.R
+#     python3 tests/reference/check_ar1_reference.py
+#
+# The JSON is written by hand with 17 significant digits.
+
+out <- file.path("tests", "fixtures", "ar1")
+dir.create(out, showWarnings = FALSE, recursive = TRUE)
+
+num <- function(v) sprintf("%.17g", v)
+arr <- function(v) paste0("[", paste(num(v), collapse = ", "), "]")
+str <- function(s) paste0('"', s, '"')
+strs <- function(s) paste0("[", paste(str(s), collapse = ", "), "]")
+rows <- function(m, indent) {
+  paste0("[\n", paste0(indent, " ", apply(m, 1, arr), collapse = ",\n"), "\n", indent, "]")
+}
+obj <- function(fields, indent) {
+  paste0("{\n", paste0(indent, " ", str(names(fields)), ": ", fields, collapse = ",\n"), "\n", indent, "}")
+}
+rel <- function(a, b) max(abs(a - b) / abs(b))
+
+ARIMA_CALL <- paste(
+  "arima(y, order = c(1, 0, 0), xreg = X, include.mean = FALSE, method = \"ML\",",
+  "transform.pars = FALSE, optim.control = list(reltol = 1e-15, maxit = 10000))"
+)
+TOLERANCE <- 1e-7
+
+# ---------------------------------------------------------------------------
+# Data
+
+nile <- read.csv(file.path("tests", "fixtures", "periods", "nile.csv"))
+stopifnot(
+  identical(names(nile), c("year", "volume")),
+  identical(as.numeric(nile$year), as.numeric(time(datasets::Nile))),
+  identical(nile$volume, as.numeric(datasets::Nile))
+)
+
+temperature <- as.numeric(datasets::nottem)
+stopifnot(length(temperature) == 240, start(datasets::nottem) == c(1920, 1),
+          frequency(datasets::nottem) == 12)
+month_label <- function(i) sprintf("%d-%02d", 1920 + (i - 1) %/% 12, (i - 1) %% 12 + 1)
+text <- as.character(temperature)
+stopifnot(identical(as.numeric(text), temperature))
+writeLines(c("month,temperature", paste(month_label(1:240), text, sep = ",")),
+           file.path(out, "nottem.csv"))
+nottem <- read.csv(file.path(out, "nottem.csv"), colClasses = c("character", "numeric"))
+stopifnot(identical(nottem$temperature, temperature),
+          identical(nottem$month, month_label(1:240)))
+
+macro_csv <- file.path(out, "macro.csv")
+if (!file.exists(macro_csv)) stop("run python3 tests/reference/make_ar1_data.py first")
+macro <- read.csv(macro_csv, colClasses = c("character", "numeric", "numeric"))
+stopifnot(nrow(macro) == 203, macro$quarter[1] == "1959-Q1", macro$quarter[203] == "2009-Q3")
+
+# ---------------------------------------------------------------------------
+# The concentrated log likelihood through the Prais-Winsten transform:
+# row 1 times sqrt(1 - phi^2), rows t >= 2 as v_t - phi v_{t-1}; with S the
+# residual sum of squares of the transformed regression,
+#     l(phi) = -n/2 (log(2 pi) + 1 + log(S/n)) + 1/2 log(1 - phi^2).
+
+pw <- function(phi, v) {
+  v <- as.matrix(v)
+  n <- nrow(v)
+  rbind(sqrt(1 - phi^2) * v[1, , drop = FALSE], v[-1, , drop = FALSE] - phi * v[-n, , drop = FALSE])
+}
+
+# l(phi, b) with sigma2 concentrated out, its gradient and Hessian in
+# (phi, b), all analytic.
+loglik_at <- function(phi, b, y, X) {
+  n <- length(y)
+  u <- drop(y - X %*% b)
+  e <- c(sqrt(1 - phi^2) * u[1], u[-1] - phi * u[-n])
+  S <- sum(e^2)
+  value <- -n / 2 * (log(2 * pi) + 1 + log(S / n)) + 0.5 * log(1 - phi^2)
+  r <- sqrt(1 - phi^2)
+  # J = de/d(phi, b)
+  J <- cbind(c(-phi / r * u[1], -u[-n]), -pw(phi, X))
+  # sum_t e_t d2e_t/d(phi, b)^2: only the phi row and column are non-zero.
+  E <- matrix(0, ncol(J), ncol(J))
+  E[1, 1] <- -e[1] * u[1] / r^3
+  cross <- e[1] * phi / r * X[1, ] + colSums(e[-1] * X[-n, , drop = FALSE])
+  E[1, -1] <- cross
+  E[-1, 1] <- cross
+  dS <- 2 * drop(crossprod(J, e))
+  d2S <- 2 * (crossprod(J) + E)
+  gradient <- -n / 2 * dS / S
+  gradient[1] <- gradient[1] - phi / (1 - phi^2)
+  hessian <- -n / 2 * (d2S / S - tcrossprod(dS) / S^2)
+  hessian[1, 1] <- hessian[1, 1] - (1 + phi^2) / (1 - phi^2)^2
+  list(value = value, gradient = gradient, hessian = hessian)
+}
+
+profile_beta <- function(phi, y, X) lm.fit(pw(phi, X), pw(phi, y))$coefficients
+
+profile_loglik <- function(phi, y, X) {
+  n <- length(y)
+  S <- sum(lm.fit(pw(phi, X), pw(phi, y))$residuals^2)
+  -n / 2 * (log(2 * pi) + 1 + log(S / n)) + 0.5 * log(1 - phi^2)
+}
+
+# d l(phi, b(phi)) / d phi = the partial derivative in phi at b(phi), since
+# b(phi) maximises over b.
+profile_score <- function(phi, y, X) loglik_at(phi, profile_beta(phi, y, X), y, X)$gradient[1]
+
+profile_fit <- function(y, X) {
+  o <- optimize(profile_loglik, c(-0.999, 0.999), y = y, X = X, maximum = TRUE, tol = 1e-12)
+  # Polish: the root of the analytic score next to optimize's maximum.
+  width <- 1e-6
+  repeat {
+    lo <- max(-0.999, o$maximum - width)
+    hi <- min(0.999, o$maximum + width)
+    if (profile_score(lo, y, X) > 0 && profile_score(hi, y, X) < 0) break
+    width <- width * 10
+    if (width > 1) stop("no sign change of the profile score")
+  }
+  root <- uniroot(profile_score, c(lo, hi), y = y, X = X, tol = 1e-16, maxiter = 1000)$root
+  b <- profile_beta(root, y, X)
+  at <- loglik_at(root, b, y, X)
+  list(phi_optimize = o$maximum, loglik_optimize = o$objective,
+       phi = root, beta = unname(b), loglik = profile_loglik(root, y, X),
+       score = at$gradient, covariance = solve(-at$hessian))
+}
+
+# ---------------------------------------------------------------------------
+# One case
+
+fit_arima <- function(y, X, init = NULL) {
+  arima(y, order = c(1, 0, 0), xreg = X, include.mean = FALSE, method = "ML",
+        transform.pars = FALSE, init = init,
+        optim.control = list(reltol = 1e-15, maxit = 10000))
+}
+
+differences <- function(fit, p) {
+  c(phi = abs(coef(fit)[[1]] - p$phi) / abs(p$phi),
+    coefficients = rel(unname(coef(fit)[-1]), p$beta),
+    log_likelihood = abs(fit$loglik - p$loglik) / abs(p$loglik))
+}
+
+forecast_rows <- function(fit, y, X, Xnew, labels) {
+  h <- nrow(Xnew)
+  pred <- predict(fit, n.ahead = h, newxreg = Xnew)
+  phi <- coef(fit)[[1]]
+  b <- unname(coef(fit)[-1])
+  V <- fit$var.coef
+  n <- length(y)
+  un <- y[n] - sum(X[n, ] * b)
+  out <- character(h)
+  for (k in 1:h) {
+    mean_k <- sum(Xnew[k, ] * b) + phi^k * un
+    stopifnot(abs(mean_k - pred$pred[k]) <= 1e-9 * abs(mean_k))
+    # Gradient of x_{n+k}'b + phi^k (y_n - x_n'b) in (phi, b).
+    g <- c(k * phi^(k - 1) * un, Xnew[k, ] - phi^k * X[n, ])
+    mean_var <- drop(t(g) %*% V %*% g)
+    out[k] <- obj(c(
+      period = str(labels[k]),
+      x = arr(Xnew[k, ]),
+      estimate = num(pred$pred[k]),
+      std_error = num(sqrt(pred$se[k]^2 + mean_var)),
+      error_std_error = num(pred$se[k]),
+      mean_std_error = num(sqrt(mean_var))
+    ), "    ")
+  }
+  paste0("[\n    ", paste(out, collapse = ",\n    "), "\n   ]")
+}
+
+run_case <- function(name, dataset, data_file, response, y, X, Xnew, labels) {
+  n <- length(y)
+  p <- profile_fit(y, X)
+  fit <- fit_arima(y, X)
+  stopifnot(fit$code == 0)
+  first <- differences(fit, p)
+  restarted <- FALSE
+  if (max(first) > TOLERANCE) {
+    # arima() reads the regression part of `init` in its own rotated
+    # coordinates (xreg %*% svd(xreg)$v when there is more than one regressor
+    # and none is fixed), so the profile optimum is rotated to match.
+    b0 <- if (ncol(X) > 1) drop(crossprod(svd(X)$v, p$beta)) else p$beta
+    refit <- fit_arima(y, X, init = c(p$phi, b0))
+    stopifnot(refit$code == 0)
+    if (max(differences(refit, p)) < max(first)) {
+      fit <- refit
+      restarted <- TRUE
+    }
+  }
+  final <- differences(fit, p)
+  cat(sprintf("%-7s phi %.10f  max rel diff vs profile: first fit %.2e, final %.2e%s\n",
+              name, coef(fit)[[1]], max(first), max(final),
+              if (restarted) " (restarted from the profile optimum)" else ""))
+
+  terms <- colnames(X)
+  stopifnot(identical(names(coef(fit)), c("ar1", terms)))
+  V <- fit$var.coef
+  se <- sqrt(diag(V))
+  coefficient_rows <- vapply(seq_along(terms), function(k) {
+    sprintf('{"term": %s, "estimate": %s, "std_error": %s}',
+            str(terms[k]), num(coef(fit)[[k + 1]]), num(se[k + 1]))
+  }, "")
+  lags <- min(10, floor(n / 5))
+  box <- Box.test(residuals(fit), lag = lags, type = "Ljung-Box", fitdf = 1)
+  k <- length(coef(fit)) + 1
+  bic <- BIC(fit)
+  stopifnot(abs(bic - (-2 * fit$loglik + log(n) * k)) < 1e-9 * abs(bic))
+
+  # The innovations as defined, against residuals(fit).
+  phi <- coef(fit)[[1]]
+  u <- drop(y - X %*% coef(fit)[-1])
+  innovations <- as.numeric(residuals(fit))
+  stopifnot(max(abs(innovations - c(sqrt(1 - phi^2) * u[1], u[-1] - phi * u[-n]))) < 1e-9 * max(abs(u)))
+
+  analytic_se <- sqrt(diag(p$covariance))
+  profile <- obj(c(
+    method = str(paste(
+      "optimize(l, c(-0.999, 0.999), maximum = TRUE, tol = 1e-12) of the Prais-Winsten",
+      "concentrated log likelihood l(phi) = -n/2 (log(2 pi) + 1 + log(S/n)) + 1/2 log(1 - phi^2);",
+      "then polished: uniroot of its analytic derivative"
+    )),
+    phi = num(p$phi_optimize),
+    log_likelihood = num(p$loglik_optimize),
+    phi_polished = num(p$phi),
+    coefficients_polished = arr(p$beta),
+    log_likelihood_polished = num(p$loglik),
+    max_abs_score_polished = num(max(abs(p$score))),
+    max_rel_diff = obj(c(
+      phi = num(final[["phi"]]),
+      coefficients = num(final[["coefficients"]]),
+      log_likelihood = num(final[["log_likelihood"]])
+    ), "    "),
+    max_rel_diff_optimize_vs_polished = num(abs(p$phi_optimize - p$phi) / abs(p$phi)),
+    arima_restarted = if (restarted) "true" else "false",
+    max_rel_diff_first_arima_fit = num(max(first)),
+    covariance_analytic = rows(p$covariance, "    "),
+    max_rel_diff_std_error = num(rel(se, analytic_se))
+  ), "   ")
+
+  obj(c(
+    dataset = str(dataset),
+    data = str(data_file),
+    response = str(response),
+    terms = strs(terms),
+    n = as.character(n),
+    phi = sprintf('{"estimate": %s, "std_error": %s}', num(coef(fit)[[1]]), num(se[1])),
+    coefficients = paste0("[\n    ", paste(coefficient_rows, collapse = ",\n    "), "\n   ]"),
+    sigma2 = num(fit$sigma2),
+    log_likelihood = num(fit$loglik),
+    aic = num(fit$aic),
+    bic = num(bic),
+    covariance = rows(V, "   "),
+    innovations = arr(innovations),
+    ljung_box = sprintf('{"lags": %d, "df": %s, "statistic": %s, "p_value": %s}',
+                        lags, num(box$parameter), num(box$statistic), num(box$p.value)),
+    forecast = forecast_rows(fit, y, X, Xnew, labels),
+    profile_check = profile
+  ), "  ")
+}
+
+# ---------------------------------------------------------------------------
+# The three cases
+
+dam <- as.numeric(nile$year >= 1899)
+X_nile <- cbind(Intercept = 1, dam = dam)
+Xnew_nile <- cbind(Intercept = rep(1, 5), dam = rep(1, 5))
+nile_case <- run_case("nile", "datasets::Nile", "tests/fixtures/periods/nile.csv", "volume",
+                      nile$volume, X_nile, Xnew_nile, as.character(1971:1975))
+
+month_names <- c("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
+season_columns <- function(index) {
+  m <- sapply(2:12, function(j) as.numeric((index - 1) %% 12 + 1 == j))
+  colnames(m) <- paste0("season[", month_names[2:12], "]")
+  m
+}
+X_nottem <- cbind(Intercept = 1, trend = 1:240, season_columns(1:240))
+Xnew_nottem <- cbind(Intercept = 1, trend = 241:252, season_columns(241:252))
+nottem_case <- run_case("nottem", "datasets::nottem", "tests/fixtures/ar1/nottem.csv", "temperature",
+                        nottem$temperature, X_nottem, Xnew_nottem, month_label(241:252))
+
+X_macro <- cbind(Intercept = 1, unemp = macro$unemp)
+Xnew_macro <- cbind(Intercept = rep(1, 4), unemp = rep(9.6, 4))
+macro_case <- run_case("macro", "statsmodels macrodata", "tests/fixtures/ar1/macro.csv", "infl",
+                       macro$infl, X_macro, Xnew_macro,
+                       c("2009-Q4", "2010-Q1", "2010-Q2", "2010-Q3"))
+
+json <- paste0(
+  "{\n",
+  ' "source": ', str(paste0(R.version.string, ": ", gsub('"', '\\\\"', ARIMA_CALL),
+                            "; predict(fit, n.ahead = h, newxreg = Xnew); Box.test(residuals(fit), lag = L, type = \\\"Ljung-Box\\\", fitdf = 1)")), ",\n",
+  ' "script": "tests/reference/make_ar1_reference.R",\n',
+  ' "cases": {\n',
+  '  "nile": ', nile_case, ",\n",
+  '  "nottem": ', nottem_case, ",\n",
+  '  "macro": ', macro_case, "\n",
+  " }\n",
+  "}\n"
+)
+writeLines(json, file.path(out, "expected.json"), sep = "")
