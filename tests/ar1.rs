@@ -296,3 +296,66 @@ fn a_gap_in_the_periods_is_refused_with_its_rows() {
         assert!(err.contains(part), "{err} lacks {part}");
     }
 }
+
+#[test]
+fn the_workbook_shows_the_ar1_version_beside_least_squares() {
+    use calamine::{open_workbook_auto, Data, Reader};
+    let scratch = Scratch::new();
+    std::fs::copy(fixtures().join("ar1/macro.csv"), scratch.path("data.csv")).expect("copy");
+    scratch.write(
+        "job.toml",
+        "suggest = false\n[input]\nworkbook = \"data.csv\"\n[output]\nworkbook = \"report.xlsx\"\n[[model]]\nname = \"m\"\nresponse = \"infl\"\nnumeric = [\"unemp\"]\ndate = \"quarter\"\nerrors = \"ar1\"\nbacktest = 4\n[model.forecast]\nhorizon = 3\nhold = { unemp = 9.6 }\n",
+    );
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let json = read_json(&scratch.path("report.json"))["models"][0].clone();
+    let mut wb = open_workbook_auto(scratch.path("report.xlsx")).expect("open");
+    let cell = |range: &calamine::Range<Data>, r: u32, c: u32| range.get_value((r, c)).cloned();
+    let sheet = wb
+        .worksheet_range("AR(1) errors")
+        .expect("AR(1) errors sheet");
+    assert_eq!(cell(&sheet, 1, 2), Some(Data::String("phi (AR(1))".into())));
+    assert_eq!(
+        cell(&sheet, 1, 3),
+        Some(Data::Float(num(&json["ar1_errors"]["phi"]["estimate"])))
+    );
+    let forecast = wb.worksheet_range("Forecast").expect("Forecast sheet");
+    let names: Vec<String> = (1..forecast.height() as u32)
+        .map(|r| {
+            cell(&forecast, r, 0)
+                .map(|d| d.to_string())
+                .unwrap_or_default()
+        })
+        .collect();
+    assert_eq!(
+        names,
+        [
+            "m",
+            "m",
+            "m",
+            "m (AR(1) errors)",
+            "m (AR(1) errors)",
+            "m (AR(1) errors)"
+        ]
+    );
+    assert_eq!(
+        cell(&forecast, 4, 4),
+        Some(Data::Float(num(
+            &json["ar1_errors"]["forecast"][0]["estimate"]
+        )))
+    );
+    let backtest = wb.worksheet_range("Back-test").expect("Back-test sheet");
+    assert_eq!(
+        cell(&backtest, 2, 0),
+        Some(Data::String("m (AR(1) errors)".into()))
+    );
+    assert_eq!(
+        cell(&backtest, 2, 5),
+        Some(Data::Float(num(&json["ar1_errors"]["backtest"]["rmse"])))
+    );
+    let data = wb.worksheet_range("Chart data").expect("Chart data sheet");
+    let header: Vec<String> = (0..data.width() as u32)
+        .map(|c| cell(&data, 0, c).map(|d| d.to_string()).unwrap_or_default())
+        .collect();
+    assert!(header.iter().any(|h| h == "Forecast with AR(1) errors"));
+}

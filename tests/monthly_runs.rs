@@ -143,8 +143,22 @@ fn assert_complete_report(
 ) {
     let mut wb =
         open_workbook_auto(workbook).unwrap_or_else(|e| panic!("open {}: {e}", workbook.display()));
+    // A model whose residuals are autocorrelated brings its AR(1)-error
+    // version, on a sheet of its own after the checks.
+    let mut sheets = sheets.to_vec();
+    let results = read_json(json);
+    let with_ar1 = results["models"]
+        .as_array()
+        .is_some_and(|m| m.iter().any(|m| !m["ar1_errors"].is_null()));
+    if with_ar1 {
+        let at = sheets
+            .iter()
+            .position(|s| *s == "Checks")
+            .map_or(0, |k| k + 1);
+        sheets.insert(at, "AR(1) errors");
+    }
     assert_eq!(wb.sheet_names(), sheets, "sheets of {}", workbook.display());
-    for name in sheets {
+    for name in &sheets {
         let range = wb
             .worksheet_range(name)
             .unwrap_or_else(|e| panic!("{}, sheet {name}: {e}", workbook.display()));

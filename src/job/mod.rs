@@ -426,13 +426,15 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         let errors = match m.errors.as_deref().map(str::to_ascii_lowercase).as_deref() {
             None | Some("independent") => Errors::Independent,
             Some("ar1") => Errors::Ar1,
-            Some(_) => return Err(invalid(
-                &key("errors"),
-                format!(
+            Some(_) => {
+                return Err(invalid(
+                    &key("errors"),
+                    format!(
                     "'{}' is not a choice; use \"ar1\" (or leave it out for independent errors)",
                     m.errors.unwrap_or_default()
                 ),
-            )),
+                ))
+            }
         };
         let new_row_weight = match (
             m.forecast.as_ref().and_then(|f| f.weight),

@@ -6,6 +6,7 @@ use rust_xlsxwriter::{
     Chart, ChartFormat, ChartSolidFill, ChartType, Workbook, Worksheet, XlsxError,
 };
 
+use super::ar1::ar1_name;
 use super::{
     axis_range, charted, num, opt, text, write_table, Cell, Formats, Style, BACKTEST,
     BACKTEST_ROWS, CHART_DATA,
@@ -83,21 +84,31 @@ pub(super) fn forecast_sheet(
         "Confidence",
         "Inputs",
     ];
+    // Each model's rows, then those of its AR(1)-error version.
     let rows: Vec<Vec<Cell>> = results
         .models
         .iter()
         .flat_map(|m| {
-            m.forecast.iter().map(move |r| {
-                let mut row = vec![
-                    text(m.name.as_str()),
-                    r.period.as_deref().map_or(Cell::Empty, text),
-                    r.date.as_deref().map_or(Cell::Empty, date),
-                    opt(r.index.map(|i| i as f64), Style::Count),
-                ];
-                row.extend(prediction_cells(&r.prediction, m.confidence));
-                row.push(inputs_cell(&r.inputs));
-                row
-            })
+            let ar1 = m.ar1_errors.iter().flat_map(move |a| {
+                a.forecast
+                    .iter()
+                    .map(move |r| (std::borrow::Cow::Owned(ar1_name(&m.name)), r))
+            });
+            m.forecast
+                .iter()
+                .map(move |r| (std::borrow::Cow::Borrowed(m.name.as_str()), r))
+                .chain(ar1)
+                .map(move |(name, r)| {
+                    let mut row = vec![
+                        text(name),
+                        r.period.as_deref().map_or(Cell::Empty, text),
+                        r.date.as_deref().map_or(Cell::Empty, date),
+                        opt(r.index.map(|i| i as f64), Style::Count),
+                    ];
+                    row.extend(prediction_cells(&r.prediction, m.confidence));
+                    row.push(inputs_cell(&r.inputs));
+                    row
+                })
         })
         .collect();
     if rows.is_empty() {
@@ -156,8 +167,22 @@ pub(super) fn backtest_sheets(
 ) -> Result<(), XlsxError> {
     let mut summary = Vec::new();
     let mut points = Vec::new();
-    for m in &results.models {
-        let Some(b) = &m.backtest else { continue };
+    // Each model's back-test, then its AR(1)-error version's on the same
+    // held-out periods.
+    let tested = results.models.iter().flat_map(|m| {
+        let ar1 = m
+            .ar1_errors
+            .as_ref()
+            .and_then(|a| a.backtest.as_ref())
+            .map(|b| (ar1_name(&m.name), b));
+        m.backtest
+            .as_ref()
+            .map(|b| (m.name.clone(), b))
+            .into_iter()
+            .chain(ar1)
+            .map(move |(name, b)| (m, name, b))
+    });
+    for (m, name, b) in tested {
         let methods = std::iter::once((
             format!("last {} periods held out, one refit", b.holdout),
             &b.accuracy,
@@ -170,7 +195,7 @@ pub(super) fn backtest_sheets(
         }));
         for (method, a) in methods {
             summary.push(vec![
-                text(m.name.as_str()),
+                text(name.clone()),
                 text(method.clone()),
                 num(a.points.len() as f64, Style::Count),
                 num(a.skipped as f64, Style::Count),
@@ -182,7 +207,7 @@ pub(super) fn backtest_sheets(
             ]);
             for p in &a.points {
                 points.push(vec![
-                    text(m.name.as_str()),
+                    text(name.clone()),
                     text(method.clone()),
                     text(p.period.as_str()),
                     num(f64::from(p.row), Style::Count),
@@ -316,7 +341,7 @@ pub(super) fn chart_data(
                 }
             };
             let k = scale(h);
-            rows.push(vec![
+            let mut row = vec![
                 text(m.name.as_str()),
                 text(h.period.as_str()),
                 date(&h.date),
@@ -326,7 +351,15 @@ pub(super) fn chart_data(
                 start(k * h.fitted),
                 start(0.0),
                 Cell::Empty,
-            ]);
+            ];
+            // The AR(1) forecast carries on from the last actual value.
+            if m.ar1_errors
+                .as_ref()
+                .is_some_and(|a| !a.forecast.is_empty())
+            {
+                row.extend([start(h.actual), start(h.actual), start(h.actual)]);
+            }
+            rows.push(row);
         }
         for r in &m.forecast_totals {
             rows.push(vec![
@@ -341,8 +374,9 @@ pub(super) fn chart_data(
                 text(format!("total of {} series", r.series)),
             ]);
         }
+        let ar1_forecast = m.ar1_errors.as_ref().map(|a| a.forecast.as_slice());
         for r in m.forecast.iter().filter(|_| !total) {
-            rows.push(vec![
+            let mut row = vec![
                 text(m.name.as_str()),
                 r.period.as_deref().map_or(Cell::Empty, text),
                 r.date.as_deref().map_or(Cell::Empty, date),
@@ -355,7 +389,19 @@ pub(super) fn chart_data(
                     Style::Value,
                 ),
                 Cell::Empty,
-            ]);
+            ];
+            if let Some(a) = ar1_forecast
+                .into_iter()
+                .flatten()
+                .find(|a| a.period == r.period)
+            {
+                row.extend([
+                    num(a.prediction.estimate, Style::Value),
+                    num(a.prediction.pred_lower, Style::Value),
+                    num(a.prediction.pred_upper, Style::Value),
+                ]);
+            }
+            rows.push(row);
         }
         blocks.push(ChartBlock {
             model: k,
@@ -368,6 +414,9 @@ pub(super) fn chart_data(
         note(sheet, f, "No forecast charts in this report.")?;
         return Ok(blocks);
     }
+    for row in &mut rows {
+        row.resize_with(AR1_UPPER_COL as usize + 1, || Cell::Empty);
+    }
     let headers = [
         "Model",
         "Period",
@@ -378,6 +427,9 @@ pub(super) fn chart_data(
         "Prediction lower",
         "Prediction band (upper − lower)",
         "Series",
+        "Forecast with AR(1) errors",
+        "AR(1) prediction lower",
+        "AR(1) prediction upper",
     ];
     write_table(sheet, f, "Chart_data_table", 0, &headers, &rows)?;
     Ok(blocks)
@@ -444,6 +496,9 @@ const FITTED_COL: u16 = 4;
 const FORECAST_COL: u16 = 5;
 const LOWER_COL: u16 = 6;
 const BAND_COL: u16 = 7;
+const AR1_COL: u16 = 9;
+const AR1_LOWER_COL: u16 = 10;
+const AR1_UPPER_COL: u16 = 11;
 
 /// The forecast chart of one model: the prediction interval as a light
 /// stacked-area band, with the actual, fitted and forecast lines over it,
@@ -492,6 +547,28 @@ pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
                 ),
             );
     }
+    if m.ar1_errors
+        .as_ref()
+        .is_some_and(|a| !a.forecast.is_empty())
+    {
+        for (name, col, dash) in [
+            ("Forecast with AR(1) errors", AR1_COL, false),
+            ("AR(1) prediction limits", AR1_LOWER_COL, true),
+            ("AR(1) upper limit", AR1_UPPER_COL, true),
+        ] {
+            let mut line = rust_xlsxwriter::ChartLine::new();
+            line.set_color("#548235").set_width(1.75);
+            if dash {
+                line.set_dash_type(rust_xlsxwriter::ChartLineDashType::Dash);
+            }
+            lines
+                .add_series()
+                .set_categories(range(DATE_COL))
+                .set_values(range(col))
+                .set_name(name)
+                .set_format(ChartFormat::new().set_line(&line));
+        }
+    }
     band.combine(&lines);
     let panel = m.history.iter().any(|h| h.rows > 1);
     let total = !m.forecast_totals.is_empty();
@@ -529,13 +606,27 @@ pub(super) fn forecast_chart(m: &ModelResults, block: &ChartBlock) -> Chart {
             m.forecast_totals
                 .iter()
                 .flat_map(|r| [r.pred_lower, r.pred_upper]),
-        );
+        )
+        .chain(m.ar1_errors.iter().flat_map(|a| {
+            a.forecast
+                .iter()
+                .flat_map(|r| [r.prediction.pred_lower, r.prediction.pred_upper])
+        }));
     let (low, high) = axis_range(shown);
     band.y_axis()
         .set_name(m.response.as_str())
         .set_min(low)
         .set_max(high);
-    band.legend().delete_entries(&[0]);
+    // The band's lower edge and the AR(1) upper limit share an entry with
+    // their partners.
+    let mut hidden = vec![0];
+    if m.ar1_errors
+        .as_ref()
+        .is_some_and(|a| !a.forecast.is_empty())
+    {
+        hidden.push(7);
+    }
+    band.legend().delete_entries(&hidden);
     band.set_width(760).set_height(400);
     band
 }

@@ -18,6 +18,7 @@ use rust_xlsxwriter::{
 use crate::results::{ModelResults, Results, RUN_ID_PROPERTY};
 use crate::text::row_ranges;
 
+mod ar1;
 mod by_series;
 mod charts;
 mod forecast;
@@ -50,6 +51,9 @@ const BY_SERIES: &str = "By series";
 
 /// Sheet added after the forecast when a model has scenarios.
 const SCENARIOS: &str = "Scenarios";
+
+/// Sheet added after the checks when a model has AR(1) errors.
+const AR1: &str = "AR(1) errors";
 
 /// Sheets added when the job compares with last run.
 const CHANGES: &str = "Changes";
@@ -383,6 +387,9 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
         &formats,
         results,
     )?;
+    if results.models.iter().any(|m| m.ar1_errors.is_some()) {
+        ar1::ar1_sheet(workbook.add_worksheet().set_name(AR1)?, &formats, results)?;
+    }
     // The one sheet that grows with the data is written row by row to disk.
     residuals(&mut workbook, &formats, results)?;
     forecast::forecast_sheet(

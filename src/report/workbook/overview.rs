@@ -305,6 +305,9 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
             m.forecast.len()
         ));
     }
+    if let Some(a) = &m.ar1_errors {
+        notes.push(ar1_note(m, a));
+    }
     if m.dropped_rows.is_empty() {
         notes.push("No rows were left out.".to_string());
     } else {
@@ -320,4 +323,39 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
         ));
     }
     notes
+}
+
+/// The overview's words on a model's AR(1)-error version: why it is there,
+/// φ, and how the two did on the same held-out periods.
+fn ar1_note(m: &ModelResults, a: &crate::results::ar1::Ar1Results) -> String {
+    let g = |x: f64| crate::text::significant(x, 4);
+    let why = if a.suggested() {
+        "The residuals are autocorrelated, so standard errors, p-values and intervals above are too optimistic; the model was also fitted with AR(1) errors"
+    } else {
+        "Also fitted with AR(1) errors, as the job asks"
+    };
+    let evidence = match (&m.backtest, &a.backtest) {
+        (Some(ols), Some(ar1)) => format!(
+            " On the same {} held-out periods its forecasts had RMSE {} against {} for least squares, and {} against {} of the actuals inside the prediction intervals.",
+            ols.holdout,
+            g(ar1.accuracy.rmse),
+            g(ols.accuracy.rmse),
+            percent(ar1.accuracy.coverage),
+            percent(ols.accuracy.coverage)
+        ),
+        _ => String::new(),
+    };
+    format!(
+        "{why} (exact maximum likelihood, sheet AR(1) errors): φ = {} ({} to {}); each period's error carries that share of the last one's, so near-term forecasts start from the last actual and fade back to the regression line. AIC {} against {} for least squares (lower is better).{evidence} Both versions are reported; the choice is the reader's.",
+        g(a.phi.estimate),
+        g(a.phi.ci_lower),
+        g(a.phi.ci_upper),
+        g(a.aic),
+        g(m.fit.aic),
+    )
+}
+
+/// A share as a whole percentage.
+fn percent(share: f64) -> String {
+    format!("{:.0} %", share * 100.0)
 }
