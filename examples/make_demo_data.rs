@@ -10,8 +10,10 @@
 //! The data is invented: a fictional chain of eight garden centres, two in
 //! each of four regions, observed monthly. It describes no real business.
 //! Revenue is built from a known linear formula plus a mild seasonal swing,
-//! a slow upward trend and normal noise, so the fitted coefficients can be
-//! compared with the values used here.
+//! a slow upward trend and noise, so the fitted coefficients can be
+//! compared with the values used here. Each store's noise carries
+//! [`NOISE_CARRY_OVER`] of its previous month's (AR(1) noise, standard
+//! deviation 4 thousand), as a local run of good or bad months would.
 //!
 //! The three extra months are drawn from the same generator stream after
 //! the first 48 months, so the first workbook's values do not depend on
@@ -51,6 +53,10 @@ use splitmix::SplitMix64;
 
 /// Fixed seed, so the demo workbooks are reproducible.
 const SEED: u64 = 20261202;
+
+/// The share of a store's previous month's noise that carries into the
+/// next month (the AR(1) coefficient of the noise).
+const NOISE_CARRY_OVER: f64 = 0.6;
 
 const FIRST_YEAR: u16 = 2022;
 /// Months in `garden-centres.xlsx`: 2022-01 to 2025-12.
@@ -187,6 +193,10 @@ struct Record {
 fn records(months: usize) -> Vec<Record> {
     let mut rng = SplitMix64::new(SEED);
     let mut out = Vec::with_capacity(months * STORES.len());
+    // Each store's noise, started from its stationary distribution: new
+    // draws of standard deviation 4·√(1 − φ²) keep the noise's own at 4.
+    let innovation_sd = 4.0 * (1.0 - NOISE_CARRY_OVER * NOISE_CARRY_OVER).sqrt();
+    let mut noise = [0.0; STORES.len()];
     for month_index in 0..months {
         // month_index < 51, so these conversions cannot truncate.
         let year = FIRST_YEAR + (month_index / 12) as u16;
@@ -197,10 +207,16 @@ fn records(months: usize) -> Vec<Record> {
         // Slow upward trend: about 0.1 thousand per month.
         let trend = 0.1 * month_index as f64;
 
-        for store in &STORES {
+        for (k, store) in STORES.iter().enumerate() {
             let staff_hours = (0.4 * store.floor_area + 30.0 * rng.normal()).round();
             let promo = if rng.uniform() < 0.25 { 1.0 } else { 0.0 };
-            let noise = 4.0 * rng.normal();
+            let draw = rng.normal();
+            noise[k] = if month_index == 0 {
+                4.0 * draw
+            } else {
+                NOISE_CARRY_OVER * noise[k] + innovation_sd * draw
+            };
+            let noise = noise[k];
             let revenue = 20.0
                 + 0.045 * store.floor_area
                 + 0.06 * staff_hours

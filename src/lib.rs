@@ -264,18 +264,14 @@ fn fit_and_analyse(
 }
 
 /// Whether a model's least-squares residuals call for an offer of its
-/// AR(1)-error version: a single series of consecutive periods (at most
+/// AR(1)-error version: a single series (one row per period, at most
 /// [`fit::ar1::OFFER_UP_TO_ROWS`]), unweighted, whose Durbin-Watson or
 /// Breusch-Godfrey check is flagged.
 fn ar1_called_for(design: &design::Design, results: &results::ModelResults) -> bool {
     let Some(timing) = &design.timing else {
         return false;
     };
-    let consecutive = timing
-        .periods
-        .windows(2)
-        .all(|w| w[1].ordinal == w[0].ordinal + 1);
-    consecutive
+    !timing.panel
         && design.weights.is_none()
         && design.y.len() <= fit::ar1::OFFER_UP_TO_ROWS
         && results

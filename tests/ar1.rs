@@ -272,32 +272,6 @@ fn refusals_name_the_key_and_the_reason() {
 }
 
 #[test]
-fn a_gap_in_the_periods_is_refused_with_its_rows() {
-    let scratch = Scratch::new();
-    let text = std::fs::read_to_string(fixtures().join("ar1/macro.csv")).expect("read");
-    // Leave out 1960-Q2 (sheet row 7).
-    let kept: Vec<&str> = text.lines().filter(|l| !l.starts_with("1960-Q2")).collect();
-    scratch.write("data.csv", &(kept.join("\n") + "\n"));
-    scratch.write(
-        "job.toml",
-        "suggest = false\n[input]\nworkbook = \"data.csv\"\n[output]\nworkbook = \"report.xlsx\"\n[[model]]\nname = \"m\"\nresponse = \"infl\"\nnumeric = [\"unemp\"]\ndate = \"quarter\"\nerrors = \"ar1\"\n",
-    );
-    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
-    assert!(!out.status.success());
-    let err = stderr(&out);
-    for part in [
-        "errors = \"ar1\"",
-        "1960-Q1",
-        "1960-Q3",
-        "sheet row 6",
-        "sheet row 7",
-        "Fill the gap",
-    ] {
-        assert!(err.contains(part), "{err} lacks {part}");
-    }
-}
-
-#[test]
 fn the_workbook_shows_the_ar1_version_beside_least_squares() {
     use calamine::{open_workbook_auto, Data, Reader};
     let scratch = Scratch::new();

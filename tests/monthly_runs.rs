@@ -933,18 +933,27 @@ fn two_month_demo_tracks_forecasts_and_changes() {
     let second_workbook = s.path("demo-data/reports/garden-centres-2026-03-report.xlsx");
 
     // Forecast tracking: month one forecast 2026-01 to 2026-12 for
-    // "monthly forecast" (the only model with a forecast); month two's data
-    // reaches 2026-03.
+    // "monthly forecast" and 2026-01 to 2026-06 for each store's "store
+    // forecast [store]"; month two's data reaches 2026-03. The panel model
+    // is checked here against the month means.
     let means = monthly_mean_revenue(&s.path("demo-data/garden-centres-2026-03.xlsx"));
-    let tracking = second["forecast_tracking"]
+    let all = second["forecast_tracking"]
         .as_array()
         .expect("top-level `forecast_tracking` list");
+    let (tracking, per_store): (Vec<&Value>, Vec<&Value>) =
+        all.iter().partition(|t| t["model"] == "monthly forecast");
+    for t in &per_store {
+        let name = t["model"].as_str().expect("model");
+        assert!(name.starts_with("store forecast ["), "{t}");
+    }
+    assert_eq!(
+        per_store.len(),
+        8 * 3 - 1,
+        "eight stores, three months, one blank revenue"
+    );
     let periods: Vec<&str> = tracking
         .iter()
-        .map(|t| {
-            assert_eq!(t["model"], "monthly forecast", "{t}");
-            t["period"].as_str().expect("period")
-        })
+        .map(|t| t["period"].as_str().expect("period"))
         .collect::<BTreeSet<_>>()
         .into_iter()
         .collect();

@@ -274,20 +274,6 @@ pub enum DesignError {
         /// The model.
         model: String,
     },
-    /// AR(1) errors over a gap in the periods.
-    #[error("model '{model}': errors = \"ar1\" needs a row for every period, but the rows used jump from {before} (sheet row {before_row}) to {after} (sheet row {after_row}); the periods between are missing or their rows were left out for a blank cell. Fill the gap, start the data after it, or leave `errors` out")]
-    Ar1Gap {
-        /// The model.
-        model: String,
-        /// The period before the gap.
-        before: String,
-        /// Its sheet row.
-        before_row: u32,
-        /// The period after the gap.
-        after: String,
-        /// Its sheet row.
-        after_row: u32,
-    },
     /// A response that cannot be logged.
     #[error("model '{model}': {place}, cell {cell} in response '{column}' holds {value}; `transform = \"log\"` needs every response value above zero")]
     NotPositive {

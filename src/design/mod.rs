@@ -213,21 +213,10 @@ pub fn build(table: &Table, model: &ModelSpec) -> Result<Design, DesignError> {
             let mut order: Vec<usize> = (0..keep.len()).collect();
             order.sort_by_key(|&k| t.periods[k]);
             keep = order.iter().map(|&k| keep[k]).collect();
-            let periods: Vec<_> = order.iter().map(|&k| t.periods[k]).collect();
-            if model.errors == Errors::Ar1 {
-                if let Some(k) =
-                    (1..periods.len()).find(|&k| periods[k].ordinal != periods[k - 1].ordinal + 1)
-                {
-                    return Err(DesignError::Ar1Gap {
-                        model: model.name.clone(),
-                        before: periods[k - 1].to_string(),
-                        before_row: table.rows[keep[k - 1]],
-                        after: periods[k].to_string(),
-                        after_row: table.rows[keep[k]],
-                    });
-                }
-            }
-            Some(Timing { periods, ..t })
+            Some(Timing {
+                periods: order.iter().map(|&k| t.periods[k]).collect(),
+                ..t
+            })
         }
         None => None,
     };

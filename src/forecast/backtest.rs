@@ -123,10 +123,16 @@ pub fn backtest_ar1(
         let z = ar1.z();
         let last = train[train.len() - 1];
         let x_last = design.row(last);
+        // Periods ahead of the last one fitted, gaps counted.
+        let ahead = |i: usize| {
+            design.timing.as_ref().map_or((i - last) as i64, |t| {
+                t.periods[i].ordinal - t.periods[last].ordinal
+            })
+        };
         Ok(targets
             .iter()
             .map(|&i| {
-                predict_ar1(&ar1, &x_last, &design.row(i), (i - last) as i64)
+                predict_ar1(&ar1, &x_last, &design.row(i), ahead(i))
                     .ok()
                     .map(|p| {
                         (

@@ -12,7 +12,7 @@
 #   * nottem.csv: datasets::nottem (monthly mean air temperature at
 #     Nottingham Castle, 1920-01 to 1939-12), columns month ("1920-01"),
 #     temperature (printed as R prints it; the values have one decimal).
-#   * expected.json: for three cases,
+#   * expected.json: for four cases,
 #       - "nile": datasets::Nile, read from tests/fixtures/periods/nile.csv
 #         (checked here to equal datasets::Nile), volume on
 #         X = [Intercept, dam], dam = 1 from 1899 on; forecast 1971-1975
@@ -24,6 +24,14 @@
 #         tests/fixtures/ar1/macro.csv by make_ar1_data.py, infl on
 #         X = [Intercept, unemp]; forecast 2009-Q4 to 2010-Q3 with unemp
 #         held at 9.6.
+#       - "nottem_gaps": "nottem" with the temperature missing at rows 50,
+#         51 and 130 ("blank_rows", 1-based; 1924-02, 1924-03, 1930-10) and
+#         X still of all 240 rows; n = 237 observed rows. The data file is
+#         nottem.csv: the reader blanks those cells itself. The innovations
+#         are null at the gaps; there is no Ljung-Box entry (with gaps it
+#         depends on a convention for the autocorrelations). Its
+#         profile_check uses the transform with gaps and a numerical Hessian
+#         (see "The fourth case" below).
 #     Each case holds R's arima() fit (phi and the regression coefficients
 #     with standard errors from var.coef, the full var.coef, sigma2, the log
 #     likelihood, AIC, BIC, n), the standardized one-step innovations
@@ -309,7 +317,7 @@ run_case <- function(name, dataset, data_file, response, y, X, Xnew, labels) {
 }
 
 # ---------------------------------------------------------------------------
-# The three cases
+# The first three cases
 
 dam <- as.numeric(nile$year >= 1899)
 X_nile <- cbind(Intercept = 1, dam = dam)
@@ -334,6 +342,313 @@ macro_case <- run_case("macro", "statsmodels macrodata", "tests/fixtures/ar1/mac
                        macro$infl, X_macro, Xnew_macro,
                        c("2009-Q4", "2010-Q1", "2010-Q2", "2010-Q3"))
 
+# ---------------------------------------------------------------------------
+# The fourth case: nottem with gaps in the response
+#
+# "nottem_gaps" is "nottem" with the temperature missing at rows 50, 51 and
+# 130 (1924-02, 1924-03, 1930-10); X keeps all 240 rows. arima() handles a
+# missing response exactly (its Kalman filter gives the Gaussian likelihood
+# of the observed values), but the Prais-Winsten transform above assumes
+# every row is observed, so the profile check here uses the transform with
+# gaps: for consecutive observed rows s < t, d = t - s periods apart,
+#     e_t = (u_t - phi^d u_s) / sqrt(w_d),  w_d = 1 + phi^2 + ... + phi^(2(d-1))
+#         = (1 - phi^(2d)) / (1 - phi^2),
+# the first observed row times sqrt(1 - phi^2), and with m observed rows
+#     l(phi, b) = -m/2 (log(2 pi) + 1 + log(S/m)) - 1/2 sum log w_d + 1/2 log(1 - phi^2).
+# Its covariance is the inverse of a numerical Hessian of l(phi, b),
+# Richardson-extrapolated central differences (`richardson_hessian`), whose
+# accuracy is measured three ways: the spread of the last two Richardson
+# columns, a second Hessian from differencing the analytic gradient, and the
+# same routine on "nottem" (no gaps) against the analytic Hessian above.
+
+BLANK_ROWS <- c(50, 51, 130)
+
+gap_pairs <- function(obs) {
+  # The observed rows after the first, with the previous observed row and
+  # the gap in periods between them.
+  list(t = obs[-1], s = obs[-length(obs)], d = diff(obs))
+}
+
+# w_d and dw_d/dphi, as sums (exact at d = 1, no cancellation near phi = 0).
+gap_w <- function(phi, d) vapply(d, function(k) sum(phi^(2 * (0:(k - 1)))), 0)
+gap_dw <- function(phi, d) {
+  vapply(d, function(k) if (k == 1) 0 else sum(2 * (1:(k - 1)) * phi^(2 * (1:(k - 1)) - 1)), 0)
+}
+
+gap_transform <- function(phi, v, obs) {
+  v <- as.matrix(v)
+  g <- gap_pairs(obs)
+  w <- gap_w(phi, g$d)
+  rbind(sqrt(1 - phi^2) * v[obs[1], , drop = FALSE],
+        (v[g$t, , drop = FALSE] - phi^g$d * v[g$s, , drop = FALSE]) / sqrt(w))
+}
+
+gap_logdet <- function(phi, obs) -0.5 * sum(log(gap_w(phi, gap_pairs(obs)$d))) + 0.5 * log(1 - phi^2)
+
+# l(phi, b) and its analytic gradient in (phi, b).
+gap_loglik_at <- function(phi, b, y, X, obs) {
+  m <- length(obs)
+  g <- gap_pairs(obs)
+  u <- drop(y - X %*% b)
+  w <- gap_w(phi, g$d)
+  dw <- gap_dw(phi, g$d)
+  r <- sqrt(1 - phi^2)
+  e <- c(r * u[obs[1]], (u[g$t] - phi^g$d * u[g$s]) / sqrt(w))
+  S <- sum(e^2)
+  de_dphi <- c(-phi / r * u[obs[1]],
+               -g$d * phi^(g$d - 1) * u[g$s] / sqrt(w) - e[-1] * dw / (2 * w))
+  Z <- gap_transform(phi, X, obs)
+  gradient <- c(-m * sum(e * de_dphi) / S - 0.5 * sum(dw / w) - phi / (1 - phi^2),
+                m * drop(crossprod(Z, e)) / S)
+  list(value = -m / 2 * (log(2 * pi) + 1 + log(S / m)) + gap_logdet(phi, obs),
+       gradient = gradient, innovations = e)
+}
+
+gap_beta <- function(phi, y, X, obs) lm.fit(gap_transform(phi, X, obs), gap_transform(phi, y, obs))$coefficients
+
+gap_profile_loglik <- function(phi, y, X, obs) {
+  m <- length(obs)
+  S <- sum(lm.fit(gap_transform(phi, X, obs), gap_transform(phi, y, obs))$residuals^2)
+  -m / 2 * (log(2 * pi) + 1 + log(S / m)) + gap_logdet(phi, obs)
+}
+
+gap_profile_score <- function(phi, y, X, obs) {
+  gap_loglik_at(phi, gap_beta(phi, y, X, obs), y, X, obs)$gradient[1]
+}
+
+gap_profile_fit <- function(y, X, obs) {
+  o <- optimize(gap_profile_loglik, c(-0.999, 0.999), y = y, X = X, obs = obs,
+                maximum = TRUE, tol = 1e-12)
+  width <- 1e-6
+  repeat {
+    lo <- max(-0.999, o$maximum - width)
+    hi <- min(0.999, o$maximum + width)
+    if (gap_profile_score(lo, y, X, obs) > 0 && gap_profile_score(hi, y, X, obs) < 0) break
+    width <- width * 10
+    if (width > 1) stop("no sign change of the profile score")
+  }
+  root <- uniroot(gap_profile_score, c(lo, hi), y = y, X = X, obs = obs,
+                  tol = 1e-16, maxiter = 1000)$root
+  b <- unname(gap_beta(root, y, X, obs))
+  list(phi_optimize = o$maximum, loglik_optimize = o$objective,
+       phi = root, beta = b, loglik = gap_profile_loglik(root, y, X, obs),
+       score = gap_loglik_at(root, b, y, X, obs)$gradient)
+}
+
+# Richardson extrapolation of a sequence of estimates at steps h, h/2, h/4,
+# ... whose error is a series in h^2; returns the last entry of the tableau
+# and its difference from the entry before (an estimate of its error).
+richardson <- function(estimates) {
+  col <- estimates
+  previous <- NULL
+  j <- 1
+  while (length(col) > 1) {
+    previous <- col[[length(col)]]
+    col <- lapply(seq_len(length(col) - 1), function(k) (4^j * col[[k + 1]] - col[[k]]) / (4^j - 1))
+    j <- j + 1
+  }
+  list(value = col[[1]], error = abs(col[[1]] - previous))
+}
+
+# Hessian of f at x by central second differences with steps h (one per
+# coordinate), h/2, ..., h/2^(levels - 1), Richardson-extrapolated.
+richardson_hessian <- function(f, x, h, levels = 5) {
+  p <- length(x)
+  f0 <- f(x)
+  at <- function(i, j, si, sj, step) {
+    z <- x
+    z[i] <- z[i] + si * step[i]
+    z[j] <- z[j] + sj * step[j]
+    f(z)
+  }
+  estimates <- lapply(0:(levels - 1), function(level) {
+    step <- h / 2^level
+    H <- matrix(0, p, p)
+    for (i in 1:p) {
+      z_plus <- x; z_plus[i] <- z_plus[i] + step[i]
+      z_minus <- x; z_minus[i] <- z_minus[i] - step[i]
+      H[i, i] <- (f(z_plus) - 2 * f0 + f(z_minus)) / step[i]^2
+      if (i > 1) for (j in 1:(i - 1)) {
+        H[i, j] <- (at(i, j, 1, 1, step) - at(i, j, 1, -1, step) - at(i, j, -1, 1, step) +
+                      at(i, j, -1, -1, step)) / (4 * step[i] * step[j])
+        H[j, i] <- H[i, j]
+      }
+    }
+    H
+  })
+  richardson(estimates)
+}
+
+# The Jacobian of a gradient g at x by central differences, Richardson-
+# extrapolated the same way, then symmetrised.
+richardson_jacobian <- function(g, x, h, levels = 5) {
+  p <- length(x)
+  estimates <- lapply(0:(levels - 1), function(level) {
+    step <- h / 2^level
+    J <- sapply(1:p, function(i) {
+      z_plus <- x; z_plus[i] <- z_plus[i] + step[i]
+      z_minus <- x; z_minus[i] <- z_minus[i] - step[i]
+      (g(z_plus) - g(z_minus)) / (2 * step[i])
+    })
+    (J + t(J)) / 2
+  })
+  richardson(estimates)
+}
+
+# Largest difference of two covariance matrices in correlation units,
+# |A_ij - B_ij| / sqrt(B_ii B_jj).
+cov_diff <- function(A, B) max(abs(A - B) / sqrt(tcrossprod(diag(B))))
+
+run_gap_case <- function(name, dataset, data_file, response, y, X, Xnew, labels, blank_rows,
+                         check_y, check_X) {
+  obs <- which(!is.na(y))
+  m <- length(obs)
+
+  # The gap-aware functions with no gaps are the Prais-Winsten ones: checked
+  # on the complete series (check_y, check_X) at two values of phi.
+  all_rows <- seq_along(check_y)
+  b_check <- profile_beta(0.3, check_y, check_X)
+  for (phi in c(0.3, -0.6)) {
+    stopifnot(
+      abs(gap_profile_loglik(phi, check_y, check_X, all_rows) - profile_loglik(phi, check_y, check_X)) <
+        1e-12 * abs(profile_loglik(phi, check_y, check_X)),
+      max(abs(gap_loglik_at(phi, b_check, check_y, check_X, all_rows)$gradient -
+                loglik_at(phi, b_check, check_y, check_X)$gradient)) < 1e-8
+    )
+  }
+
+  p <- gap_profile_fit(y, X, obs)
+  fit <- fit_arima(y, X)
+  stopifnot(fit$code == 0, fit$nobs == m)
+  first <- differences(fit, p)
+  restarted <- FALSE
+  # Always tried here (the fit from arima's own start is off by ~2e-8 in
+  # phi); kept if closer to the profile optimum.
+  {
+    b0 <- if (ncol(X) > 1) drop(crossprod(svd(X)$v, p$beta)) else p$beta
+    refit <- fit_arima(y, X, init = c(p$phi, b0))
+    stopifnot(refit$code == 0)
+    if (max(differences(refit, p)) < max(first)) {
+      fit <- refit
+      restarted <- TRUE
+    }
+  }
+  final <- differences(fit, p)
+  cat(sprintf("%-7s phi %.10f  max rel diff vs gap-aware profile: first fit %.2e, final %.2e%s\n",
+              name, coef(fit)[[1]], max(first), max(final),
+              if (restarted) " (restarted from the profile optimum)" else ""))
+
+  terms <- colnames(X)
+  stopifnot(identical(names(coef(fit)), c("ar1", terms)))
+  V <- fit$var.coef
+  se <- sqrt(diag(V))
+  coefficient_rows <- vapply(seq_along(terms), function(k) {
+    sprintf('{"term": %s, "estimate": %s, "std_error": %s}',
+            str(terms[k]), num(coef(fit)[[k + 1]]), num(se[k + 1]))
+  }, "")
+  k <- length(coef(fit)) + 1
+  bic <- BIC(fit)
+  stopifnot(abs(bic - (-2 * fit$loglik + log(m) * k)) < 1e-9 * abs(bic))
+
+  # residuals(fit): NA at the gaps, the gap-transformed rows elsewhere.
+  phi <- coef(fit)[[1]]
+  innovations <- as.numeric(residuals(fit))
+  e <- gap_loglik_at(phi, unname(coef(fit)[-1]), y, X, obs)$innovations
+  stopifnot(identical(which(is.na(innovations)), as.integer(blank_rows)),
+            max(abs(innovations[obs] - e)) < 1e-9 * max(abs(e)))
+
+  # Covariance: the inverse of the numerical Hessian of l(phi, b) at the
+  # profile optimum. Steps: arima's standard errors (only a scale), then
+  # halved four times.
+  x0 <- c(p$phi, p$beta)
+  f <- function(z) gap_loglik_at(z[1], z[-1], y, X, obs)$value
+  g <- function(z) gap_loglik_at(z[1], z[-1], y, X, obs)$gradient
+  h <- unname(se)
+  H <- richardson_hessian(f, x0, h)
+  covariance <- solve(-H$value)
+  tableau_error <- max(H$error / sqrt(tcrossprod(diag(-H$value))))
+  from_gradient <- solve(-richardson_jacobian(g, x0, h)$value)
+  vs_gradient <- cov_diff(from_gradient, covariance)
+  # The same routine on the complete series, against the analytic Hessian.
+  pc <- profile_fit(check_y, check_X)
+  fc <- function(z) loglik_at(z[1], z[-1], check_y, check_X)$value
+  no_gap <- solve(-richardson_hessian(fc, c(pc$phi, pc$beta), sqrt(diag(pc$covariance)))$value)
+  vs_analytic_no_gaps <- cov_diff(no_gap, pc$covariance)
+  cat(sprintf(paste("%-7s numerical Hessian: Richardson error estimate %.1e; covariance vs",
+                    "differenced analytic gradient %.1e; on nottem vs the analytic Hessian %.1e\n"),
+              name, tableau_error, vs_gradient, vs_analytic_no_gaps))
+  analytic_se <- sqrt(diag(covariance))
+
+  profile <- obj(c(
+    method = str(paste(
+      "optimize(l, c(-0.999, 0.999), maximum = TRUE, tol = 1e-12) of the concentrated log likelihood",
+      "of the observed rows, transformed with gaps: first observed row times sqrt(1 - phi^2),",
+      "then (v_t - phi^d v_s) / sqrt(w_d) for consecutive observed rows s < t, d = t - s,",
+      "w_d = (1 - phi^(2d)) / (1 - phi^2); l(phi) = -m/2 (log(2 pi) + 1 + log(S/m))",
+      "- 1/2 sum log w_d + 1/2 log(1 - phi^2), m observed rows;",
+      "then polished: uniroot of its analytic derivative"
+    )),
+    phi = num(p$phi_optimize),
+    log_likelihood = num(p$loglik_optimize),
+    phi_polished = num(p$phi),
+    coefficients_polished = arr(p$beta),
+    log_likelihood_polished = num(p$loglik),
+    max_abs_score_polished = num(max(abs(p$score))),
+    max_rel_diff = obj(c(
+      phi = num(final[["phi"]]),
+      coefficients = num(final[["coefficients"]]),
+      log_likelihood = num(final[["log_likelihood"]])
+    ), "    "),
+    max_rel_diff_optimize_vs_polished = num(abs(p$phi_optimize - p$phi) / abs(p$phi)),
+    arima_restarted = if (restarted) "true" else "false",
+    max_rel_diff_first_arima_fit = num(max(first)),
+    covariance_analytic = rows(covariance, "    "),
+    covariance_analytic_method = str(paste(
+      "solve(-H), H the Hessian of l(phi, b) (sigma2 concentrated out) at the polished optimum by",
+      "central second differences with steps arima's standard errors / 2^k, k = 0..4,",
+      "Richardson-extrapolated"
+    )),
+    covariance_analytic_accuracy = obj(c(
+      richardson_error_estimate = num(tableau_error),
+      vs_differenced_analytic_gradient = num(vs_gradient),
+      same_routine_on_nottem_vs_analytic_hessian = num(vs_analytic_no_gaps),
+      units = str("max |A_ij - B_ij| / sqrt(B_ii B_jj)")
+    ), "    "),
+    max_rel_diff_std_error = num(rel(se, analytic_se))
+  ), "   ")
+
+  obj(c(
+    dataset = str(dataset),
+    data = str(data_file),
+    response = str(response),
+    blank_rows = paste0("[", paste(blank_rows, collapse = ", "), "]"),
+    blank_periods = strs(labels_of_rows(blank_rows)),
+    terms = strs(terms),
+    n = as.character(m),
+    phi = sprintf('{"estimate": %s, "std_error": %s}', num(coef(fit)[[1]]), num(se[1])),
+    coefficients = paste0("[\n    ", paste(coefficient_rows, collapse = ",\n    "), "\n   ]"),
+    sigma2 = num(fit$sigma2),
+    log_likelihood = num(fit$loglik),
+    aic = num(fit$aic),
+    bic = num(bic),
+    covariance = rows(V, "   "),
+    innovations = paste0("[", paste(ifelse(is.na(innovations), "null", num(innovations)),
+                                    collapse = ", "), "]"),
+    forecast = forecast_rows(fit, y, X, Xnew, labels),
+    profile_check = profile
+  ), "  ")
+}
+
+labels_of_rows <- month_label
+temperature_gaps <- nottem$temperature
+temperature_gaps[BLANK_ROWS] <- NA
+stopifnot(identical(month_label(BLANK_ROWS), c("1924-02", "1924-03", "1930-10")),
+          !is.na(temperature_gaps[240]))
+nottem_gaps_case <- run_gap_case("nottem_gaps", "datasets::nottem", "tests/fixtures/ar1/nottem.csv",
+                                 "temperature", temperature_gaps, X_nottem, Xnew_nottem,
+                                 month_label(241:252), BLANK_ROWS,
+                                 nottem$temperature, X_nottem)
+
 json <- paste0(
   "{\n",
   ' "source": ', str(paste0(R.version.string, ": ", gsub('"', '\\\\"', ARIMA_CALL),
@@ -342,7 +657,8 @@ json <- paste0(
   ' "cases": {\n',
   '  "nile": ', nile_case, ",\n",
   '  "nottem": ', nottem_case, ",\n",
-  '  "macro": ', macro_case, "\n",
+  '  "macro": ', macro_case, ",\n",
+  '  "nottem_gaps": ', nottem_gaps_case, "\n",
   " }\n",
   "}\n"
 )

@@ -2,22 +2,27 @@
 //! y = Xb + u, uₜ = φuₜ₋₁ + eₜ, eₜ ~ N(0, σ²) independent, |φ| < 1, with
 //! the first error drawn from the stationary distribution N(0, σ²/(1 − φ²)).
 //!
-//! For a fixed φ the likelihood is that of least squares on the
-//! Prais-Winsten transform of the rows (Prais & Winsten 1954): the first row
-//! times √(1 − φ²), each later row less φ times the row before. b and σ² are
-//! concentrated out, b(φ) the least-squares solution of the transformed
-//! rows (by the model's own QR) and σ²(φ) = S(φ)/n, S the transformed
-//! residual sum of squares, which leaves the profile log-likelihood
+//! For a fixed φ the likelihood is that of least squares on transformed
+//! rows: without gaps the Prais-Winsten transform (Prais & Winsten 1954),
+//! the first row times √(1 − φ²), each later row less φ times the row
+//! before; across d missing-free periods from the row before, that row
+//! times φᵈ is taken off and the difference scaled to unit variance (the
+//! error d periods on is φᵈ times the last plus d innovations), so gaps are
+//! handled exactly. b and σ² are concentrated out, b(φ) the least-squares
+//! solution of the transformed rows (by the model's own QR) and σ²(φ) =
+//! S(φ)/n, S the transformed residual sum of squares, which leaves the
+//! profile log-likelihood
 //!
-//! ℓ(φ) = −n/2·(ln 2π + 1 + ln(S(φ)/n)) + ½·ln(1 − φ²)
+//! ℓ(φ) = −n/2·(ln 2π + 1 + ln(S(φ)/n)) − ½·Σ ln vₜ
 //!
-//! (Beach & MacKinnon 1978, Econometrica 46(1)). It is maximised over φ in
-//! one dimension: a grid brackets the maximum, then the root of its
-//! derivative (by the envelope theorem, the partial derivative at b(φ)) is
-//! found by the Illinois method to the last digits of φ. Standard errors
-//! come from the observed information of (φ, b) with σ² concentrated out,
-//! in closed form, inverted through (X̃ᵀX̃)⁻¹ from the QR so that X̃ᵀX̃ is
-//! never formed.
+//! (vₜ each row's error variance over σ²; without gaps the sum is
+//! −ln(1 − φ²); Beach & MacKinnon 1978, Econometrica 46(1)). It is
+//! maximised over φ in one dimension: a grid brackets the maximum, then the
+//! root of its derivative (by the envelope theorem, the partial derivative
+//! at b(φ)) is found by the Illinois method to the last digits of φ.
+//! Standard errors come from the observed information of (φ, b) with σ²
+//! concentrated out, in closed form, inverted through (X̃ᵀX̃)⁻¹ from the QR
+//! so that X̃ᵀX̃ is never formed.
 
 use nalgebra::{DMatrix, DVector};
 
@@ -107,45 +112,126 @@ struct Profile {
     slope: f64,
 }
 
-/// Prais-Winsten transform of the columns of `x` and of `y` at `phi`.
-fn transformed(x: &DMatrix<f64>, y: &[f64], phi: f64) -> (DMatrix<f64>, DVector<f64>) {
+/// How one row's error links to the row before it: with d periods between
+/// them, uₜ = aₜuₜ₋₁ + (an error of variance vₜσ²), aₜ = φᵈ and
+/// vₜ = 1 + φ² + … + φ²⁽ᵈ⁻¹⁾; the first row stands alone, a = 0 and
+/// v = 1/(1 − φ²). Rows are scaled by wₜ = vₜ^(−1/2). Each comes with its
+/// first two derivatives in φ, for the slope and the information.
+#[derive(Debug, Clone, Copy)]
+struct Link {
+    a: [f64; 3],
+    w: [f64; 3],
+    /// ln vₜ and its derivatives.
+    log_v: [f64; 3],
+}
+
+impl Link {
+    /// The link of a row `gap` periods after the one before; 0 for the
+    /// first row.
+    fn new(phi: f64, gap: u32) -> Link {
+        if gap == 0 {
+            let q = 1.0 - phi * phi;
+            return Link {
+                a: [0.0; 3],
+                w: [q.sqrt(), -phi / q.sqrt(), -1.0 / (q * q.sqrt())],
+                log_v: [-q.ln(), 2.0 * phi / q, 2.0 * (1.0 + phi * phi) / (q * q)],
+            };
+        }
+        let d = f64::from(gap);
+        let a = [
+            phi.powi(gap as i32),
+            d * phi.powi(gap as i32 - 1),
+            d * (d - 1.0) * phi.powi(gap as i32 - 2),
+        ];
+        // v = Σⱼ φ²ʲ over j < d, with its derivatives term by term.
+        let mut v = [0.0; 3];
+        for j in 0..gap as i32 {
+            let k = f64::from(2 * j);
+            v[0] += phi.powi(2 * j);
+            if j > 0 {
+                v[1] += k * phi.powi(2 * j - 1);
+                v[2] += k * (k - 1.0) * phi.powi(2 * j - 2);
+            }
+        }
+        let w0 = v[0].powf(-0.5);
+        Link {
+            a,
+            w: [
+                w0,
+                -0.5 * w0 / v[0] * v[1],
+                0.75 * w0 / (v[0] * v[0]) * v[1] * v[1] - 0.5 * w0 / v[0] * v[2],
+            ],
+            log_v: [v[0].ln(), v[1] / v[0], v[2] / v[0] - (v[1] / v[0]).powi(2)],
+        }
+    }
+}
+
+/// The links of the rows at `phi`, `gaps[t]` the periods between row t and
+/// row t − 1 (`gaps[0]` is not read).
+fn links(phi: f64, gaps: &[u32]) -> Vec<Link> {
+    let mut cache: Vec<(u32, Link)> = Vec::new();
+    (0..gaps.len())
+        .map(|t| {
+            let gap = if t == 0 { 0 } else { gaps[t] };
+            if let Some((_, l)) = cache.iter().find(|(g, _)| *g == gap) {
+                return *l;
+            }
+            let l = Link::new(phi, gap);
+            cache.push((gap, l));
+            l
+        })
+        .collect()
+}
+
+/// The transform of the columns of `x` and of `y` whose least squares is
+/// the likelihood's: row t becomes wₜ(rowₜ − aₜ·rowₜ₋₁) (Prais & Winsten
+/// 1954 without gaps).
+fn transformed(x: &DMatrix<f64>, y: &[f64], links: &[Link]) -> (DMatrix<f64>, DVector<f64>) {
     let n = y.len();
-    let head = (1.0 - phi * phi).sqrt();
+    let row = |t: usize, now: f64, before: f64| {
+        let l = &links[t];
+        l.w[0] * (now - l.a[0] * before)
+    };
     let xt = DMatrix::from_fn(n, x.ncols(), |i, j| {
-        if i == 0 {
-            head * x[(0, j)]
-        } else {
-            x[(i, j)] - phi * x[(i - 1, j)]
-        }
+        row(i, x[(i, j)], if i == 0 { 0.0 } else { x[(i - 1, j)] })
     });
-    let yt = DVector::from_fn(n, |i, _| {
-        if i == 0 {
-            head * y[0]
-        } else {
-            y[i] - phi * y[i - 1]
-        }
-    });
+    let yt = DVector::from_fn(n, |i, _| row(i, y[i], if i == 0 { 0.0 } else { y[i - 1] }));
     (xt, yt)
 }
 
-/// ℓ(φ) and its slope from the regression residuals `u` at φ.
-fn likelihood(u: &[f64], phi: f64) -> (f64, f64, f64) {
+/// The innovations eₜ = wₜ(uₜ − aₜuₜ₋₁) of the regression residuals `u`
+/// and their first two derivatives in φ (b fixed).
+fn innovations(u: &[f64], links: &[Link]) -> Vec<[f64; 3]> {
+    (0..u.len())
+        .map(|t| {
+            let l = &links[t];
+            let before = if t == 0 { 0.0 } else { u[t - 1] };
+            let r = u[t] - l.a[0] * before;
+            [
+                l.w[0] * r,
+                l.w[1] * r - l.w[0] * l.a[1] * before,
+                l.w[2] * r - 2.0 * l.w[1] * l.a[1] * before - l.w[0] * l.a[2] * before,
+            ]
+        })
+        .collect()
+}
+
+/// S(φ), ℓ(φ) and its slope from the regression residuals `u` at φ.
+fn likelihood(u: &[f64], links: &[Link]) -> (f64, f64, f64) {
     let n = u.len() as f64;
-    let mut s = (1.0 - phi * phi) * u[0] * u[0];
-    let mut ds = -2.0 * phi * u[0] * u[0];
-    for t in 1..u.len() {
-        let e = u[t] - phi * u[t - 1];
-        s += e * e;
-        ds -= 2.0 * e * u[t - 1];
-    }
-    let loglik = -n / 2.0 * ((2.0 * std::f64::consts::PI).ln() + 1.0 + (s / n).ln())
-        + 0.5 * (1.0 - phi * phi).ln();
-    let slope = -n / (2.0 * s) * ds - phi / (1.0 - phi * phi);
+    let e = innovations(u, links);
+    let s: f64 = e.iter().map(|e| e[0] * e[0]).sum();
+    let ds: f64 = 2.0 * e.iter().map(|e| e[0] * e[1]).sum::<f64>();
+    let log_v: f64 = links.iter().map(|l| l.log_v[0]).sum();
+    let log_v1: f64 = links.iter().map(|l| l.log_v[1]).sum();
+    let loglik = -n / 2.0 * ((2.0 * std::f64::consts::PI).ln() + 1.0 + (s / n).ln()) - 0.5 * log_v;
+    let slope = -n / (2.0 * s) * ds - 0.5 * log_v1;
     (s, loglik, slope)
 }
 
-fn profile(x: &DMatrix<f64>, y: &[f64], phi: f64) -> Result<Profile, Ar1Error> {
-    let (xt, yt) = transformed(x, y, phi);
+fn profile(x: &DMatrix<f64>, y: &[f64], gaps: &[u32], phi: f64) -> Result<Profile, Ar1Error> {
+    let links = links(phi, gaps);
+    let (xt, yt) = transformed(x, y, &links);
     let m = DesignMatrix::from_dense(&xt, None);
     let solved = qr::solve::<f64>(Columns::of(&m), &yt, Leverage::Skipped);
     // The columns were checked to be estimable before the search; a column
@@ -156,7 +242,7 @@ fn profile(x: &DMatrix<f64>, y: &[f64], phi: f64) -> Result<Profile, Ar1Error> {
     }
     let xb = x * &beta;
     let u: Vec<f64> = y.iter().zip(xb.iter()).map(|(a, b)| a - b).collect();
-    let (s, loglik, slope) = likelihood(&u, phi);
+    let (s, loglik, slope) = likelihood(&u, &links);
     if !(loglik.is_finite() && slope.is_finite() && s > 0.0) {
         return Err(Ar1Error::NotFinite { phi });
     }
@@ -171,13 +257,16 @@ fn profile(x: &DMatrix<f64>, y: &[f64], phi: f64) -> Result<Profile, Ar1Error> {
 
 /// Fits y = Xb + u with AR(1) errors by exact maximum likelihood; the
 /// columns of `x` must be estimable (the least-squares fit's kept columns)
-/// and the rows consecutive periods in order.
+/// and the rows in period order, `gaps[t]` (at least 1) the periods from
+/// row t − 1 to row t (`gaps[0]` is not read). Missing periods between
+/// rows are handled exactly: the error d periods on is φᵈ times the last
+/// plus the d innovations since.
 ///
 /// # Errors
 /// [`Ar1Error`] when there are too few rows, the maximum lies at the edge
 /// of stationarity, the search does not converge, or the likelihood is not
 /// finite.
-pub fn fit_ar1(x: &DesignMatrix, y: &[f64]) -> Result<Ar1Fit, Ar1Error> {
+pub fn fit_ar1(x: &DesignMatrix, y: &[f64], gaps: &[u32]) -> Result<Ar1Fit, Ar1Error> {
     let (n, p) = (y.len(), x.ncols());
     if n < p + 3 {
         return Err(Ar1Error::TooFewRows {
@@ -189,7 +278,7 @@ pub fn fit_ar1(x: &DesignMatrix, y: &[f64]) -> Result<Ar1Fit, Ar1Error> {
     let mut evaluations = 0;
     let mut at = |phi: f64| {
         evaluations += 1;
-        profile(&dense, y, phi)
+        profile(&dense, y, gaps, phi)
     };
     let step = 2.0 * EDGE / (GRID - 1) as f64;
     let grid: Vec<f64> = (0..GRID).map(|k| -EDGE + step * k as f64).collect();
@@ -215,7 +304,7 @@ pub fn fit_ar1(x: &DesignMatrix, y: &[f64]) -> Result<Ar1Fit, Ar1Error> {
     if optimum.phi.abs() > EDGE - 1e-4 {
         return Err(Ar1Error::EdgeOfStationarity { phi: optimum.phi });
     }
-    Ok(finish(&dense, x, y, optimum, evaluations))
+    Ok(finish(&dense, x, y, gaps, optimum, evaluations))
 }
 
 /// The root of the profile's slope between `lower` (slope ≥ 0) and `upper`
@@ -282,11 +371,13 @@ fn finish(
     dense: &DMatrix<f64>,
     x: &DesignMatrix,
     y: &[f64],
+    gaps: &[u32],
     optimum: Profile,
     evaluations: usize,
 ) -> Ar1Fit {
     let phi = optimum.phi;
-    let (xt, yt) = transformed(dense, y, phi);
+    let links = links(phi, gaps);
+    let (xt, yt) = transformed(dense, y, &links);
     let solution = least_squares(&DesignMatrix::from_dense(&xt, None), &yt);
     let mut beta = optimum.beta.clone();
     for (k, &j) in solution.kept.iter().enumerate() {
@@ -294,20 +385,10 @@ fn finish(
     }
     let xb = dense * &beta;
     let u: Vec<f64> = y.iter().zip(xb.iter()).map(|(a, b)| a - b).collect();
-    let (s, loglik, _) = likelihood(&u, phi);
-    let n = y.len();
-    let sigma2 = s / n as f64;
-    let head = (1.0 - phi * phi).sqrt();
-    let innovations: Vec<f64> = (0..n)
-        .map(|t| {
-            if t == 0 {
-                head * u[0]
-            } else {
-                u[t] - phi * u[t - 1]
-            }
-        })
-        .collect();
-    let covariance = inverse_information(x, &u, &innovations, phi, sigma2, &optimum.xtx_inv);
+    let (s, loglik, _) = likelihood(&u, &links);
+    let sigma2 = s / y.len() as f64;
+    let e = innovations(&u, &links);
+    let covariance = inverse_information(x, &u, &e, &links, sigma2, &optimum.xtx_inv);
     Ar1Fit {
         phi,
         beta: beta.iter().copied().collect(),
@@ -315,7 +396,7 @@ fn finish(
         log_likelihood: loglik,
         covariance,
         residuals: u,
-        innovations,
+        innovations: e.iter().map(|e| e[0]).collect(),
         evaluations,
         precision: solution.precision,
     }
@@ -325,15 +406,16 @@ fn finish(
 /// out, by blocks: with the information [[a, cᵀ], [c, D]], D = X̃ᵀX̃/σ²,
 /// var(φ) = 1/(a − cᵀD⁻¹c), and D⁻¹ = σ²(X̃ᵀX̃)⁻¹ from the QR.
 ///
-/// From ℓ = −n/2·ln S + ½·ln(1 − φ²) + const, with ∂S/∂b = 0 at the
-/// maximum: a = n/(2S)·∂²S/∂φ² − n/(2S²)·(∂S/∂φ)² + (1 + φ²)/(1 − φ²)²,
-/// cⱼ = n/(2S)·∂²S/∂φ∂bⱼ, where ∂²S/∂φ² = −2u₁² + 2Σₜ₌₂ uₜ₋₁² and
-/// ∂²S/∂φ∂bⱼ = 4φu₁x₁ⱼ + 2Σₜ₌₂(x̃ₜⱼuₜ₋₁ + eₜxₜ₋₁,ⱼ).
+/// From ℓ = −n/2·ln S − ½·Σ ln vₜ + const, S = Σ eₜ², with ∂S/∂b = 0 at
+/// the maximum: a = n/(2S)·∂²S/∂φ² − n/(2S²)·(∂S/∂φ)² + ½·Σ (ln vₜ)″ and
+/// cⱼ = n/(2S)·∂²S/∂φ∂bⱼ, where ∂²S/∂φ² = 2Σ(eₜ′² + eₜeₜ″) and
+/// ∂²S/∂φ∂bⱼ = 2Σ(−x̃ₜⱼeₜ′ + eₜ·∂eₜ′/∂bⱼ), ∂eₜ′/∂bⱼ =
+/// −wₜ′(xₜⱼ − aₜxₜ₋₁,ⱼ) + wₜaₜ′xₜ₋₁,ⱼ (′ a derivative in φ).
 fn inverse_information(
     x: &DesignMatrix,
     u: &[f64],
-    e: &[f64],
-    phi: f64,
+    e: &[[f64; 3]],
+    links: &[Link],
     sigma2: f64,
     xtx_inv: &DMatrix<f64>,
 ) -> DMatrix<f64> {
@@ -341,16 +423,22 @@ fn inverse_information(
     let nf = n as f64;
     let s = sigma2 * nf;
     let p = x.ncols();
-    let ds = -2.0 * phi * u[0] * u[0] - 2.0 * (1..n).map(|t| e[t] * u[t - 1]).sum::<f64>();
-    let d2s = -2.0 * u[0] * u[0] + 2.0 * u[..n - 1].iter().map(|v| v * v).sum::<f64>();
+    let ds = 2.0 * e.iter().map(|e| e[0] * e[1]).sum::<f64>();
+    let d2s = 2.0 * e.iter().map(|e| e[1] * e[1] + e[0] * e[2]).sum::<f64>();
     let a = nf / (2.0 * s) * d2s - nf / (2.0 * s * s) * ds * ds
-        + (1.0 + phi * phi) / (1.0 - phi * phi).powi(2);
+        + 0.5 * links.iter().map(|l| l.log_v[2]).sum::<f64>();
     let c = DVector::from_fn(p, |j, _| {
         let column = x.column(j);
-        let cross: f64 = (1..n)
-            .map(|t| (column[t] - phi * column[t - 1]) * u[t - 1] + e[t] * column[t - 1])
+        let cross: f64 = (0..n)
+            .map(|t| {
+                let l = &links[t];
+                let before = if t == 0 { 0.0 } else { column[t - 1] };
+                let r = column[t] - l.a[0] * before;
+                let de_db = -l.w[1] * r + l.w[0] * l.a[1] * before;
+                -l.w[0] * r * e[t][1] + e[t][0] * de_db
+            })
             .sum();
-        nf / (2.0 * s) * (4.0 * phi * u[0] * column[0] + 2.0 * cross)
+        nf / s * cross
     });
     let d_inv = xtx_inv * sigma2;
     let d_inv_c = &d_inv * &c;
@@ -404,7 +492,7 @@ mod tests {
     #[test]
     fn the_estimate_is_the_maximum_of_the_exact_likelihood() {
         let (x, y) = series(200, 0.6);
-        let fit = fit_ar1(&x, &y).expect("fits");
+        let fit = fit_ar1(&x, &y, &vec![1; y.len()]).expect("fits");
         // Direct evaluation of the full Gaussian log-likelihood (the
         // stationary first term plus the conditional ones) at the
         // estimate, and a profile that is lower on either side.
@@ -421,25 +509,16 @@ mod tests {
         }
         assert!((direct - fit.log_likelihood).abs() < 1e-9 * n);
         for d in [-1e-3, 1e-3] {
-            let other = profile(&dense, &y, fit.phi + d).expect("profile");
+            let other = profile(&dense, &y, &vec![1; y.len()], fit.phi + d).expect("profile");
             assert!(other.loglik < fit.log_likelihood);
         }
         assert!((fit.phi - 0.6).abs() < 0.15, "phi {}", fit.phi);
         assert!(fit.covariance[(0, 0)] > 0.0);
     }
 
-    #[test]
-    fn the_standard_errors_match_a_numerical_hessian() {
-        let (x, y) = series(120, 0.4);
-        let fit = fit_ar1(&x, &y).expect("fits");
-        let dense = x.to_dense();
-        // ℓ(φ, b) with σ² concentrated out, differentiated numerically.
-        let ell = |v: &[f64]| {
-            let b = DVector::from_column_slice(&v[1..]);
-            let xb = &dense * b;
-            let u: Vec<f64> = y.iter().zip(xb.iter()).map(|(a, c)| a - c).collect();
-            likelihood(&u, v[0]).1
-        };
+    /// Checks the standard errors of `fit` against the inverse of a
+    /// central-difference Hessian of `ell`, the profile in (φ, b).
+    fn assert_hessian_matches(fit: &Ar1Fit, ell: impl Fn(&[f64]) -> f64) {
         let mut theta = vec![fit.phi];
         theta.extend(&fit.beta);
         let k = theta.len();
@@ -468,12 +547,87 @@ mod tests {
     }
 
     #[test]
+    fn the_standard_errors_match_a_numerical_hessian() {
+        let (x, y) = series(120, 0.4);
+        let fit = fit_ar1(&x, &y, &vec![1; y.len()]).expect("fits");
+        let dense = x.to_dense();
+        // ℓ(φ, b) with σ² concentrated out, differentiated numerically.
+        let ell = |v: &[f64]| {
+            let b = DVector::from_column_slice(&v[1..]);
+            let xb = &dense * b;
+            let u: Vec<f64> = y.iter().zip(xb.iter()).map(|(a, c)| a - c).collect();
+            likelihood(&u, &links(v[0], &vec![1; u.len()])).1
+        };
+        assert_hessian_matches(&fit, ell);
+    }
+
+    /// A series with missing periods: the gaps after rows 5, 6 and 20.
+    fn gapped(n: usize) -> (DesignMatrix, Vec<f64>, Vec<u32>) {
+        let (x, y) = series(n, 0.5);
+        let gaps = (0..n)
+            .map(|t| match t {
+                6 => 3,
+                7 => 2,
+                21 => 4,
+                _ => 1,
+            })
+            .collect();
+        (x, y, gaps)
+    }
+
+    #[test]
+    fn with_gaps_the_likelihood_is_the_joint_density_of_the_rows_observed() {
+        let (x, y, gaps) = gapped(40);
+        let fit = fit_ar1(&x, &y, &gaps).expect("fits");
+        // The Gaussian log-density of u under cov(uᵢ, uⱼ) =
+        // σ²φ^|tᵢ − tⱼ|/(1 − φ²), by a dense Cholesky factor: no
+        // transform, no recursion.
+        let times: Vec<i32> = gaps
+            .iter()
+            .scan(0i32, |t, &g| {
+                *t += g as i32;
+                Some(*t)
+            })
+            .collect();
+        let n = y.len();
+        let (phi, s2) = (fit.phi, fit.sigma2);
+        let cov = DMatrix::from_fn(n, n, |i, j| {
+            s2 * phi.powi((times[i] - times[j]).abs()) / (1.0 - phi * phi)
+        });
+        let chol = cov.cholesky().expect("positive definite");
+        let u = DVector::from_column_slice(&fit.residuals);
+        let z = chol.l().solve_lower_triangular(&u).expect("solve");
+        let log_det: f64 = chol.l().diagonal().iter().map(|d| 2.0 * d.ln()).sum();
+        let direct =
+            -0.5 * (n as f64 * (2.0 * std::f64::consts::PI).ln() + log_det + z.norm_squared());
+        assert!(
+            (direct - fit.log_likelihood).abs() < 1e-9 * direct.abs(),
+            "{direct} vs {}",
+            fit.log_likelihood
+        );
+    }
+
+    #[test]
+    fn with_gaps_the_standard_errors_match_a_numerical_hessian() {
+        let (x, y, gaps) = gapped(60);
+        let fit = fit_ar1(&x, &y, &gaps).expect("fits");
+        let dense = x.to_dense();
+        let ell = |v: &[f64]| {
+            let b = DVector::from_column_slice(&v[1..]);
+            let xb = &dense * b;
+            let u: Vec<f64> = y.iter().zip(xb.iter()).map(|(a, c)| a - c).collect();
+            likelihood(&u, &links(v[0], &gaps)).1
+        };
+        assert_hessian_matches(&fit, ell);
+    }
+
+    #[test]
     fn a_random_walk_is_refused_at_the_edge_of_stationarity() {
         let (x, _) = series(150, 0.0);
         // A random walk without drift about a constant: φ → 1.
         let (_, walk) = series(150, 1.0);
         let x = x.select_columns(&[0]);
-        let err = fit_ar1(&x, &walk).expect_err("refused");
+        let err = fit_ar1(&x, &walk, &vec![1; walk.len()]).expect_err("refused");
         assert!(matches!(err, Ar1Error::EdgeOfStationarity { .. }), "{err}");
     }
 
@@ -481,7 +635,7 @@ mod tests {
     fn too_few_rows_are_an_error_value() {
         let (x, y) = series(3, 0.2);
         assert_eq!(
-            fit_ar1(&x, &y).expect_err("refused"),
+            fit_ar1(&x, &y, &[1, 1, 1]).expect_err("refused"),
             Ar1Error::TooFewRows {
                 rows: 3,
                 coefficients: 2
@@ -493,7 +647,8 @@ mod tests {
     fn a_bracket_without_a_sign_change_is_not_convergence() {
         let (x, y) = series(60, 0.3);
         let dense = x.to_dense();
-        let mut at = |phi: f64| profile(&dense, &y, phi);
+        let ones = vec![1; y.len()];
+        let mut at = |phi: f64| profile(&dense, &y, &ones, phi);
         let (a, b) = (at(0.9).expect("a"), at(0.95).expect("b"));
         // Both points lie beyond the maximum, where the slope is negative.
         assert!(matches!(

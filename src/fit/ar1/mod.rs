@@ -105,7 +105,27 @@ fn estimate(term: &str, value: f64, variance: f64, z_crit: f64) -> MlEstimate {
     }
 }
 
-/// Fits `design` (whose rows are consecutive periods of one series) with
+/// The periods from each row of `design` to the next (1 for consecutive
+/// periods); all 1 without a date column.
+pub fn period_gaps(design: &Design) -> Vec<u32> {
+    let Some(timing) = &design.timing else {
+        return vec![1; design.y.len()];
+    };
+    let p = &timing.periods;
+    (0..p.len())
+        .map(|t| {
+            if t == 0 {
+                1
+            } else {
+                u32::try_from(p[t].ordinal - p[t - 1].ordinal)
+                    .unwrap_or(u32::MAX)
+                    .max(1)
+            }
+        })
+        .collect()
+}
+
+/// Fits `design` (one series, its rows in period order, gaps allowed) with
 /// AR(1) errors over the estimable columns of its least-squares fit `ols`.
 ///
 /// # Errors
@@ -113,7 +133,8 @@ fn estimate(term: &str, value: f64, variance: f64, z_crit: f64) -> MlEstimate {
 pub fn ar1_errors(design: &Design, ols: &Fit, origin: Ar1Origin) -> Result<Ar1Errors, Ar1Error> {
     let kept = ols.solution.kept.clone();
     let x = design.x.select_columns(&kept);
-    let fit = fit_ar1(&x, design.y.as_slice())?;
+    let gaps = period_gaps(design);
+    let fit = fit_ar1(&x, design.y.as_slice(), &gaps)?;
     let z_crit = normal_quantile((1.0 + ols.confidence) / 2.0);
     let phi = estimate("phi (AR(1))", fit.phi, fit.covariance[(0, 0)], z_crit);
     let coefficients = kept
