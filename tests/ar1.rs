@@ -46,8 +46,22 @@ fn num(v: &Value) -> f64 {
 /// Runs `model` (the lines of a [[model]] table after its name) on `data`
 /// (a fixture path) and returns the model's results.
 fn run(data: &str, model: &str) -> Result<Value, String> {
+    run_with_blanks(data, &[], model)
+}
+
+/// [`run`] with the response of the data rows `blank` (from 1) blanked.
+fn run_with_blanks(data: &str, blank: &[usize], model: &str) -> Result<Value, String> {
     let scratch = Scratch::new();
-    std::fs::copy(fixtures().join(data), scratch.path("data.csv")).expect("copy");
+    let text = std::fs::read_to_string(fixtures().join(data)).expect("read the data");
+    let lines: Vec<String> = text
+        .lines()
+        .enumerate()
+        .map(|(k, line)| match line.split_once(',') {
+            Some((period, _)) if blank.contains(&k) => format!("{period},"),
+            _ => line.to_string(),
+        })
+        .collect();
+    scratch.write("data.csv", &(lines.join("\n") + "\n"));
     scratch.write(
         "job.toml",
         &format!("suggest = false\n[input]\nworkbook = \"data.csv\"\n[output]\nworkbook = \"report.xlsx\"\n[[model]]\nname = \"m\"\n{model}"),
@@ -60,10 +74,11 @@ fn run(data: &str, model: &str) -> Result<Value, String> {
 }
 
 /// Coefficients, φ, likelihood and forecasts to 1e-6 relative (the
-/// issue's bar; the agreement reached is about 1e-8); standard errors to
-/// 1e-6 against the analytic information's inverse that the reference
-/// script checks against finite differences, and to 1e-3 against R's own
-/// numerically differentiated one, which is off by up to 3e-4 there.
+/// issue's bar; the agreement reached is 2e-8 or better); standard errors
+/// to 1e-8 against the inverse of the information the reference script
+/// derives analytically (by a Richardson-extrapolated Hessian with gaps),
+/// and to 1e-3 against R's own numerically differentiated one, which is
+/// off by up to 3e-4 there.
 fn assert_matches_r(case: &str, ours: &Value) {
     let expected = read_json(&fixtures().join("ar1/expected.json"))["cases"][case].clone();
     let ar1 = &ours["ar1_errors"];
@@ -82,7 +97,7 @@ fn assert_matches_r(case: &str, ours: &Value) {
         &format!("{case} phi se (analytic)"),
         num(&phi["std_error"]),
         num(&analytic[0][0]).sqrt(),
-        1e-6,
+        1e-8,
     );
     assert_relative(
         &format!("{case} phi se (R)"),
@@ -102,7 +117,7 @@ fn assert_matches_r(case: &str, ours: &Value) {
             &format!("{what} se (analytic)"),
             se,
             num(&analytic[k + 1][k + 1]).sqrt(),
-            1e-6,
+            1e-8,
         );
         assert_relative(&format!("{what} se (R)"), se, num(&e["std_error"]), 1e-3);
         let z = num(&g["z_stat"]);
@@ -122,22 +137,26 @@ fn assert_matches_r(case: &str, ours: &Value) {
         num(&expected["sigma2"]),
         1e-6,
     );
-    assert_relative(
-        &format!("{case} Ljung-Box"),
-        num(&ar1["ljung_box"]["statistic"]),
-        num(&expected["ljung_box"]["statistic"]),
-        1e-6,
-    );
-    assert_eq!(
-        num(&ar1["ljung_box"]["df"]),
-        num(&expected["ljung_box"]["df"])
-    );
-    assert_relative(
-        &format!("{case} Ljung-Box p"),
-        num(&ar1["ljung_box"]["p_value"]),
-        num(&expected["ljung_box"]["p_value"]),
-        1e-5,
-    );
+    // R's Box.test has no settled reading of a series with gaps; the
+    // reference gives it for the series without.
+    if !expected["ljung_box"].is_null() {
+        assert_relative(
+            &format!("{case} Ljung-Box"),
+            num(&ar1["ljung_box"]["statistic"]),
+            num(&expected["ljung_box"]["statistic"]),
+            1e-6,
+        );
+        assert_eq!(
+            num(&ar1["ljung_box"]["df"]),
+            num(&expected["ljung_box"]["df"])
+        );
+        assert_relative(
+            &format!("{case} Ljung-Box p"),
+            num(&ar1["ljung_box"]["p_value"]),
+            num(&expected["ljung_box"]["p_value"]),
+            1e-5,
+        );
+    }
     let got = ar1["forecast"].as_array().expect("forecast");
     let exp = expected["forecast"].as_array().expect("forecast");
     assert_eq!(got.len(), exp.len(), "{case}: forecast rows");
@@ -185,6 +204,28 @@ fn nottem_with_trend_and_month_seasons_matches_arima() {
     )
     .expect("the job runs");
     assert_matches_r("nottem", &ours);
+}
+
+#[test]
+fn missing_months_are_handled_exactly_as_arima_does() {
+    // R's arima reads a blank response through its Kalman filter: the
+    // exact likelihood of the months observed, as sheetfit's transform
+    // across the gap gives it.
+    let expected = read_json(&fixtures().join("ar1/expected.json"))["cases"]["nottem_gaps"].clone();
+    let blank: Vec<usize> = expected["blank_rows"]
+        .as_array()
+        .expect("blank rows")
+        .iter()
+        .map(|v| v.as_u64().expect("row") as usize)
+        .collect();
+    let ours = run_with_blanks(
+        "ar1/nottem.csv",
+        &blank,
+        "response = \"temperature\"\ntrend = \"month\"\nseason = { column = \"month\", by = \"month\" }\nerrors = \"ar1\"\n[model.forecast]\nhorizon = 12\n",
+    )
+    .expect("the job runs");
+    assert_eq!(ours["dropped_rows"].as_array().map(Vec::len), Some(3));
+    assert_matches_r("nottem_gaps", &ours);
 }
 
 #[test]

@@ -190,11 +190,32 @@ fn assert_rows(
     numbers: &[(usize, &str)],
     tol: f64,
 ) -> usize {
+    let blocks: Vec<(String, &Value)> = models(json)
+        .iter()
+        .map(|m| {
+            (
+                m["name"].as_str().expect("model name").to_string(),
+                &m[list],
+            )
+        })
+        .collect();
+    assert_blocks(grid, &blocks, list, texts, numbers, tol)
+}
+
+/// [`assert_rows`] over `blocks`: each a name for the first column and the
+/// list of its rows, in sheet order.
+fn assert_blocks(
+    grid: &Grid,
+    blocks: &[(String, &Value)],
+    list: &str,
+    texts: &[(usize, &str)],
+    numbers: &[(usize, &str)],
+    tol: f64,
+) -> usize {
     let mut row = 1;
-    for model in models(json) {
-        let name = model["name"].as_str().expect("model name");
-        for item in model[list].as_array().into_iter().flatten() {
-            assert_eq!(grid.text(row, 0), name, "{}: row {row}", grid.source);
+    for (name, items) in blocks {
+        for item in items.as_array().into_iter().flatten() {
+            assert_eq!(grid.text(row, 0), *name, "{}: row {row}", grid.source);
             for &(col, key) in texts {
                 assert_eq!(
                     grid.text(row, col),
@@ -322,10 +343,21 @@ pub fn assert_residuals(grid: &Grid, json: &Value, tol: f64) -> usize {
     assert_rows(grid, json, "residuals", &[], &numbers, tol)
 }
 
-/// The Chart points sheet of reports small enough to plot every row.
+/// The Chart points sheet of reports small enough to plot every row; the
+/// models fitted by level are not charted.
 pub fn assert_chart_points(grid: &Grid, json: &Value, tol: f64) -> usize {
     assert_eq!(grid.header(), ROW_HEADERS, "{}", grid.source);
-    assert_rows(grid, json, "residuals", &[], &ROW_NUMBERS, tol)
+    let blocks: Vec<(String, &Value)> = models(json)
+        .iter()
+        .filter(|m| m["by"].is_null())
+        .map(|m| {
+            (
+                m["name"].as_str().expect("model name").to_string(),
+                &m["residuals"],
+            )
+        })
+        .collect();
+    assert_blocks(grid, &blocks, "residuals", &[], &ROW_NUMBERS, tol)
 }
 
 /// The Checks sheet against every model's checks.
@@ -346,8 +378,8 @@ pub fn assert_checks(grid: &Grid, json: &Value, tol: f64) -> usize {
     )
 }
 
-/// The Forecast sheet against every model's forecast rows; with none, the
-/// sheet holds a note.
+/// The Forecast sheet against every model's forecast rows, each followed
+/// by its AR(1)-error version's; with none, the sheet holds a note.
 pub fn assert_forecast(grid: &Grid, json: &Value, tol: f64) -> usize {
     let rows: usize = models(json)
         .iter()
@@ -374,9 +406,22 @@ pub fn assert_forecast(grid: &Grid, json: &Value, tol: f64) -> usize {
         "{}",
         grid.source
     );
-    assert_rows(
+    let blocks: Vec<(String, &Value)> = models(json)
+        .iter()
+        .flat_map(|m| {
+            let name = m["name"].as_str().expect("model name");
+            [
+                (name.to_string(), &m["forecast"]),
+                (
+                    format!("{name} (AR(1) errors)"),
+                    &m["ar1_errors"]["forecast"],
+                ),
+            ]
+        })
+        .collect();
+    assert_blocks(
         grid,
-        json,
+        &blocks,
         "forecast",
         &[],
         &[
