@@ -157,6 +157,17 @@ fn assert_matches_r(case: &str, ours: &Value) {
             1e-5,
         );
     }
+    // The intervals take σ² = S/(n − p − 1), R's predict() the
+    // maximum-likelihood S/n: the error part scales by √(n/(n − p − 1)).
+    let n = num(&expected["n"]);
+    let p = exp_len(&expected["coefficients"]);
+    let df_scale = (n / (n - p - 1.0)).sqrt();
+    assert_relative(
+        &format!("{case} sigma for forecasts"),
+        num(&ar1["sigma_forecast"]),
+        num(&expected["sigma2"]).sqrt() * df_scale,
+        1e-6,
+    );
     let got = ar1["forecast"].as_array().expect("forecast");
     let exp = expected["forecast"].as_array().expect("forecast");
     assert_eq!(got.len(), exp.len(), "{case}: forecast rows");
@@ -168,22 +179,26 @@ fn assert_matches_r(case: &str, ours: &Value) {
         assert_relative(&what, num(&g["estimate"]), num(&e["estimate"]), 1e-6);
         let se_new = (num(&g["pred_upper"]) - num(&g["pred_lower"])) / (2.0 * z);
         let se_mean = (num(&g["mean_upper"]) - num(&g["mean_lower"])) / (2.0 * z);
-        assert_relative(&format!("{what} se"), se_new, num(&e["std_error"]), 1e-4);
         assert_relative(
             &format!("{what} se of the mean"),
             se_mean,
             num(&e["mean_std_error"]),
             1e-3,
         );
-        // The error's own part, σ²(1 − φ²ʰ)/(1 − φ²), is R's predict().
+        // The error's own part, σ²(1 − φ²ʰ)/(1 − φ²), is R's predict()'s
+        // with the degrees of freedom given back.
         let error = (se_new * se_new - se_mean * se_mean).sqrt();
-        assert_relative(
-            &format!("{what} error se"),
-            error,
-            num(&e["error_std_error"]),
-            1e-6,
-        );
+        let expected_error = num(&e["error_std_error"]) * df_scale;
+        assert_relative(&format!("{what} error se"), error, expected_error, 1e-6);
+        let mean = num(&e["mean_std_error"]);
+        let expected_new = (expected_error * expected_error + mean * mean).sqrt();
+        assert_relative(&format!("{what} se"), se_new, expected_new, 1e-4);
     }
+}
+
+/// The length of a JSON array, as a number.
+fn exp_len(v: &Value) -> f64 {
+    v.as_array().map_or(0, Vec::len) as f64
 }
 
 #[test]

@@ -5,6 +5,8 @@
 //! own forecast decays towards zero at the rate φ. Its error variance is
 //! σ²(1 − φ²ʰ)/(1 − φ²), that of the next h innovations (e.g. Brockwell &
 //! Davis, *Introduction to Time Series and Forecasting*, 2nd ed., §5.4),
+//! with σ² = S/(n − p − 1) rather than the maximum-likelihood S/n (see
+//! [`Ar1Errors::forecast_sigma2`]),
 //! and the estimates' own uncertainty adds gᵀVg by the delta method, g the
 //! forecast's gradient in (φ, b), (hφʰ⁻¹uₙ, x₀ − φʰxₙ), V their inverse
 //! observed information. Limits take normal quantiles, as the fit's
@@ -47,7 +49,7 @@ pub(super) fn predict_ar1(
             v += ga * fit.covariance[(a, b)] * gb;
         }
     }
-    let error_variance = fit.sigma2 * (1.0 - phi.powi(2 * h)) / (1.0 - phi * phi);
+    let error_variance = ar1.forecast_sigma2 * (1.0 - phi.powi(2 * h)) / (1.0 - phi * phi);
     Ok(Prediction {
         estimate,
         se_mean: v.max(0.0).sqrt(),

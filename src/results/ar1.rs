@@ -24,6 +24,10 @@ pub struct Ar1Results {
     /// Innovation standard deviation σ = √(S/n), the maximum-likelihood
     /// one.
     pub sigma: f64,
+    /// The innovation standard deviation the prediction intervals take,
+    /// √(S/(n − p − 1)): σ with the degrees of freedom of the p
+    /// coefficients and φ given back.
+    pub sigma_forecast: f64,
     /// The log-likelihood at the maximum, the first period's included.
     pub log_likelihood: f64,
     /// −2·logL + 2k, k = coefficients + 2 (φ and σ²).
@@ -68,6 +72,7 @@ pub fn ar1_results(
         phi: ar1.phi.clone(),
         coefficients: ar1.coefficients.clone(),
         sigma: ar1.fit.sigma2.sqrt(),
+        sigma_forecast: ar1.forecast_sigma2.sqrt(),
         log_likelihood: ar1.fit.log_likelihood,
         aic: ar1.aic,
         bic: ar1.bic,

@@ -66,6 +66,12 @@ pub struct Ar1Errors {
     pub aic: f64,
     /// Schwarz's criterion −2·logL + k·ln n.
     pub bic: f64,
+    /// The innovation variance the prediction intervals take: S/(n − p − 1),
+    /// p coefficients and φ, the maximum-likelihood S/n with the degrees of
+    /// freedom the estimates use given back, as least squares' s² does.
+    /// (The maximum-likelihood σ² would make intervals too narrow when
+    /// there are few rows per parameter.)
+    pub forecast_sigma2: f64,
     /// Confidence level of the intervals.
     pub confidence: f64,
 }
@@ -151,6 +157,8 @@ pub fn ar1_errors(design: &Design, ols: &Fit, origin: Ar1Origin) -> Result<Ar1Er
         .collect();
     let parameters = kept.len() + 2;
     let n = design.y.len() as f64;
+    // At least p + 3 rows were fitted, so the divisor is at least 2.
+    let forecast_sigma2 = fit.sigma2 * n / (n - kept.len() as f64 - 1.0);
     let aic = -2.0 * fit.log_likelihood + 2.0 * parameters as f64;
     let bic = -2.0 * fit.log_likelihood + n.ln() * parameters as f64;
     Ok(Ar1Errors {
@@ -162,6 +170,7 @@ pub fn ar1_errors(design: &Design, ols: &Fit, origin: Ar1Origin) -> Result<Ar1Er
         parameters,
         aic,
         bic,
+        forecast_sigma2,
         confidence: ols.confidence,
     })
 }

@@ -78,7 +78,8 @@ pub(super) fn ar1_sheet(
             a.sigma,
             None,
             format!(
-                "maximum-likelihood; least squares' residual standard error is {}",
+                "maximum-likelihood, √(S/n); the forecast intervals take √(S/(n − p − 1)) = {}, the degrees of freedom of the coefficients and φ given back; least squares' residual standard error is {}",
+                crate::text::significant(a.sigma_forecast, 6),
                 crate::text::significant(m.fit.sigma, 6)
             ),
         ));
