@@ -191,17 +191,15 @@ pub fn forecast(
     fit: &Fit,
     plan: Option<&Table>,
 ) -> Result<(Vec<ForecastRow>, Vec<ForecastTotal>), ForecastError> {
-    let Some(forecast) = &spec.forecast else {
+    let Some(Future {
+        predictors,
+        rows,
+        history,
+        predictor,
+    }) = future(spec, design, fit, plan)?
+    else {
         return Ok((Vec::new(), Vec::new()));
     };
-    let predictors: Vec<&str> = spec.row_columns();
-    let rows = future_rows(spec, design, forecast, plan, &predictors)?;
-    // Each row's lags read the data and the rows before it.
-    let mut history = design.lag_history.clone();
-    for (_, row) in &rows {
-        history.record(row);
-    }
-    let predictor = Predictor::new(spec, design, fit);
     let totals = totals::totals(&predictor, &rows, &history)?;
     let rows = rows
         .into_iter()
@@ -225,8 +223,34 @@ pub fn forecast_ar1(
     plan: Option<&Table>,
     ar1: &Ar1Errors,
 ) -> Result<Vec<ForecastRow>, ForecastError> {
-    let Some(forecast) = &spec.forecast else {
+    let Some(f) = future(spec, design, fit, plan)? else {
         return Ok(Vec::new());
+    };
+    ar1::forecast_rows(&f.predictor, ar1, &f.rows, &f.history, &f.predictors)
+}
+
+/// The rows a model's forecast predicts, ready to predict.
+struct Future<'a> {
+    /// The columns a row gives, in model order.
+    predictors: Vec<&'a str>,
+    /// The rows, each with the words that place it in messages.
+    rows: Vec<(String, FutureRow)>,
+    /// The lagged columns' values: the data's, then the rows'.
+    history: LagHistory,
+    /// The least-squares fit's predictor.
+    predictor: Predictor<'a>,
+}
+
+/// The forecast rows of `spec` (`None` when it asks for none), each row's
+/// lags reading the data and the rows before it.
+fn future<'a>(
+    spec: &'a ModelSpec,
+    design: &'a Design,
+    fit: &'a Fit,
+    plan: Option<&Table>,
+) -> Result<Option<Future<'a>>, ForecastError> {
+    let Some(forecast) = &spec.forecast else {
+        return Ok(None);
     };
     let predictors: Vec<&str> = spec.row_columns();
     let rows = future_rows(spec, design, forecast, plan, &predictors)?;
@@ -234,8 +258,12 @@ pub fn forecast_ar1(
     for (_, row) in &rows {
         history.record(row);
     }
-    let predictor = Predictor::new(spec, design, fit);
-    ar1::forecast_rows(&predictor, ar1, &rows, &history, &predictors)
+    Ok(Some(Future {
+        predictors,
+        rows,
+        history,
+        predictor: Predictor::new(spec, design, fit),
+    }))
 }
 
 /// The forecast rows as rows to predict, each with the words that place it
