@@ -389,3 +389,55 @@ fn the_workbook_shows_the_ar1_version_beside_least_squares() {
         .collect();
     assert!(header.iter().any(|h| h == "Forecast with AR(1) errors"));
 }
+
+#[test]
+fn a_log_response_is_fitted_on_the_log_scale_and_forecast_back() {
+    // The same model on a column holding ln(volume): φ and the coefficients
+    // agree, and the log model's forecast limits are exp of the other's.
+    let text = std::fs::read_to_string(fixtures().join("periods/nile.csv")).expect("read");
+    let mut lines = text.lines();
+    let mut data = format!("{},log_volume\n", lines.next().expect("header"));
+    for line in lines {
+        let volume: f64 = line
+            .split(',')
+            .nth(1)
+            .and_then(|v| v.parse().ok())
+            .expect("volume");
+        data.push_str(&format!("{line},{:.17e}\n", volume.ln()));
+    }
+    let run_on = |response: &str| {
+        let scratch = Scratch::new();
+        scratch.write("data.csv", &data);
+        scratch.write(
+            "job.toml",
+            &format!("suggest = false\n[input]\nworkbook = \"data.csv\"\n[output]\nworkbook = \"report.xlsx\"\n[[model]]\nname = \"m\"\n{response}date = \"year\"\nstep = {{ dam = \"1899\" }}\nerrors = \"ar1\"\n[model.forecast]\nhorizon = 3\n"),
+        );
+        let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+        assert!(out.status.success(), "{}", stderr(&out));
+        read_json(&scratch.path("report.json"))["models"][0]["ar1_errors"].clone()
+    };
+    let logged = run_on("response = \"volume\"\ntransform = \"log\"\n");
+    let direct = run_on("response = \"log_volume\"\n");
+    assert_relative(
+        "phi",
+        num(&logged["phi"]["estimate"]),
+        num(&direct["phi"]["estimate"]),
+        1e-10,
+    );
+    for (a, b) in logged["forecast"]
+        .as_array()
+        .expect("rows")
+        .iter()
+        .zip(direct["forecast"].as_array().expect("rows"))
+    {
+        for key in [
+            "estimate",
+            "pred_lower",
+            "pred_upper",
+            "mean_lower",
+            "mean_upper",
+        ] {
+            assert_relative(key, num(&a[key]), num(&b[key]).exp(), 1e-10);
+        }
+    }
+}
