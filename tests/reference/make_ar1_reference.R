@@ -165,23 +165,30 @@ profile_loglik <- function(phi, y, X) {
 # b(phi) maximises over b.
 profile_score <- function(phi, y, X) loglik_at(phi, profile_beta(phi, y, X), y, X)$gradient[1]
 
-profile_fit <- function(y, X) {
-  o <- optimize(profile_loglik, c(-0.999, 0.999), y = y, X = X, maximum = TRUE, tol = 1e-12)
-  # Polish: the root of the analytic score next to optimize's maximum.
+# Maximises a profile log likelihood l(phi) over (-0.999, 0.999) with
+# optimize(), then polishes: the root of its analytic derivative `score` next
+# to optimize's maximum.
+maximise_profile <- function(loglik, score) {
+  o <- optimize(loglik, c(-0.999, 0.999), maximum = TRUE, tol = 1e-12)
   width <- 1e-6
   repeat {
     lo <- max(-0.999, o$maximum - width)
     hi <- min(0.999, o$maximum + width)
-    if (profile_score(lo, y, X) > 0 && profile_score(hi, y, X) < 0) break
+    if (score(lo) > 0 && score(hi) < 0) break
     width <- width * 10
     if (width > 1) stop("no sign change of the profile score")
   }
-  root <- uniroot(profile_score, c(lo, hi), y = y, X = X, tol = 1e-16, maxiter = 1000)$root
-  b <- profile_beta(root, y, X)
-  at <- loglik_at(root, b, y, X)
-  list(phi_optimize = o$maximum, loglik_optimize = o$objective,
-       phi = root, beta = unname(b), loglik = profile_loglik(root, y, X),
-       score = at$gradient, covariance = solve(-at$hessian))
+  root <- uniroot(score, c(lo, hi), tol = 1e-16, maxiter = 1000)$root
+  list(phi_optimize = o$maximum, loglik_optimize = o$objective, phi = root, loglik = loglik(root))
+}
+
+profile_fit <- function(y, X) {
+  p <- maximise_profile(function(phi) profile_loglik(phi, y, X), function(phi) profile_score(phi, y, X))
+  p$beta <- unname(profile_beta(p$phi, y, X))
+  at <- loglik_at(p$phi, p$beta, y, X)
+  p$score <- at$gradient
+  p$covariance <- solve(-at$hessian)
+  p
 }
 
 # ---------------------------------------------------------------------------
@@ -197,6 +204,51 @@ differences <- function(fit, p) {
   c(phi = abs(coef(fit)[[1]] - p$phi) / abs(p$phi),
     coefficients = rel(unname(coef(fit)[-1]), p$beta),
     log_likelihood = abs(fit$loglik - p$loglik) / abs(p$loglik))
+}
+
+# arima() from its own start, then, if `always_restart` or if that fit is
+# further than TOLERANCE from the profile optimum p, again from p; the refit
+# is kept if it is closer to p. Prints the differences from the profile
+# named by `profile_label`.
+fit_near_profile <- function(name, y, X, p, always_restart, profile_label) {
+  fit <- fit_arima(y, X)
+  stopifnot(fit$code == 0)
+  first <- differences(fit, p)
+  restarted <- FALSE
+  if (always_restart || max(first) > TOLERANCE) {
+    # arima() reads the regression part of `init` in its own rotated
+    # coordinates (xreg %*% svd(xreg)$v when there is more than one regressor
+    # and none is fixed), so the profile optimum is rotated to match.
+    b0 <- if (ncol(X) > 1) drop(crossprod(svd(X)$v, p$beta)) else p$beta
+    refit <- fit_arima(y, X, init = c(p$phi, b0))
+    stopifnot(refit$code == 0)
+    if (max(differences(refit, p)) < max(first)) {
+      fit <- refit
+      restarted <- TRUE
+    }
+  }
+  final <- differences(fit, p)
+  cat(sprintf("%-7s phi %.10f  max rel diff vs %s: first fit %.2e, final %.2e%s\n",
+              name, coef(fit)[[1]], profile_label, max(first), max(final),
+              if (restarted) " (restarted from the profile optimum)" else ""))
+  list(fit = fit, first = first, final = final, restarted = restarted)
+}
+
+# The coefficient rows, covariance and standard errors of the fit, with its
+# BIC checked against n observed rows.
+fit_summary <- function(fit, X, n) {
+  terms <- colnames(X)
+  stopifnot(identical(names(coef(fit)), c("ar1", terms)))
+  V <- fit$var.coef
+  se <- sqrt(diag(V))
+  coefficient_rows <- vapply(seq_along(terms), function(k) {
+    sprintf('{"term": %s, "estimate": %s, "std_error": %s}',
+            str(terms[k]), num(coef(fit)[[k + 1]]), num(se[k + 1]))
+  }, "")
+  k <- length(coef(fit)) + 1
+  bic <- BIC(fit)
+  stopifnot(abs(bic - (-2 * fit$loglik + log(n) * k)) < 1e-9 * abs(bic))
+  list(terms = terms, V = V, se = se, coefficient_rows = coefficient_rows, bic = bic)
 }
 
 forecast_rows <- function(fit, y, X, Xnew, labels) {
@@ -226,57 +278,12 @@ forecast_rows <- function(fit, y, X, Xnew, labels) {
   paste0("[\n    ", paste(out, collapse = ",\n    "), "\n   ]")
 }
 
-run_case <- function(name, dataset, data_file, response, y, X, Xnew, labels) {
-  n <- length(y)
-  p <- profile_fit(y, X)
-  fit <- fit_arima(y, X)
-  stopifnot(fit$code == 0)
-  first <- differences(fit, p)
-  restarted <- FALSE
-  if (max(first) > TOLERANCE) {
-    # arima() reads the regression part of `init` in its own rotated
-    # coordinates (xreg %*% svd(xreg)$v when there is more than one regressor
-    # and none is fixed), so the profile optimum is rotated to match.
-    b0 <- if (ncol(X) > 1) drop(crossprod(svd(X)$v, p$beta)) else p$beta
-    refit <- fit_arima(y, X, init = c(p$phi, b0))
-    stopifnot(refit$code == 0)
-    if (max(differences(refit, p)) < max(first)) {
-      fit <- refit
-      restarted <- TRUE
-    }
-  }
-  final <- differences(fit, p)
-  cat(sprintf("%-7s phi %.10f  max rel diff vs profile: first fit %.2e, final %.2e%s\n",
-              name, coef(fit)[[1]], max(first), max(final),
-              if (restarted) " (restarted from the profile optimum)" else ""))
-
-  terms <- colnames(X)
-  stopifnot(identical(names(coef(fit)), c("ar1", terms)))
-  V <- fit$var.coef
-  se <- sqrt(diag(V))
-  coefficient_rows <- vapply(seq_along(terms), function(k) {
-    sprintf('{"term": %s, "estimate": %s, "std_error": %s}',
-            str(terms[k]), num(coef(fit)[[k + 1]]), num(se[k + 1]))
-  }, "")
-  lags <- min(10, floor(n / 5))
-  box <- Box.test(residuals(fit), lag = lags, type = "Ljung-Box", fitdf = 1)
-  k <- length(coef(fit)) + 1
-  bic <- BIC(fit)
-  stopifnot(abs(bic - (-2 * fit$loglik + log(n) * k)) < 1e-9 * abs(bic))
-
-  # The innovations as defined, against residuals(fit).
-  phi <- coef(fit)[[1]]
-  u <- drop(y - X %*% coef(fit)[-1])
-  innovations <- as.numeric(residuals(fit))
-  stopifnot(max(abs(innovations - c(sqrt(1 - phi^2) * u[1], u[-1] - phi * u[-n]))) < 1e-9 * max(abs(u)))
-
-  analytic_se <- sqrt(diag(p$covariance))
-  profile <- obj(c(
-    method = str(paste(
-      "optimize(l, c(-0.999, 0.999), maximum = TRUE, tol = 1e-12) of the Prais-Winsten",
-      "concentrated log likelihood l(phi) = -n/2 (log(2 pi) + 1 + log(S/n)) + 1/2 log(1 - phi^2);",
-      "then polished: uniroot of its analytic derivative"
-    )),
+# The "profile_check" object: the profile optimum p, how far arima() ended
+# from it (r from fit_near_profile), and the standard errors se against those
+# of `covariance`; `accuracy` holds extra fields written after the covariance.
+profile_json <- function(method, p, r, covariance, se, accuracy = character(0)) {
+  obj(c(
+    method = str(method),
     phi = num(p$phi_optimize),
     log_likelihood = num(p$loglik_optimize),
     phi_polished = num(p$phi),
@@ -284,36 +291,72 @@ run_case <- function(name, dataset, data_file, response, y, X, Xnew, labels) {
     log_likelihood_polished = num(p$loglik),
     max_abs_score_polished = num(max(abs(p$score))),
     max_rel_diff = obj(c(
-      phi = num(final[["phi"]]),
-      coefficients = num(final[["coefficients"]]),
-      log_likelihood = num(final[["log_likelihood"]])
+      phi = num(r$final[["phi"]]),
+      coefficients = num(r$final[["coefficients"]]),
+      log_likelihood = num(r$final[["log_likelihood"]])
     ), "    "),
     max_rel_diff_optimize_vs_polished = num(abs(p$phi_optimize - p$phi) / abs(p$phi)),
-    arima_restarted = if (restarted) "true" else "false",
-    max_rel_diff_first_arima_fit = num(max(first)),
-    covariance_analytic = rows(p$covariance, "    "),
-    max_rel_diff_std_error = num(rel(se, analytic_se))
+    arima_restarted = if (r$restarted) "true" else "false",
+    max_rel_diff_first_arima_fit = num(max(r$first)),
+    covariance_analytic = rows(covariance, "    "),
+    accuracy,
+    max_rel_diff_std_error = num(rel(se, sqrt(diag(covariance))))
   ), "   ")
+}
 
+# One case's object. `gaps` holds fields written after "response",
+# `ljung_box` one written after "innovations" (both absent when empty); the
+# innovations are written as null where they are NA.
+case_json <- function(dataset, data_file, response, fit, s, n, innovations, forecast, profile,
+                      gaps = character(0), ljung_box = character(0)) {
   obj(c(
     dataset = str(dataset),
     data = str(data_file),
     response = str(response),
-    terms = strs(terms),
+    gaps,
+    terms = strs(s$terms),
     n = as.character(n),
-    phi = sprintf('{"estimate": %s, "std_error": %s}', num(coef(fit)[[1]]), num(se[1])),
-    coefficients = paste0("[\n    ", paste(coefficient_rows, collapse = ",\n    "), "\n   ]"),
+    phi = sprintf('{"estimate": %s, "std_error": %s}', num(coef(fit)[[1]]), num(s$se[1])),
+    coefficients = paste0("[\n    ", paste(s$coefficient_rows, collapse = ",\n    "), "\n   ]"),
     sigma2 = num(fit$sigma2),
     log_likelihood = num(fit$loglik),
     aic = num(fit$aic),
-    bic = num(bic),
-    covariance = rows(V, "   "),
-    innovations = arr(innovations),
-    ljung_box = sprintf('{"lags": %d, "df": %s, "statistic": %s, "p_value": %s}',
-                        lags, num(box$parameter), num(box$statistic), num(box$p.value)),
-    forecast = forecast_rows(fit, y, X, Xnew, labels),
+    bic = num(s$bic),
+    covariance = rows(s$V, "   "),
+    innovations = paste0("[", paste(ifelse(is.na(innovations), "null", num(innovations)),
+                                    collapse = ", "), "]"),
+    ljung_box,
+    forecast = forecast,
     profile_check = profile
   ), "  ")
+}
+
+run_case <- function(name, dataset, data_file, response, y, X, Xnew, labels) {
+  n <- length(y)
+  p <- profile_fit(y, X)
+  r <- fit_near_profile(name, y, X, p, always_restart = FALSE, profile_label = "profile")
+  fit <- r$fit
+  s <- fit_summary(fit, X, n)
+  lags <- min(10, floor(n / 5))
+  box <- Box.test(residuals(fit), lag = lags, type = "Ljung-Box", fitdf = 1)
+
+  # The innovations as defined, against residuals(fit).
+  phi <- coef(fit)[[1]]
+  u <- drop(y - X %*% coef(fit)[-1])
+  innovations <- as.numeric(residuals(fit))
+  stopifnot(max(abs(innovations - c(sqrt(1 - phi^2) * u[1], u[-1] - phi * u[-n]))) < 1e-9 * max(abs(u)))
+
+  profile <- profile_json(paste(
+    "optimize(l, c(-0.999, 0.999), maximum = TRUE, tol = 1e-12) of the Prais-Winsten",
+    "concentrated log likelihood l(phi) = -n/2 (log(2 pi) + 1 + log(S/n)) + 1/2 log(1 - phi^2);",
+    "then polished: uniroot of its analytic derivative"
+  ), p, r, p$covariance, s$se)
+
+  case_json(dataset, data_file, response, fit, s, n, innovations,
+            forecast_rows(fit, y, X, Xnew, labels), profile,
+            ljung_box = c(ljung_box = sprintf('{"lags": %d, "df": %s, "statistic": %s, "p_value": %s}',
+                                              lags, num(box$parameter), num(box$statistic),
+                                              num(box$p.value))))
 }
 
 # ---------------------------------------------------------------------------
@@ -417,22 +460,11 @@ gap_profile_score <- function(phi, y, X, obs) {
 }
 
 gap_profile_fit <- function(y, X, obs) {
-  o <- optimize(gap_profile_loglik, c(-0.999, 0.999), y = y, X = X, obs = obs,
-                maximum = TRUE, tol = 1e-12)
-  width <- 1e-6
-  repeat {
-    lo <- max(-0.999, o$maximum - width)
-    hi <- min(0.999, o$maximum + width)
-    if (gap_profile_score(lo, y, X, obs) > 0 && gap_profile_score(hi, y, X, obs) < 0) break
-    width <- width * 10
-    if (width > 1) stop("no sign change of the profile score")
-  }
-  root <- uniroot(gap_profile_score, c(lo, hi), y = y, X = X, obs = obs,
-                  tol = 1e-16, maxiter = 1000)$root
-  b <- unname(gap_beta(root, y, X, obs))
-  list(phi_optimize = o$maximum, loglik_optimize = o$objective,
-       phi = root, beta = b, loglik = gap_profile_loglik(root, y, X, obs),
-       score = gap_loglik_at(root, b, y, X, obs)$gradient)
+  p <- maximise_profile(function(phi) gap_profile_loglik(phi, y, X, obs),
+                        function(phi) gap_profile_score(phi, y, X, obs))
+  p$beta <- unname(gap_beta(p$phi, y, X, obs))
+  p$score <- gap_loglik_at(p$phi, p$beta, y, X, obs)$gradient
+  p
 }
 
 # Richardson extrapolation of a sequence of estimates at steps h, h/2, h/4,
@@ -518,37 +550,12 @@ run_gap_case <- function(name, dataset, data_file, response, y, X, Xnew, labels,
   }
 
   p <- gap_profile_fit(y, X, obs)
-  fit <- fit_arima(y, X)
-  stopifnot(fit$code == 0, fit$nobs == m)
-  first <- differences(fit, p)
-  restarted <- FALSE
-  # Always tried here (the fit from arima's own start is off by ~2e-8 in
-  # phi); kept if closer to the profile optimum.
-  {
-    b0 <- if (ncol(X) > 1) drop(crossprod(svd(X)$v, p$beta)) else p$beta
-    refit <- fit_arima(y, X, init = c(p$phi, b0))
-    stopifnot(refit$code == 0)
-    if (max(differences(refit, p)) < max(first)) {
-      fit <- refit
-      restarted <- TRUE
-    }
-  }
-  final <- differences(fit, p)
-  cat(sprintf("%-7s phi %.10f  max rel diff vs gap-aware profile: first fit %.2e, final %.2e%s\n",
-              name, coef(fit)[[1]], max(first), max(final),
-              if (restarted) " (restarted from the profile optimum)" else ""))
-
-  terms <- colnames(X)
-  stopifnot(identical(names(coef(fit)), c("ar1", terms)))
-  V <- fit$var.coef
-  se <- sqrt(diag(V))
-  coefficient_rows <- vapply(seq_along(terms), function(k) {
-    sprintf('{"term": %s, "estimate": %s, "std_error": %s}',
-            str(terms[k]), num(coef(fit)[[k + 1]]), num(se[k + 1]))
-  }, "")
-  k <- length(coef(fit)) + 1
-  bic <- BIC(fit)
-  stopifnot(abs(bic - (-2 * fit$loglik + log(m) * k)) < 1e-9 * abs(bic))
+  # The restart is always tried here (the fit from arima's own start is off
+  # by ~2e-8 in phi); kept if closer to the profile optimum.
+  r <- fit_near_profile(name, y, X, p, always_restart = TRUE, profile_label = "gap-aware profile")
+  fit <- r$fit
+  stopifnot(fit$nobs == m)
+  s <- fit_summary(fit, X, m)
 
   # residuals(fit): NA at the gaps, the gap-transformed rows elsewhere.
   phi <- coef(fit)[[1]]
@@ -563,7 +570,7 @@ run_gap_case <- function(name, dataset, data_file, response, y, X, Xnew, labels,
   x0 <- c(p$phi, p$beta)
   f <- function(z) gap_loglik_at(z[1], z[-1], y, X, obs)$value
   g <- function(z) gap_loglik_at(z[1], z[-1], y, X, obs)$gradient
-  h <- unname(se)
+  h <- unname(s$se)
   H <- richardson_hessian(f, x0, h)
   covariance <- solve(-H$value)
   tableau_error <- max(H$error / sqrt(tcrossprod(diag(-H$value))))
@@ -577,32 +584,15 @@ run_gap_case <- function(name, dataset, data_file, response, y, X, Xnew, labels,
   cat(sprintf(paste("%-7s numerical Hessian: Richardson error estimate %.1e; covariance vs",
                     "differenced analytic gradient %.1e; on nottem vs the analytic Hessian %.1e\n"),
               name, tableau_error, vs_gradient, vs_analytic_no_gaps))
-  analytic_se <- sqrt(diag(covariance))
 
-  profile <- obj(c(
-    method = str(paste(
-      "optimize(l, c(-0.999, 0.999), maximum = TRUE, tol = 1e-12) of the concentrated log likelihood",
-      "of the observed rows, transformed with gaps: first observed row times sqrt(1 - phi^2),",
-      "then (v_t - phi^d v_s) / sqrt(w_d) for consecutive observed rows s < t, d = t - s,",
-      "w_d = (1 - phi^(2d)) / (1 - phi^2); l(phi) = -m/2 (log(2 pi) + 1 + log(S/m))",
-      "- 1/2 sum log w_d + 1/2 log(1 - phi^2), m observed rows;",
-      "then polished: uniroot of its analytic derivative"
-    )),
-    phi = num(p$phi_optimize),
-    log_likelihood = num(p$loglik_optimize),
-    phi_polished = num(p$phi),
-    coefficients_polished = arr(p$beta),
-    log_likelihood_polished = num(p$loglik),
-    max_abs_score_polished = num(max(abs(p$score))),
-    max_rel_diff = obj(c(
-      phi = num(final[["phi"]]),
-      coefficients = num(final[["coefficients"]]),
-      log_likelihood = num(final[["log_likelihood"]])
-    ), "    "),
-    max_rel_diff_optimize_vs_polished = num(abs(p$phi_optimize - p$phi) / abs(p$phi)),
-    arima_restarted = if (restarted) "true" else "false",
-    max_rel_diff_first_arima_fit = num(max(first)),
-    covariance_analytic = rows(covariance, "    "),
+  profile <- profile_json(paste(
+    "optimize(l, c(-0.999, 0.999), maximum = TRUE, tol = 1e-12) of the concentrated log likelihood",
+    "of the observed rows, transformed with gaps: first observed row times sqrt(1 - phi^2),",
+    "then (v_t - phi^d v_s) / sqrt(w_d) for consecutive observed rows s < t, d = t - s,",
+    "w_d = (1 - phi^(2d)) / (1 - phi^2); l(phi) = -m/2 (log(2 pi) + 1 + log(S/m))",
+    "- 1/2 sum log w_d + 1/2 log(1 - phi^2), m observed rows;",
+    "then polished: uniroot of its analytic derivative"
+  ), p, r, covariance, s$se, accuracy = c(
     covariance_analytic_method = str(paste(
       "solve(-H), H the Hessian of l(phi, b) (sigma2 concentrated out) at the polished optimum by",
       "central second differences with steps arima's standard errors / 2^k, k = 0..4,",
@@ -613,30 +603,13 @@ run_gap_case <- function(name, dataset, data_file, response, y, X, Xnew, labels,
       vs_differenced_analytic_gradient = num(vs_gradient),
       same_routine_on_nottem_vs_analytic_hessian = num(vs_analytic_no_gaps),
       units = str("max |A_ij - B_ij| / sqrt(B_ii B_jj)")
-    ), "    "),
-    max_rel_diff_std_error = num(rel(se, analytic_se))
-  ), "   ")
+    ), "    ")
+  ))
 
-  obj(c(
-    dataset = str(dataset),
-    data = str(data_file),
-    response = str(response),
-    blank_rows = paste0("[", paste(blank_rows, collapse = ", "), "]"),
-    blank_periods = strs(labels_of_rows(blank_rows)),
-    terms = strs(terms),
-    n = as.character(m),
-    phi = sprintf('{"estimate": %s, "std_error": %s}', num(coef(fit)[[1]]), num(se[1])),
-    coefficients = paste0("[\n    ", paste(coefficient_rows, collapse = ",\n    "), "\n   ]"),
-    sigma2 = num(fit$sigma2),
-    log_likelihood = num(fit$loglik),
-    aic = num(fit$aic),
-    bic = num(bic),
-    covariance = rows(V, "   "),
-    innovations = paste0("[", paste(ifelse(is.na(innovations), "null", num(innovations)),
-                                    collapse = ", "), "]"),
-    forecast = forecast_rows(fit, y, X, Xnew, labels),
-    profile_check = profile
-  ), "  ")
+  case_json(dataset, data_file, response, fit, s, m, innovations,
+            forecast_rows(fit, y, X, Xnew, labels), profile,
+            gaps = c(blank_rows = paste0("[", paste(blank_rows, collapse = ", "), "]"),
+                     blank_periods = strs(labels_of_rows(blank_rows))))
 }
 
 labels_of_rows <- month_label
