@@ -17,6 +17,35 @@ pub fn significant(x: f64, digits: usize) -> String {
     format!("{x:.decimals$}")
 }
 
+/// `x` as a reader would write it in a sentence: three significant digits
+/// without trailing zeros, whole numbers with thousands separators from
+/// 1,000 on ("0.045", "12.3", "4,518", "-1,200,000").
+pub fn plain(x: f64) -> String {
+    if !x.is_finite() {
+        return format!("{x}");
+    }
+    if x.abs() >= 1000.0 {
+        let whole = format!("{:.0}", x.abs());
+        let mut grouped = String::new();
+        for (k, c) in whole.chars().enumerate() {
+            if k > 0 && (whole.len() - k) % 3 == 0 {
+                grouped.push(',');
+            }
+            grouped.push(c);
+        }
+        return if x < 0.0 {
+            format!("-{grouped}")
+        } else {
+            grouped
+        };
+    }
+    let text = significant(x, 3);
+    if text.contains('e') || !text.contains('.') {
+        return text;
+    }
+    text.trim_end_matches('0').trim_end_matches('.').to_string()
+}
+
 /// Ranges [`row_ranges`] spells out before it summarises the rest.
 const MAX_RANGES: usize = 30;
 
@@ -56,6 +85,18 @@ mod tests {
         assert_eq!(significant(3.16081871345e-15, 4), "3.161e-15");
         assert_eq!(significant(1829.15146, 4), "1829");
         assert_eq!(significant(0.00073206, 4), "0.0007321");
+    }
+
+    #[test]
+    fn plain_numbers_read_as_written() {
+        assert_eq!(plain(0.045), "0.045");
+        assert_eq!(plain(0.0450001), "0.045");
+        assert_eq!(plain(12.34), "12.3");
+        assert_eq!(plain(4518.2), "4,518");
+        assert_eq!(plain(-1_200_000.0), "-1,200,000");
+        assert_eq!(plain(100.0), "100");
+        assert_eq!(plain(0.5), "0.5");
+        assert_eq!(plain(-0.00012345), "-0.000123");
     }
 
     #[test]

@@ -144,7 +144,7 @@ fn assert_complete_report(
     let mut wb =
         open_workbook_auto(workbook).unwrap_or_else(|e| panic!("open {}: {e}", workbook.display()));
     // A model whose residuals are autocorrelated brings its AR(1)-error
-    // version, on a sheet of its own after the checks.
+    // version, on a sheet of its own after the comparison.
     let mut sheets = sheets.to_vec();
     let results = read_json(json);
     let with_ar1 = results["models"]
@@ -153,7 +153,7 @@ fn assert_complete_report(
     if with_ar1 {
         let at = sheets
             .iter()
-            .position(|s| *s == "Checks")
+            .position(|s| *s == "Comparison")
             .map_or(0, |k| k + 1);
         sheets.insert(at, "AR(1) errors");
     }

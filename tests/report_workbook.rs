@@ -349,7 +349,13 @@ fn table_sheets_keep_their_header_row_in_view() {
     for (k, sheet) in SHEETS.iter().enumerate() {
         if matches!(
             *sheet,
-            "Overview" | "Charts" | "Forecast" | "Back-test" | "Back-test rows" | "Chart data"
+            "Summary"
+                | "Overview"
+                | "Charts"
+                | "Forecast"
+                | "Back-test"
+                | "Back-test rows"
+                | "Chart data"
         ) {
             continue;
         }

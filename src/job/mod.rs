@@ -147,6 +147,8 @@ pub struct JobFile {
     pub suggest: Option<bool>,
     /// Most models a job may list; default [`DEFAULT_MAX_MODELS`].
     pub max_models: Option<usize>,
+    /// The model the Summary sheet leads with; default the first.
+    pub summary_model: Option<String>,
     /// Last run's results JSON, relative to the job file: the report then
     /// shows what changed and how last run's forecasts did.
     pub compare_with: Option<PathBuf>,
@@ -198,6 +200,9 @@ pub struct Job {
     pub models: Vec<ModelSpec>,
     /// p-value above which the suggested model drops a term.
     pub suggest_threshold: f64,
+    /// The model the Summary sheet leads with: `summary_model`, else the
+    /// first.
+    pub summary_model: String,
 }
 
 /// Reads and checks the job file at `path`.
@@ -533,6 +538,27 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
     if let Some((key, message)) = cell_text::too_long(&title, &models) {
         return Err(invalid(&key, message));
     }
+    let summary_model = match file.summary_model {
+        Some(name) if !models.iter().any(|m| m.name == name) => {
+            let names: Vec<String> = models.iter().map(|m| m.name.clone()).collect();
+            return Err(invalid(
+                "summary_model",
+                format!(
+                    "'{name}' is not a model of this job; its models: {}{}",
+                    names
+                        .iter()
+                        .map(|n| format!("'{n}'"))
+                        .collect::<Vec<_>>()
+                        .join(", "),
+                    crate::suggest::closest(&name, &names)
+                        .map(|c| format!(" (did you mean '{c}'?)"))
+                        .unwrap_or_default()
+                ),
+            ));
+        }
+        Some(name) => name,
+        None => models.first().map(|m| m.name.clone()).unwrap_or_default(),
+    };
     if output.to_string_lossy().contains("{period}")
         && !models.iter().any(|m| m.date_column().is_some())
     {
@@ -545,6 +571,7 @@ fn check(path: &Path, text: &str, file: JobFile) -> Result<Job, JobError> {
         path: path.to_path_buf(),
         text: text.to_string(),
         title,
+        summary_model,
         input,
         sheet: file.input.sheet,
         header_row,

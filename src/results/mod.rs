@@ -16,6 +16,7 @@ use crate::job::Job;
 pub mod ar1;
 pub mod changes;
 pub mod model;
+pub mod summary;
 pub mod terms;
 
 pub use changes::RunChanges;
@@ -64,6 +65,8 @@ pub struct Results {
     pub run: RunStamp,
     /// The cautions shown with the report.
     pub cautions: Vec<String>,
+    /// The Summary sheet's sentences, led by the job's main model.
+    pub summary: Option<summary::Summary>,
     /// One entry per model, in job order, then the suggested models.
     pub models: Vec<ModelResults>,
     /// Every pair of models, nested pairs with their partial F test.
@@ -91,6 +94,7 @@ pub fn collect(
         title: job.title.clone(),
         run,
         cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
+        summary: summary::summary(&models, &job.summary_model),
         models,
         comparisons: comparisons.pairs,
         comparisons_left_out: comparisons.left_out,

@@ -169,6 +169,11 @@ pub struct ModelResults {
     pub equation: String,
     /// Estimated coefficients.
     pub coefficients: Vec<Coefficient>,
+    /// The mean and standard deviation of each estimated coefficient's
+    /// design column over the rows used (on the rows' own scale with
+    /// weights), for the summary's ranking of effects.
+    #[serde(skip)]
+    pub column_spread: Vec<ColumnSpread>,
     /// Overall fit statistics.
     pub fit: FitQuality,
     /// Sequential ANOVA, terms in model order, then the residual row.
@@ -321,6 +326,7 @@ pub fn analyse(
             &fit.coefficients,
         ),
         coefficients: fit.coefficients.clone(),
+        column_spread: column_spread(design, fit),
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),
@@ -338,6 +344,39 @@ pub fn analyse(
         suggested_from: None,
         dropped_terms: Vec::new(),
     }
+}
+
+/// The mean and standard deviation of a design column.
+#[derive(Debug, Clone, Copy)]
+pub struct ColumnSpread {
+    /// Mean over the rows used.
+    pub mean: f64,
+    /// Standard deviation (n − 1 divisor).
+    pub sd: f64,
+}
+
+/// [`ColumnSpread`] of each estimated coefficient's column.
+fn column_spread(design: &Design, fit: &Fit) -> Vec<ColumnSpread> {
+    fit.solution
+        .kept
+        .iter()
+        .map(|&j| {
+            let values: Vec<f64> = design
+                .x
+                .column(j)
+                .iter()
+                .enumerate()
+                .map(|(i, &v)| design.unscaled(i, v))
+                .collect();
+            let n = values.len().max(2) as f64;
+            let mean = values.iter().sum::<f64>() / values.len().max(1) as f64;
+            let ss: f64 = values.iter().map(|v| (v - mean).powi(2)).sum();
+            ColumnSpread {
+                mean,
+                sd: (ss / (n - 1.0)).sqrt(),
+            }
+        })
+        .collect()
 }
 
 /// Points a normal quantile plot holds at most; each statistic still uses

@@ -178,19 +178,27 @@ fn models(json: &Value) -> &[Value] {
     json["models"].as_array().expect("models array")
 }
 
+/// The models in the order the Coefficients, ANOVA, Checks and Forecast
+/// sheets list them: those not fitted by level, then those fitted by level.
+fn table_models(json: &Value) -> Vec<&Value> {
+    let (own, by_level): (Vec<&Value>, Vec<&Value>) =
+        models(json).iter().partition(|m| m["by"].is_null());
+    own.into_iter().chain(by_level).collect()
+}
+
 /// Checks one row of `grid` per item of each model's `list`: the model's
 /// name in the first column, `texts` (column, key) as text and `numbers`
 /// (column, key) to `tol`; nothing below the last row. Returns the rows
 /// checked.
 fn assert_rows(
     grid: &Grid,
-    json: &Value,
+    models: &[&Value],
     list: &str,
     texts: &[(usize, &str)],
     numbers: &[(usize, &str)],
     tol: f64,
 ) -> usize {
-    let blocks: Vec<(String, &Value)> = models(json)
+    let blocks: Vec<(String, &Value)> = models
         .iter()
         .map(|m| {
             (
@@ -262,7 +270,7 @@ pub fn assert_coefficients(grid: &Grid, json: &Value, tol: f64) -> usize {
         grid.source
     );
     let mut row = 1;
-    for model in models(json) {
+    for model in table_models(json) {
         let name = model["name"].as_str().expect("model name");
         for c in model["coefficients"].as_array().into_iter().flatten() {
             assert_eq!(grid.text(row, 0), name, "{}: row {row}", grid.source);
@@ -340,7 +348,8 @@ pub fn assert_residuals(grid: &Grid, json: &Value, tol: f64) -> usize {
             (9, "dffits"),
         ])
         .collect();
-    assert_rows(grid, json, "residuals", &[], &numbers, tol)
+    let in_order: Vec<&Value> = models(json).iter().collect();
+    assert_rows(grid, &in_order, "residuals", &[], &numbers, tol)
 }
 
 /// The Chart points sheet of reports small enough to plot every row; the
@@ -370,7 +379,7 @@ pub fn assert_checks(grid: &Grid, json: &Value, tol: f64) -> usize {
     );
     assert_rows(
         grid,
-        json,
+        &table_models(json),
         "checks",
         &[(1, "name")],
         &[(2, "statistic"), (3, "p_value")],
@@ -406,8 +415,8 @@ pub fn assert_forecast(grid: &Grid, json: &Value, tol: f64) -> usize {
         "{}",
         grid.source
     );
-    let blocks: Vec<(String, &Value)> = models(json)
-        .iter()
+    let blocks: Vec<(String, &Value)> = table_models(json)
+        .into_iter()
         .flat_map(|m| {
             let name = m["name"].as_str().expect("model name");
             [
@@ -486,7 +495,7 @@ pub fn assert_anova(grid: &Grid, json: &Value, tol: f64) -> usize {
         grid.source
     );
     let mut row = 1;
-    for model in models(json) {
+    for model in table_models(json) {
         for key in ["anova", "term_tests"] {
             for a in model[key].as_array().into_iter().flatten() {
                 assert_eq!(

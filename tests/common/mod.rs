@@ -11,21 +11,22 @@ use rust_xlsxwriter::Workbook;
 pub mod grid;
 
 /// The sheets of a report without a comparison, in order.
-pub const SHEETS: [&str; 14] = [
+pub const SHEETS: [&str; 15] = [
+    "Summary",
     "Overview",
     "Coefficients",
     "ANOVA",
+    "Checks",
+    "Forecast",
+    "Charts",
     "Fit quality",
     "Comparison",
-    "Checks",
-    "Residuals",
-    "Forecast",
     "Back-test",
+    "Residuals",
     "Back-test rows",
     "Chart data",
     "Normal plot",
     "Chart points",
-    "Charts",
 ];
 
 /// A cell to put in a fixture sheet.

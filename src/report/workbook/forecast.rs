@@ -2,14 +2,12 @@
 //! (history, fitted values, forecast and its prediction interval as a band).
 
 use chrono::NaiveDate;
-use rust_xlsxwriter::{
-    Chart, ChartFormat, ChartSolidFill, ChartType, Workbook, Worksheet, XlsxError,
-};
+use rust_xlsxwriter::{Chart, ChartFormat, ChartSolidFill, ChartType, Worksheet, XlsxError};
 
 use super::ar1::ar1_name;
 use super::{
-    axis_range, charted, num, opt, text, write_table, Cell, Formats, Style, BACKTEST,
-    BACKTEST_ROWS, CHART_DATA,
+    axis_range, charted, num, opt, print_table, table_order, text, write_table, Cell, Formats,
+    Style, CHART_DATA,
 };
 use crate::forecast::Predicted;
 use crate::results::model::SERIES_LINES_UP_TO;
@@ -85,9 +83,11 @@ pub(super) fn forecast_sheet(
         "Inputs",
     ];
     // Each model's rows, then those of its AR(1)-error version.
-    let rows: Vec<Vec<Cell>> = results
-        .models
-        .iter()
+    let printed = table_order(results)
+        .filter(|m| m.by.is_none())
+        .map(|m| m.forecast.len() + m.ar1_errors.as_ref().map_or(0, |a| a.forecast.len()))
+        .sum();
+    let rows: Vec<Vec<Cell>> = table_order(results)
         .flat_map(|m| {
             let ar1 = m.ar1_errors.iter().flat_map(move |a| {
                 a.forecast
@@ -118,7 +118,8 @@ pub(super) fn forecast_sheet(
             "No model in this job asks for a forecast ([model.forecast] in the job file).",
         );
     }
-    write_table(sheet, f, "Forecast_table", 0, &headers, &rows)
+    write_table(sheet, f, "Forecast_table", 0, &headers, &rows)?;
+    print_table(sheet, printed, rows.len(), headers.len())
 }
 
 /// The scenarios of every model: name, period, estimate and intervals.
@@ -159,12 +160,11 @@ pub(super) fn scenarios_sheet(
     write_table(sheet, f, "Scenarios_table", 0, &headers, &rows)
 }
 
-/// The back-test summary (one row per model and method) and its rows.
-pub(super) fn backtest_sheets(
-    workbook: &mut Workbook,
-    f: &Formats,
-    results: &Results,
-) -> Result<(), XlsxError> {
+/// The back-test tables: a summary row per model, version and method,
+/// and the held-out rows.
+type BacktestTables<'a> = (Vec<Vec<Cell<'a>>>, Vec<Vec<Cell<'a>>>);
+
+fn backtest_tables(results: &Results) -> BacktestTables<'_> {
     let mut summary = Vec::new();
     let mut points = Vec::new();
     // Each model's back-test, then its AR(1)-error version's on the same
@@ -220,13 +220,22 @@ pub(super) fn backtest_sheets(
             }
         }
     }
-    let summary_sheet = workbook.add_worksheet().set_name(BACKTEST)?;
+    (summary, points)
+}
+
+/// The back-test summary: one row per model, version and method.
+pub(super) fn backtest_sheet(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<(), XlsxError> {
+    let (summary, _) = backtest_tables(results);
     if summary.is_empty() {
         note(
-            summary_sheet,
+            sheet,
             f,
             "No model in this job asks for a back-test (backtest = K in a model).",
-        )?;
+        )
     } else {
         let headers = [
             "Model",
@@ -239,11 +248,19 @@ pub(super) fn backtest_sheets(
             "Share inside prediction interval",
             "Interval level",
         ];
-        write_table(summary_sheet, f, "Backtest_table", 0, &headers, &summary)?;
+        write_table(sheet, f, "Backtest_table", 0, &headers, &summary)
     }
-    let points_sheet = workbook.add_worksheet().set_name(BACKTEST_ROWS)?;
+}
+
+/// The held-out rows of every back-test.
+pub(super) fn backtest_rows_sheet(
+    sheet: &mut Worksheet,
+    f: &Formats,
+    results: &Results,
+) -> Result<(), XlsxError> {
+    let (_, points) = backtest_tables(results);
     if points.is_empty() {
-        return note(points_sheet, f, "No back-test rows.");
+        return note(sheet, f, "No back-test rows.");
     }
     let headers = [
         "Model",
@@ -256,7 +273,7 @@ pub(super) fn backtest_sheets(
         "Prediction upper",
         "Inside interval",
     ];
-    write_table(points_sheet, f, "Backtest_row_table", 0, &headers, &points)
+    write_table(sheet, f, "Backtest_row_table", 0, &headers, &points)
 }
 
 /// The data behind the forecast charts: per forecasting model, its history

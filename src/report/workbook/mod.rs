@@ -24,6 +24,7 @@ mod charts;
 mod forecast;
 mod overview;
 mod residuals;
+mod summary;
 mod tables;
 
 use self::charts::*;
@@ -32,6 +33,7 @@ use self::residuals::*;
 use self::tables::*;
 
 /// Sheet names.
+const SUMMARY: &str = "Summary";
 const OVERVIEW: &str = "Overview";
 const COEFFICIENTS: &str = "Coefficients";
 const ANOVA: &str = "ANOVA";
@@ -46,35 +48,37 @@ const CHART_DATA: &str = "Chart data";
 const NORMAL_PLOT: &str = "Normal plot";
 const CHART_POINTS: &str = "Chart points";
 const CHARTS: &str = "Charts";
-/// Sheet added after the overview when a model is fitted by level.
+/// Sheet added after the comparison when a model is fitted by level.
 const BY_SERIES: &str = "By series";
 
-/// Sheet added after the forecast when a model has scenarios.
+/// Sheet added before the back-test when a model has scenarios.
 const SCENARIOS: &str = "Scenarios";
 
-/// Sheet added after the checks when a model has AR(1) errors.
+/// Sheet added after the comparison when a model has AR(1) errors.
 const AR1: &str = "AR(1) errors";
 
-/// Sheets added when the job compares with last run.
+/// Sheets added after the back-test when the job compares with last run.
 const CHANGES: &str = "Changes";
 const TRACKING: &str = "Forecast tracking";
 
-/// Sheet names, in the order they appear.
-pub const SHEETS: [&str; 14] = [
+/// Sheet names, in the order they appear: the summary sheets, then the long
+/// data sheets the charts read.
+pub const SHEETS: [&str; 15] = [
+    SUMMARY,
     OVERVIEW,
     COEFFICIENTS,
     ANOVA,
+    CHECKS,
+    FORECAST,
+    CHARTS,
     FIT_QUALITY,
     COMPARISON,
-    CHECKS,
-    RESIDUALS,
-    FORECAST,
     BACKTEST,
+    RESIDUALS,
     BACKTEST_ROWS,
     CHART_DATA,
     NORMAL_PLOT,
     CHART_POINTS,
-    CHARTS,
 ];
 
 /// One cell of a table row; text is borrowed from the results where it can
@@ -131,6 +135,7 @@ struct Formats {
     date: Format,
     title: Format,
     heading: Format,
+    heading_wrap: Format,
     bold: Format,
     header: Format,
     wrap: Format,
@@ -149,6 +154,11 @@ impl Formats {
             date: Format::new().set_num_format("yyyy-mm-dd"),
             title: Format::new().set_bold().set_font_size(16),
             heading: Format::new().set_bold().set_font_size(12),
+            heading_wrap: Format::new()
+                .set_bold()
+                .set_font_size(12)
+                .set_text_wrap()
+                .set_align(FormatAlign::Top),
             bold: Format::new().set_bold(),
             header: Format::new()
                 .set_bold()
@@ -354,24 +364,37 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
             .set_comment(format!("Run {}", results.run.run_time))
             .set_custom_property(RUN_ID_PROPERTY, results.run.run_id.as_str()),
     );
+    summary::summary_sheet(
+        workbook.add_worksheet().set_name(SUMMARY)?,
+        &formats,
+        results,
+    )?;
     overview(
         workbook.add_worksheet().set_name(OVERVIEW)?,
         &formats,
         results,
     )?;
-    if results.models.iter().any(|m| m.by.is_some()) || !results.by_skipped.is_empty() {
-        by_series::by_series_sheet(
-            workbook.add_worksheet().set_name(BY_SERIES)?,
-            &formats,
-            results,
-        )?;
-    }
+    // First what a reader prints: the summary, the overview, the
+    // coefficients, ANOVA, checks, forecast and charts; the charts go in
+    // once the data sheets they read are written.
     coefficients(
         workbook.add_worksheet().set_name(COEFFICIENTS)?,
         &formats,
         results,
     )?;
     anova(workbook.add_worksheet().set_name(ANOVA)?, &formats, results)?;
+    checks(
+        workbook.add_worksheet().set_name(CHECKS)?,
+        &formats,
+        results,
+    )?;
+    forecast::forecast_sheet(
+        workbook.add_worksheet().set_name(FORECAST)?,
+        &formats,
+        results,
+    )?;
+    workbook.add_worksheet().set_name(CHARTS)?;
+    // Then the sheets for a closer look.
     fit_quality(
         workbook.add_worksheet().set_name(FIT_QUALITY)?,
         &formats,
@@ -382,21 +405,16 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
         &formats,
         results,
     )?;
-    checks(
-        workbook.add_worksheet().set_name(CHECKS)?,
-        &formats,
-        results,
-    )?;
+    if results.models.iter().any(|m| m.by.is_some()) || !results.by_skipped.is_empty() {
+        by_series::by_series_sheet(
+            workbook.add_worksheet().set_name(BY_SERIES)?,
+            &formats,
+            results,
+        )?;
+    }
     if results.models.iter().any(|m| m.ar1_errors.is_some()) {
         ar1::ar1_sheet(workbook.add_worksheet().set_name(AR1)?, &formats, results)?;
     }
-    // The one sheet that grows with the data is written row by row to disk.
-    residuals(&mut workbook, &formats, results)?;
-    forecast::forecast_sheet(
-        workbook.add_worksheet().set_name(FORECAST)?,
-        &formats,
-        results,
-    )?;
     if results.models.iter().any(|m| !m.scenarios.is_empty()) {
         forecast::scenarios_sheet(
             workbook.add_worksheet().set_name(SCENARIOS)?,
@@ -404,7 +422,23 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
             results,
         )?;
     }
-    forecast::backtest_sheets(&mut workbook, &formats, results)?;
+    forecast::backtest_sheet(
+        workbook.add_worksheet().set_name(BACKTEST)?,
+        &formats,
+        results,
+    )?;
+    if let Some(changes) = &results.changes {
+        changes_sheets(&mut workbook, &formats, changes)?;
+    }
+    // The long data sheets come last, so that printing the workbook gives
+    // the summary sheets and charts first. The one that grows with the data
+    // is written row by row to disk.
+    residuals(&mut workbook, &formats, results)?;
+    forecast::backtest_rows_sheet(
+        workbook.add_worksheet().set_name(BACKTEST_ROWS)?,
+        &formats,
+        results,
+    )?;
     let history = forecast::chart_data(
         workbook.add_worksheet().set_name(CHART_DATA)?,
         &formats,
@@ -421,17 +455,69 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
         results,
     )?;
     charts(
-        workbook.add_worksheet().set_name(CHARTS)?,
+        workbook.worksheet_from_name(CHARTS)?,
         results,
         &points,
         &history,
         &normal,
     )?;
-    if let Some(changes) = &results.changes {
-        changes_sheets(&mut workbook, &formats, changes)?;
-    }
+    summary::summary_chart(workbook.worksheet_from_name(SUMMARY)?, results, &history)?;
+    print_setup(&mut workbook)?;
     workbook.save_to_writer(out)
 }
+
+/// Every sheet prints in landscape, one page wide (the Summary one page in
+/// all, the first tables as [`print_table`] sets them); a table's header
+/// row repeats on each printed page.
+fn print_setup(workbook: &mut Workbook) -> Result<(), XlsxError> {
+    for sheet in workbook.worksheets_mut() {
+        let name = sheet.name();
+        if name == SUMMARY {
+            continue;
+        }
+        if ![COEFFICIENTS, ANOVA, CHECKS, FORECAST].contains(&name.as_str()) {
+            sheet.set_landscape().set_print_fit_to_pages(1, 0);
+        }
+        if ![OVERVIEW, CHARTS].contains(&name.as_str()) {
+            sheet.set_repeat_rows(0, 0)?;
+        }
+    }
+    Ok(())
+}
+
+/// The models in the order the tables list them: the job's own and the
+/// suggested models, then the models fitted by level (`by`), which the By
+/// series sheet summarises and the printed tables leave out
+/// ([`print_first_rows`]).
+fn table_order(results: &Results) -> impl Iterator<Item = &ModelResults> + Clone {
+    let (own, by_level): (Vec<_>, Vec<_>) = results.models.iter().partition(|m| m.by.is_none());
+    own.into_iter().chain(by_level)
+}
+
+/// The print layout of a table a reader prints first (coefficients,
+/// ANOVA, checks, forecast): landscape, one page wide and at most a page
+/// per [`PRINTED_ROWS_A_PAGE`] rows, its print area the header and the
+/// first `rows` rows (those of the models not fitted by level) when more
+/// follow, so that with the summary, overview and charts these tables come
+/// within the first pages, not after hundreds.
+fn print_table(
+    sheet: &mut Worksheet,
+    rows: usize,
+    total: usize,
+    columns: usize,
+) -> Result<(), XlsxError> {
+    let pages = rows.div_ceil(PRINTED_ROWS_A_PAGE).max(1);
+    sheet
+        .set_landscape()
+        .set_print_fit_to_pages(1, u16::try_from(pages).unwrap_or(u16::MAX));
+    if rows < total && rows > 0 {
+        sheet.set_print_area(0, 0, rows as u32, columns as u16 - 1)?;
+    }
+    Ok(())
+}
+
+/// Table rows a printed page of the first tables holds at most.
+const PRINTED_ROWS_A_PAGE: usize = 70;
 
 /// Coefficient moves since last run, and how last run's forecasts did.
 fn changes_sheets(

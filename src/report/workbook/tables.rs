@@ -22,7 +22,11 @@ pub(super) fn coefficients(
         "Note",
     ];
     let mut rows = Vec::new();
-    for m in &results.models {
+    let mut printed = 0;
+    for m in table_order(results) {
+        if m.by.is_none() {
+            printed += m.coefficients.len() + m.aliased.len();
+        }
         for c in &m.coefficients {
             rows.push(vec![
                 text(&m.name),
@@ -49,7 +53,8 @@ pub(super) fn coefficients(
             rows.push(row);
         }
     }
-    write_table(sheet, f, "Coefficient_table", 0, &headers, &rows)
+    write_table(sheet, f, "Coefficient_table", 0, &headers, &rows)?;
+    print_table(sheet, printed, rows.len(), headers.len())
 }
 
 pub(super) fn anova(
@@ -68,7 +73,11 @@ pub(super) fn anova(
         "p-value",
     ];
     let mut rows = Vec::new();
-    for m in &results.models {
+    let mut printed = 0;
+    for m in table_order(results) {
+        if m.by.is_none() {
+            printed += m.anova.len() + m.term_tests.len();
+        }
         for (label, table) in [
             ("sequential (terms added in order)", &m.anova),
             ("each term given all others", &m.term_tests),
@@ -87,7 +96,8 @@ pub(super) fn anova(
             }
         }
     }
-    write_table(sheet, f, "ANOVA_table", 0, &headers, &rows)
+    write_table(sheet, f, "ANOVA_table", 0, &headers, &rows)?;
+    print_table(sheet, printed, rows.len(), headers.len())
 }
 
 pub(super) fn fit_quality(
@@ -210,9 +220,11 @@ pub(super) fn checks(
         "Verdict",
         "Rule",
     ];
-    let rows: Vec<Vec<Cell>> = results
-        .models
-        .iter()
+    let printed = table_order(results)
+        .filter(|m| m.by.is_none())
+        .map(|m| m.checks.len())
+        .sum();
+    let rows: Vec<Vec<Cell>> = table_order(results)
         .flat_map(|m| {
             m.checks.iter().map(move |c| {
                 vec![
@@ -227,5 +239,6 @@ pub(super) fn checks(
             })
         })
         .collect();
-    write_table(sheet, f, "Check_table", 0, &headers, &rows)
+    write_table(sheet, f, "Check_table", 0, &headers, &rows)?;
+    print_table(sheet, printed, rows.len(), headers.len())
 }

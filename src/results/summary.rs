@@ -1,0 +1,486 @@
+//! The Summary sheet's sentences, built from the numbers alone: what the
+//! main model explains, its drivers ranked by the size of their effect,
+//! what comes next, how far to trust it, and the other models in a line
+//! each. A pure function of the models' results, so the wording is tested
+//! without a workbook.
+
+use serde::Serialize;
+
+use super::model::{BaselineNote, ModelResults};
+use crate::fit::Coefficient;
+use crate::text::plain;
+
+/// Drivers the summary names before it refers to the Coefficients sheet.
+pub const DRIVERS_SHOWN: usize = 6;
+
+/// The summary of a job, led by its main model.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Summary {
+    /// The model the summary leads with.
+    pub model: String,
+    /// What the model explains, over which rows.
+    pub headline: String,
+    /// The drivers, largest effect first, each with its estimate and
+    /// interval in the response's units.
+    pub drivers: Vec<String>,
+    /// The forecast, the back-test's coverage and any limit below zero.
+    pub outlook: Vec<String>,
+    /// The flags that matter, each with what it means for the reader.
+    pub trust: Vec<String>,
+    /// The job's other models, a line each.
+    pub other_models: Vec<String>,
+}
+
+/// The summary of `models` led by the model named `main` (for a model
+/// fitted by level, its first level); `None` when there is no such model.
+pub fn summary(models: &[ModelResults], main: &str) -> Option<Summary> {
+    let m = models
+        .iter()
+        .find(|m| m.name == main && m.suggested_from.is_none())
+        .or_else(|| {
+            models
+                .iter()
+                .find(|m| m.by.as_ref().is_some_and(|b| b.model == main))
+        })?;
+    Some(Summary {
+        model: m.name.clone(),
+        headline: headline(m),
+        drivers: drivers(m),
+        outlook: outlook(m),
+        trust: trust(m),
+        other_models: other_models(models, m),
+    })
+}
+
+/// The response as the numbers read it: `ln(revenue)` for a log response.
+fn scale_name(m: &ModelResults) -> String {
+    if m.transform.is_some() {
+        format!("ln({})", m.response)
+    } else {
+        m.response.clone()
+    }
+}
+
+/// A share as a whole percentage: "97 %".
+fn percent(share: f64) -> String {
+    format!("{:.0} %", share * 100.0)
+}
+
+/// The rows a model used, in words.
+fn rows_words(m: &ModelResults) -> String {
+    match &m.timing {
+        Some(t) if t.panel => format!(
+            "{} rows over {} {}s ({} to {})",
+            plain(m.n as f64),
+            t.periods,
+            t.frequency.name(),
+            t.first,
+            t.last
+        ),
+        Some(t) => format!(
+            "{} {}s ({} to {})",
+            plain(m.n as f64),
+            t.frequency.name(),
+            t.first,
+            t.last
+        ),
+        None => format!("{} rows", plain(m.n as f64)),
+    }
+}
+
+fn headline(m: &ModelResults) -> String {
+    let weighted = if m.weights.is_some() {
+        ", each row weighted"
+    } else {
+        ""
+    };
+    let log = if m.transform.is_some() {
+        format!(" (on the log scale, ln({}))", m.response)
+    } else {
+        String::new()
+    };
+    match m.fit.r_squared {
+        Some(r2) => format!(
+            "{}: explains {} of the variation in {}{log} across {}{weighted}.",
+            m.name,
+            percent(r2),
+            m.response,
+            rows_words(m)
+        ),
+        None => format!(
+            "{}: fitted to {} of {}{log}{weighted}.",
+            m.name,
+            rows_words(m),
+            m.response
+        ),
+    }
+}
+
+/// A signed number: "+0.045", "-2.1".
+fn signed(x: f64) -> String {
+    if x > 0.0 {
+        format!("+{}", plain(x))
+    } else {
+        plain(x)
+    }
+}
+
+/// 100·(eᵇ − 1): the percent change a log-scale difference b stands for.
+fn log_percent(b: f64) -> f64 {
+    100.0 * b.exp_m1()
+}
+
+/// How a coefficient reads, and the size of its effect for the ranking.
+struct Driver {
+    sentence: String,
+    size: f64,
+}
+
+/// The categorical term and level of an indicator's name `column[level]`.
+fn indicator<'a>(m: &'a ModelResults, term: &str) -> Option<(&'a BaselineNote, String)> {
+    let (column, rest) = term.split_once('[')?;
+    let level = rest.strip_suffix(']')?;
+    if level.contains('[') || term.contains(':') {
+        return None;
+    }
+    let b = m
+        .baselines
+        .iter()
+        .find(|b| b.column == column && !b.every_level)?;
+    Some((b, level.to_string()))
+}
+
+/// The sentence of one coefficient and its effect's size: for an indicator
+/// the difference from the baseline; for a numeric column the change over
+/// one standard deviation of the column.
+fn driver(m: &ModelResults, c: &Coefficient, sd: f64) -> Driver {
+    let log = m.transform.is_some();
+    let unit = |b: f64| {
+        if log {
+            format!("{} %", signed(log_percent(b)))
+        } else {
+            signed(b)
+        }
+    };
+    let interval = |lo: f64, hi: f64| {
+        if log {
+            format!(
+                "{} % to {} %",
+                plain(log_percent(lo)),
+                plain(log_percent(hi))
+            )
+        } else {
+            format!("{} to {}", plain(lo), plain(hi))
+        }
+    };
+    let unclear = c.ci_lower <= 0.0 && c.ci_upper >= 0.0;
+    let caveat = |what: &str| {
+        if unclear {
+            format!("; the interval includes zero, so {what} is not clearly different from none")
+        } else {
+            String::new()
+        }
+    };
+    if let Some((b, level)) = indicator(m, &c.term) {
+        let column = if b.column == "season" {
+            "season".to_string()
+        } else {
+            b.column.clone()
+        };
+        let sentence = if log {
+            format!(
+                "{column} {level} against {}: {} {} ({}){}.",
+                b.level,
+                unit(c.estimate),
+                m.response,
+                interval(c.ci_lower, c.ci_upper),
+                caveat("the difference")
+            )
+        } else if c.ci_lower > 0.0 || c.ci_upper < 0.0 {
+            let (more, lo, hi) = if c.estimate > 0.0 {
+                ("more", c.ci_lower, c.ci_upper)
+            } else {
+                ("less", -c.ci_upper, -c.ci_lower)
+            };
+            format!(
+                "{column} {level}: {} {more} {} than {} ({} to {} {more}).",
+                plain(c.estimate.abs()),
+                m.response,
+                b.level,
+                plain(lo),
+                plain(hi)
+            )
+        } else {
+            format!(
+                "{column} {level} against {}: {} {} ({}){}.",
+                b.level,
+                signed(c.estimate),
+                m.response,
+                interval(c.ci_lower, c.ci_upper),
+                caveat("the difference")
+            )
+        };
+        return Driver {
+            sentence,
+            size: c.estimate.abs(),
+        };
+    }
+    let size = c.estimate.abs() * sd;
+    if c.term == "trend" {
+        let period = m
+            .timing
+            .as_ref()
+            .map_or("period".to_string(), |t| t.frequency.name().to_string());
+        return Driver {
+            sentence: format!(
+                "Trend: {} {} a {period} ({}){}.",
+                unit(c.estimate),
+                m.response,
+                interval(c.ci_lower, c.ci_upper),
+                caveat("the trend")
+            ),
+            size,
+        };
+    }
+    if let Some(x) = c.term.strip_prefix("ln(").and_then(|t| t.strip_suffix(')')) {
+        let sentence = if log {
+            format!(
+                "{x}: an elasticity of {}: 1 % more {x} goes with about {} % {} {} ({} to {}){}.",
+                plain(c.estimate),
+                plain(c.estimate.abs()),
+                if c.estimate >= 0.0 { "more" } else { "less" },
+                m.response,
+                plain(c.ci_lower),
+                plain(c.ci_upper),
+                caveat("the effect")
+            )
+        } else {
+            format!(
+                "{x}: 1 % more {x} goes with about {} {} ({} to {}){}.",
+                signed(c.estimate / 100.0),
+                m.response,
+                plain(c.ci_lower / 100.0),
+                plain(c.ci_upper / 100.0),
+                caveat("the effect")
+            )
+        };
+        return Driver { sentence, size };
+    }
+    Driver {
+        sentence: format!(
+            "Each extra unit of {}: {} {} ({}){}.",
+            c.term,
+            unit(c.estimate),
+            m.response,
+            interval(c.ci_lower, c.ci_upper),
+            caveat("the effect")
+        ),
+        size,
+    }
+}
+
+fn drivers(m: &ModelResults) -> Vec<String> {
+    let mut ranked: Vec<Driver> = m
+        .coefficients
+        .iter()
+        .zip(
+            m.column_spread
+                .iter()
+                .map(|s| s.sd)
+                .chain(std::iter::repeat(0.0)),
+        )
+        .filter(|(c, _)| c.term != "Intercept")
+        .map(|(c, sd)| driver(m, c, sd))
+        .collect();
+    ranked.sort_by(|a, b| b.size.total_cmp(&a.size));
+    let more = ranked.len().saturating_sub(DRIVERS_SHOWN);
+    let mut out: Vec<String> = ranked
+        .into_iter()
+        .take(DRIVERS_SHOWN)
+        .map(|d| d.sentence)
+        .collect();
+    if more > 0 {
+        out.push(format!(
+            "{more} more term{} on the Coefficients sheet.",
+            if more == 1 { "" } else { "s" }
+        ));
+    }
+    out
+}
+
+fn outlook(m: &ModelResults) -> Vec<String> {
+    let mut out = Vec::new();
+    let level = percent(m.confidence);
+    if let (Some(first), Some(last)) = (m.forecast_totals.first(), m.forecast_totals.last()) {
+        out.push(format!(
+            "Forecast total over the {} series: {} for {} ({} to {}), {} for {} ({} to {}), at the {level} prediction level.",
+            first.series,
+            plain(first.estimate),
+            first.period,
+            plain(first.pred_lower),
+            plain(first.pred_upper),
+            plain(last.estimate),
+            last.period,
+            plain(last.pred_lower),
+            plain(last.pred_upper)
+        ));
+        let total: f64 = m.forecast_totals.iter().map(|t| t.estimate).sum();
+        out.push(format!(
+            "Over the {} periods forecast that adds up to {} (each period's own interval applies).",
+            m.forecast_totals.len(),
+            plain(total)
+        ));
+    } else if let (Some(first), Some(last)) = (m.forecast.first(), m.forecast.last()) {
+        let label = |r: &crate::forecast::ForecastRow| {
+            r.period.clone().unwrap_or_else(|| "the first row".into())
+        };
+        let what = if m.transform.is_some() {
+            "Forecast (medians, transformed back from the log scale)"
+        } else {
+            "Forecast"
+        };
+        out.push(format!(
+            "{what} of {} for the inputs on the Forecast sheet: {} for {} ({} to {}){}, at the {level} prediction level.",
+            m.response,
+            plain(first.prediction.estimate),
+            label(first),
+            plain(first.prediction.pred_lower),
+            plain(first.prediction.pred_upper),
+            if m.forecast.len() > 1 {
+                format!(
+                    " to {} for {} ({} to {})",
+                    plain(last.prediction.estimate),
+                    label(last),
+                    plain(last.prediction.pred_lower),
+                    plain(last.prediction.pred_upper)
+                )
+            } else {
+                String::new()
+            }
+        ));
+        if m.forecast.len() > 1 {
+            let mean = m
+                .forecast
+                .iter()
+                .map(|r| r.prediction.estimate)
+                .sum::<f64>()
+                / m.forecast.len() as f64;
+            let unit = m
+                .timing
+                .as_ref()
+                .map_or("row".to_string(), |t| t.frequency.name().to_string());
+            out.push(format!(
+                "On average {} a {unit} over the {} forecast {unit}s.",
+                plain(mean),
+                m.forecast.len()
+            ));
+        }
+    }
+    if let Some(a) = &m.ar1_errors {
+        if let Some(first) = a.forecast.first() {
+            out.push(format!(
+                "With AR(1) errors (φ = {}), the first forecast is {} ({} to {}): it starts from the last actual and fades to the regression line.",
+                plain(a.phi.estimate),
+                plain(first.prediction.estimate),
+                plain(first.prediction.pred_lower),
+                plain(first.prediction.pred_upper)
+            ));
+        }
+    }
+    if let Some(b) = &m.backtest {
+        let a = &b.accuracy;
+        let mut line = format!(
+            "In the last {} held-out periods, {} of the {} actuals ({}) fell inside the {level} prediction interval (typical miss, RMSE: {}).",
+            b.holdout,
+            a.points.iter().filter(|p| p.inside).count(),
+            a.points.len(),
+            percent(a.coverage),
+            plain(a.rmse)
+        );
+        if a.coverage + 0.1 < m.confidence {
+            line.push_str(" That is well below the level: treat the intervals as too narrow.");
+        }
+        out.push(line);
+    }
+    let data_positive =
+        m.residuals.iter().next().is_some() && m.residuals.iter().all(|d| d.actual > 0.0);
+    let below_zero = m
+        .forecast
+        .iter()
+        .filter(|r| r.prediction.pred_lower < 0.0)
+        .count();
+    if data_positive && below_zero > 0 {
+        out.push(format!(
+            "{below_zero} forecast row{} a prediction limit below zero, though every {} in the data is above zero: a straight-line model does not know {} cannot fall below zero; a log response (transform = \"log\") keeps forecasts positive.",
+            if below_zero == 1 { " has" } else { "s have" },
+            m.response,
+            m.response
+        ));
+    }
+    out
+}
+
+fn trust(m: &ModelResults) -> Vec<String> {
+    let flagged = |name: &str| m.checks.iter().any(|c| c.flagged && c.name == name);
+    let mut out = Vec::new();
+    if flagged("durbin-watson") || flagged("breusch-godfrey") {
+        out.push(format!(
+            "Misses run in streaks from one period to the next (autocorrelation): the intervals and p-values above are too optimistic{}.",
+            if m.ar1_errors.is_some() {
+                "; the version with AR(1) errors (AR(1) errors sheet) allows for it"
+            } else {
+                ""
+            }
+        ));
+    }
+    if flagged("breusch-pagan") {
+        out.push("The size of the misses changes across the data (uneven spread): intervals are too narrow in places and too wide in others.".into());
+    }
+    if flagged("jarque-bera") || flagged("shapiro-wilk") {
+        out.push("The misses are not bell-shaped: p-values and intervals are approximate, the more so with few rows.".into());
+    }
+    if flagged("reset") {
+        out.push("The straight-line form misses some curvature: an effect may grow or shrink with the level of its driver.".into());
+    }
+    if flagged("influential rows") {
+        out.push("A few rows pull the fit strongly (influence): check them in the source data (Checks and Residuals sheets).".into());
+    }
+    if flagged("variance inflation") || flagged("condition number") {
+        out.push("Some drivers move together (collinearity): their separate effects are uncertain even where their joint effect is clear.".into());
+    }
+    if out.is_empty() {
+        out.push("No check is flagged: the misses look independent, even and bell-shaped, and no row dominates the fit.".into());
+    }
+    out
+}
+
+fn other_models(models: &[ModelResults], main: &ModelResults) -> Vec<String> {
+    let mut out: Vec<String> = models
+        .iter()
+        .filter(|m| m.name != main.name && m.by.is_none() && m.suggested_from.is_none())
+        .map(|m| match m.fit.r_squared {
+            Some(r2) => format!(
+                "{}: explains {} of the variation in {} ({} rows).",
+                m.name,
+                percent(r2),
+                scale_name(m),
+                plain(m.n as f64)
+            ),
+            None => format!("{}: {} rows.", m.name, plain(m.n as f64)),
+        })
+        .collect();
+    let levels = models.iter().filter(|m| m.by.is_some()).count();
+    if levels > 0 {
+        out.push(format!(
+            "{levels} models fitted one per level (By series sheet)."
+        ));
+    }
+    let suggested = models.iter().filter(|m| m.suggested_from.is_some()).count();
+    if suggested > 0 {
+        out.push(format!(
+            "{suggested} suggested smaller model{} (Overview and Comparison sheets).",
+            if suggested == 1 { "" } else { "s" }
+        ));
+    }
+    out
+}
