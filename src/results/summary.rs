@@ -150,133 +150,151 @@ fn indicator<'a>(m: &'a ModelResults, term: &str) -> Option<(&'a BaselineNote, S
     Some((b, level.to_string()))
 }
 
-/// The sentence of one coefficient and its effect's size: for an indicator
-/// the difference from the baseline; for a numeric column the change over
-/// one standard deviation of the column.
-fn driver(m: &ModelResults, c: &Coefficient, sd: f64) -> Driver {
-    let log = m.transform.is_some();
-    let unit = |b: f64| {
-        if log {
-            format!("{} %", signed(log_percent(b)))
-        } else {
-            signed(b)
+/// An estimate with its confidence interval, as a sentence quotes it.
+#[derive(Debug, Clone, Copy)]
+struct Quoted {
+    estimate: f64,
+    lower: f64,
+    upper: f64,
+    /// Whether the numbers are on the log scale of the response.
+    log: bool,
+}
+
+impl Quoted {
+    fn of(c: &Coefficient, log: bool) -> Self {
+        Quoted {
+            estimate: c.estimate,
+            lower: c.ci_lower,
+            upper: c.ci_upper,
+            log,
         }
-    };
-    let interval = |lo: f64, hi: f64| {
-        if log {
+    }
+
+    /// The estimate as a change: "+0.045", or "+4.6 %" on the log scale.
+    fn change(self) -> String {
+        if self.log {
+            format!("{} %", signed(log_percent(self.estimate)))
+        } else {
+            signed(self.estimate)
+        }
+    }
+
+    /// The interval: "0.036 to 0.054", or "3.1 % to 6.2 %".
+    fn interval(self) -> String {
+        if self.log {
             format!(
                 "{} % to {} %",
-                plain(log_percent(lo)),
-                plain(log_percent(hi))
+                plain(log_percent(self.lower)),
+                plain(log_percent(self.upper))
             )
         } else {
-            format!("{} to {}", plain(lo), plain(hi))
+            format!("{} to {}", plain(self.lower), plain(self.upper))
         }
-    };
-    let unclear = c.ci_lower <= 0.0 && c.ci_upper >= 0.0;
-    let caveat = |what: &str| {
-        if unclear {
+    }
+
+    /// A closing remark when the interval includes zero.
+    fn caveat(self, what: &str) -> String {
+        if self.lower <= 0.0 && self.upper >= 0.0 {
             format!("; the interval includes zero, so {what} is not clearly different from none")
         } else {
             String::new()
         }
+    }
+}
+
+/// A level of a categorical predictor against its baseline: "region East:
+/// 4.5 less revenue than North (2.7 to 6.3 less)."
+fn level_sentence(column: &str, level: &str, baseline: &str, response: &str, q: Quoted) -> String {
+    let clear = q.lower > 0.0 || q.upper < 0.0;
+    if q.log || !clear {
+        return format!(
+            "{column} {level} against {baseline}: {} {response} ({}){}.",
+            q.change(),
+            q.interval(),
+            q.caveat("the difference")
+        );
+    }
+    let (more, lo, hi) = if q.estimate > 0.0 {
+        ("more", q.lower, q.upper)
+    } else {
+        ("less", -q.upper, -q.lower)
     };
+    format!(
+        "{column} {level}: {} {more} {response} than {baseline} ({} to {} {more}).",
+        plain(q.estimate.abs()),
+        plain(lo),
+        plain(hi)
+    )
+}
+
+/// The trend: "Trend: +0.14 revenue a month (0.11 to 0.18)."
+fn trend_sentence(period: &str, response: &str, q: Quoted) -> String {
+    format!(
+        "Trend: {} {response} a {period} ({}){}.",
+        q.change(),
+        q.interval(),
+        q.caveat("the trend")
+    )
+}
+
+/// A logged predictor: with a log response an elasticity, "price: an
+/// elasticity of -1.2: 1 % more price goes with about 1.2 % less sales
+/// (-1.5 to -0.9)."; otherwise the change for 1 % more of it, b/100.
+fn log_term_sentence(x: &str, response: &str, q: Quoted) -> String {
+    if q.log {
+        format!(
+            "{x}: an elasticity of {}: 1 % more {x} goes with about {} % {} {response} ({} to {}){}.",
+            plain(q.estimate),
+            plain(q.estimate.abs()),
+            if q.estimate >= 0.0 { "more" } else { "less" },
+            plain(q.lower),
+            plain(q.upper),
+            q.caveat("the effect")
+        )
+    } else {
+        format!(
+            "{x}: 1 % more {x} goes with about {} {response} ({} to {}){}.",
+            signed(q.estimate / 100.0),
+            plain(q.lower / 100.0),
+            plain(q.upper / 100.0),
+            q.caveat("the effect")
+        )
+    }
+}
+
+/// A numeric term: "Each extra unit of floor_area: +0.045 revenue (0.036
+/// to 0.054)."
+fn numeric_sentence(term: &str, response: &str, q: Quoted) -> String {
+    format!(
+        "Each extra unit of {term}: {} {response} ({}){}.",
+        q.change(),
+        q.interval(),
+        q.caveat("the effect")
+    )
+}
+
+/// The sentence of one coefficient and its effect's size: for an indicator
+/// the difference from the baseline; for a numeric column the change over
+/// one standard deviation of the column.
+fn driver(m: &ModelResults, c: &Coefficient, sd: f64) -> Driver {
+    let q = Quoted::of(c, m.transform.is_some());
+    let response = m.response.as_str();
     if let Some((b, level)) = indicator(m, &c.term) {
-        let column = if b.column == "season" {
-            "season".to_string()
-        } else {
-            b.column.clone()
-        };
-        let sentence = if log {
-            format!(
-                "{column} {level} against {}: {} {} ({}){}.",
-                b.level,
-                unit(c.estimate),
-                m.response,
-                interval(c.ci_lower, c.ci_upper),
-                caveat("the difference")
-            )
-        } else if c.ci_lower > 0.0 || c.ci_upper < 0.0 {
-            let (more, lo, hi) = if c.estimate > 0.0 {
-                ("more", c.ci_lower, c.ci_upper)
-            } else {
-                ("less", -c.ci_upper, -c.ci_lower)
-            };
-            format!(
-                "{column} {level}: {} {more} {} than {} ({} to {} {more}).",
-                plain(c.estimate.abs()),
-                m.response,
-                b.level,
-                plain(lo),
-                plain(hi)
-            )
-        } else {
-            format!(
-                "{column} {level} against {}: {} {} ({}){}.",
-                b.level,
-                signed(c.estimate),
-                m.response,
-                interval(c.ci_lower, c.ci_upper),
-                caveat("the difference")
-            )
-        };
         return Driver {
-            sentence,
+            sentence: level_sentence(&b.column, &level, &b.level, response, q),
             size: c.estimate.abs(),
         };
     }
     let size = c.estimate.abs() * sd;
-    if c.term == "trend" {
-        let period = m
-            .timing
-            .as_ref()
-            .map_or("period".to_string(), |t| t.frequency.name().to_string());
-        return Driver {
-            sentence: format!(
-                "Trend: {} {} a {period} ({}){}.",
-                unit(c.estimate),
-                m.response,
-                interval(c.ci_lower, c.ci_upper),
-                caveat("the trend")
-            ),
-            size,
-        };
-    }
-    if let Some(x) = c.term.strip_prefix("ln(").and_then(|t| t.strip_suffix(')')) {
-        let sentence = if log {
-            format!(
-                "{x}: an elasticity of {}: 1 % more {x} goes with about {} % {} {} ({} to {}){}.",
-                plain(c.estimate),
-                plain(c.estimate.abs()),
-                if c.estimate >= 0.0 { "more" } else { "less" },
-                m.response,
-                plain(c.ci_lower),
-                plain(c.ci_upper),
-                caveat("the effect")
-            )
-        } else {
-            format!(
-                "{x}: 1 % more {x} goes with about {} {} ({} to {}){}.",
-                signed(c.estimate / 100.0),
-                m.response,
-                plain(c.ci_lower / 100.0),
-                plain(c.ci_upper / 100.0),
-                caveat("the effect")
-            )
-        };
-        return Driver { sentence, size };
-    }
-    Driver {
-        sentence: format!(
-            "Each extra unit of {}: {} {} ({}){}.",
-            c.term,
-            unit(c.estimate),
-            m.response,
-            interval(c.ci_lower, c.ci_upper),
-            caveat("the effect")
-        ),
-        size,
-    }
+    let sentence = if c.term == "trend" {
+        let period = m.timing.as_ref().map_or("period", |t| t.frequency.name());
+        trend_sentence(period, response, q)
+    } else if let Some(x) = c.term.strip_prefix("ln(").and_then(|t| t.strip_suffix(')')) {
+        log_term_sentence(x, response, q)
+    } else {
+        numeric_sentence(&c.term, response, q)
+    };
+    Driver { sentence, size }
 }
 
 fn drivers(m: &ModelResults) -> Vec<String> {
@@ -483,4 +501,80 @@ fn other_models(models: &[ModelResults], main: &ModelResults) -> Vec<String> {
         ));
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn q(estimate: f64, lower: f64, upper: f64, log: bool) -> Quoted {
+        Quoted {
+            estimate,
+            lower,
+            upper,
+            log,
+        }
+    }
+
+    #[test]
+    fn a_level_reads_as_more_or_less_than_its_baseline() {
+        assert_eq!(
+            level_sentence(
+                "region",
+                "East",
+                "North",
+                "revenue",
+                q(-4.5, -6.3, -2.7, false)
+            ),
+            "region East: 4.5 less revenue than North (2.7 to 6.3 less)."
+        );
+        assert_eq!(
+            level_sentence(
+                "format",
+                "Retail park",
+                "Garden shop",
+                "revenue",
+                q(11.9, 9.7, 14.0, false)
+            ),
+            "format Retail park: 11.9 more revenue than Garden shop (9.7 to 14 more)."
+        );
+        assert_eq!(
+            level_sentence("region", "West", "North", "revenue", q(0.4, -1.2, 2.0, false)),
+            "region West against North: +0.4 revenue (-1.2 to 2); the interval includes zero, so the difference is not clearly different from none."
+        );
+    }
+
+    #[test]
+    fn log_scale_numbers_read_as_percentages() {
+        // 100·(e^0.1 − 1) = 10.517 %.
+        assert_eq!(
+            numeric_sentence("promo", "sales", q(0.1, 0.05, 0.15, true)),
+            "Each extra unit of promo: +10.5 % sales (5.13 % to 16.2 %)."
+        );
+        assert_eq!(
+            trend_sentence("month", "sales", q(0.01, 0.008, 0.012, true)),
+            "Trend: +1.01 % sales a month (0.803 % to 1.21 %)."
+        );
+    }
+
+    #[test]
+    fn a_log_log_slope_is_named_an_elasticity() {
+        assert_eq!(
+            log_term_sentence("price", "sales", q(-1.2, -1.5, -0.9, true)),
+            "price: an elasticity of -1.2: 1 % more price goes with about 1.2 % less sales (-1.5 to -0.9)."
+        );
+        assert_eq!(
+            log_term_sentence("spend", "sales", q(250.0, 100.0, 400.0, false)),
+            "spend: 1 % more spend goes with about +2.5 sales (1 to 4)."
+        );
+    }
+
+    #[test]
+    fn numbers_keep_three_digits_and_their_sign() {
+        assert_eq!(
+            numeric_sentence("floor_area", "revenue", q(0.04601, 0.03979, 0.05223, false)),
+            "Each extra unit of floor_area: +0.046 revenue (0.0398 to 0.0522)."
+        );
+        assert_eq!(percent(0.9862), "99 %");
+    }
 }
