@@ -31,7 +31,7 @@ pub(super) fn overview(
         sheet.write_string_with_format(r, 1 + j as u16, &m.name, &f.bold)?;
     }
     type Row = (&'static str, fn(&ModelResults) -> Cell);
-    let rows: [Row; 18] = [
+    let rows: [Row; 19] = [
         ("Response", |m| text(&m.response)),
         ("Rows used (n)", |m| num(m.n as f64, Style::Count)),
         ("Rows left out (blank cells, missing lags)", |m| {
@@ -45,9 +45,10 @@ pub(super) fn overview(
         }),
         ("R²", |m| opt(m.fit.r_squared, Style::Ratio)),
         ("Adjusted R²", |m| opt(m.fit.adj_r_squared, Style::Ratio)),
-        ("Residual standard error", |m| {
-            num(m.fit.sigma, Style::Value)
-        }),
+        (
+            "Residual standard error (log scale for a log response)",
+            |m| num(m.fit.sigma, Style::Value),
+        ),
         ("F statistic", |m| opt(m.fit.f_stat, Style::Value)),
         ("F p-value", |m| opt(m.fit.f_p_value, Style::PValue)),
         ("Log-likelihood", |m| {
@@ -61,6 +62,12 @@ pub(super) fn overview(
         }),
         ("Back-test RMSE (last periods held out)", |m| {
             opt(m.backtest.as_ref().map(|b| b.accuracy.rmse), Style::Value)
+        }),
+        ("Back-test share inside the prediction interval", |m| {
+            opt(
+                m.backtest.as_ref().map(|b| b.accuracy.coverage),
+                Style::Share,
+            )
         }),
         ("Suggested from (terms dropped)", |m| {
             match &m.suggested_from {
@@ -295,7 +302,7 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
     }
     if m.transform.is_some() {
         notes.push(format!(
-            "Fitted to ln({0}): coefficients are changes in ln({0}), roughly 100 × coefficient percent; residuals and charts of residuals are on the log scale. Forecasts are transformed back: the estimate is a median, and the smeared mean (Duan 1983) estimates the mean.",
+            "Fitted to ln({0}): coefficients, the residual standard error, residuals and the charts of residuals are on the log scale. A coefficient b means about 100·(eᵇ − 1) % more {0} per unit of its predictor (for a small b, about 100·b %); for a logged predictor ln(x), b is an elasticity: 1 % more x goes with about b % more {0}. Forecasts are transformed back: the estimate is a median, and the smeared mean (Duan 1983) estimates the mean; their limits stay above zero.",
             m.response
         ));
     }
@@ -304,6 +311,18 @@ pub fn model_notes(m: &ModelResults) -> Vec<String> {
             "{} forecast rows (sheet Forecast): they assume the pattern of the data continues and the predictors take the values shown.",
             m.forecast.len()
         ));
+        let below_zero = m
+            .forecast
+            .iter()
+            .filter(|r| r.prediction.pred_lower < 0.0)
+            .count();
+        let positive = m.residuals.iter().all(|d| d.actual > 0.0);
+        if positive && below_zero > 0 {
+            notes.push(format!(
+                "{below_zero} forecast rows have a prediction limit (or estimate) below zero, though every {0} in the data is above zero: a straight-line model does not know {0} cannot fall below zero. Read those limits as zero, or fit ln({0}) (transform = \"log\"), whose forecasts stay above zero.",
+                m.response
+            ));
+        }
     }
     if let Some(a) = &m.ar1_errors {
         notes.push(ar1_note(m, a));

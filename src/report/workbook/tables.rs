@@ -43,7 +43,7 @@ pub(super) fn coefficients(
                         .as_deref()
                         .unwrap_or("classical"),
                 ),
-                Cell::Empty,
+                log_scale_note(m, c).map_or(Cell::Empty, text),
             ]);
         }
         for a in &m.aliased {
@@ -55,6 +55,32 @@ pub(super) fn coefficients(
     }
     write_table(sheet, f, "Coefficient_table", 0, &headers, &rows)?;
     print_table(sheet, printed, rows.len(), headers.len())
+}
+
+/// For a log response, how a coefficient on the log scale reads: a
+/// percent change, or for a logged predictor an elasticity.
+fn log_scale_note(m: &ModelResults, c: &crate::fit::Coefficient) -> Option<String> {
+    m.transform.as_ref()?;
+    if c.term == "Intercept" {
+        return Some(format!("log scale: ln({})", m.response));
+    }
+    let b = c.estimate;
+    Some(if c.term.starts_with("ln(") {
+        format!(
+            "log scale: an elasticity, 1 % more {} goes with about {} % {} {}",
+            &c.term[3..c.term.len() - 1],
+            crate::text::plain(b.abs()),
+            if b >= 0.0 { "more" } else { "less" },
+            m.response
+        )
+    } else {
+        format!(
+            "log scale: about {} % {} {}",
+            crate::text::plain((100.0 * b.exp_m1()).abs()),
+            if b >= 0.0 { "more" } else { "less" },
+            m.response
+        )
+    })
 }
 
 pub(super) fn anova(
@@ -123,6 +149,7 @@ pub(super) fn fit_quality(
         "Total sum of squares",
         "Condition number",
         "Arithmetic",
+        "Scale of the response, residuals and sums of squares",
     ];
     let rows: Vec<Vec<Cell>> = results
         .models
@@ -147,6 +174,10 @@ pub(super) fn fit_quality(
                 num(q.sst, Style::Value),
                 num(q.condition_number, Style::Value),
                 text(q.precision.label()),
+                text(match &m.transform {
+                    Some(_) => format!("log: ln({})", m.response),
+                    None => m.response.clone(),
+                }),
             ]
         })
         .collect();
