@@ -350,6 +350,7 @@ fn table_sheets_keep_their_header_row_in_view() {
         if matches!(
             *sheet,
             "Summary"
+                | "What-if"
                 | "Overview"
                 | "Charts"
                 | "Forecast"

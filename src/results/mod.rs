@@ -18,6 +18,7 @@ pub mod changes;
 pub mod model;
 pub mod summary;
 pub mod terms;
+pub mod whatif;
 
 pub use changes::RunChanges;
 pub use model::{analyse, equation, ByLevel, ModelResults, SkippedLevel};
@@ -65,6 +66,10 @@ pub struct Results {
     pub run: RunStamp,
     /// The cautions shown with the report.
     pub cautions: Vec<String>,
+    /// The job's model names in job order (the What-if sheet numbers its
+    /// blocks by them).
+    #[serde(skip)]
+    pub job_models: Vec<String>,
     /// The Summary sheet's sentences, led by the job's main model.
     pub summary: Option<summary::Summary>,
     /// One entry per model, in job order, then the suggested models.
@@ -95,6 +100,7 @@ pub fn collect(
         run,
         cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
         summary: summary::summary(&models, &job.summary_model),
+        job_models: job.models.iter().map(|m| m.name.clone()).collect(),
         models,
         comparisons: comparisons.pairs,
         comparisons_left_out: comparisons.left_out,

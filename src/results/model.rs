@@ -206,6 +206,9 @@ pub struct ModelResults {
     pub forecast_totals: Vec<ForecastTotal>,
     /// The back-test, when the job asks for one.
     pub backtest: Option<Backtest>,
+    /// The What-if sheet's recipe, or why the model has none.
+    #[serde(skip)]
+    pub what_if: Result<super::whatif::WhatIf, String>,
     /// The model refitted with AR(1) errors, when the job asks for it or
     /// the residuals' autocorrelation calls for it.
     pub ar1_errors: Option<Ar1Results>,
@@ -232,6 +235,7 @@ pub fn analyse(
         collinearity(design, &fit.solution.kept)
     };
     let mut checks = assumption_checks(design, fit);
+    let what_if = super::whatif::what_if(spec, design, fit, &forecast);
     let residuals = RowTable::of(design, fit);
     checks.extend([condition_check(fit), influence_check(&residuals)]);
     checks.extend(robust_check(design, fit));
@@ -339,6 +343,7 @@ pub fn analyse(
         forecast,
         scenarios: Vec::new(),
         forecast_totals: Vec::new(),
+        what_if,
         backtest,
         ar1_errors: None,
         suggested_from: None,

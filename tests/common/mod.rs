@@ -11,8 +11,9 @@ use rust_xlsxwriter::Workbook;
 pub mod grid;
 
 /// The sheets of a report without a comparison, in order.
-pub const SHEETS: [&str; 15] = [
+pub const SHEETS: [&str; 16] = [
     "Summary",
+    "What-if",
     "Overview",
     "Coefficients",
     "ANOVA",

@@ -26,6 +26,7 @@ mod overview;
 mod residuals;
 mod summary;
 mod tables;
+mod whatif;
 
 use self::charts::*;
 use self::overview::*;
@@ -34,6 +35,7 @@ use self::tables::*;
 
 /// Sheet names.
 const SUMMARY: &str = "Summary";
+const WHAT_IF: &str = "What-if";
 const OVERVIEW: &str = "Overview";
 const COEFFICIENTS: &str = "Coefficients";
 const ANOVA: &str = "ANOVA";
@@ -63,8 +65,9 @@ const TRACKING: &str = "Forecast tracking";
 
 /// Sheet names, in the order they appear: the summary sheets, then the long
 /// data sheets the charts read.
-pub const SHEETS: [&str; 15] = [
+pub const SHEETS: [&str; 16] = [
     SUMMARY,
+    WHAT_IF,
     OVERVIEW,
     COEFFICIENTS,
     ANOVA,
@@ -138,6 +141,12 @@ struct Formats {
     heading_wrap: Format,
     bold: Format,
     header: Format,
+    /// An input cell of the What-if sheet.
+    input: Format,
+    /// A date input cell of the What-if sheet.
+    input_date: Format,
+    /// An output cell of the What-if sheet.
+    output: Format,
     wrap: Format,
 }
 
@@ -160,6 +169,15 @@ impl Formats {
                 .set_text_wrap()
                 .set_align(FormatAlign::Top),
             bold: Format::new().set_bold(),
+            input: Format::new()
+                .set_num_format("#,##0.####")
+                .set_background_color("#FFF2CC")
+                .set_border(rust_xlsxwriter::FormatBorder::Thin),
+            input_date: Format::new()
+                .set_num_format("yyyy-mm-dd")
+                .set_background_color("#FFF2CC")
+                .set_border(rust_xlsxwriter::FormatBorder::Thin),
+            output: Format::new().set_num_format("#,##0.0000").set_bold(),
             header: Format::new()
                 .set_bold()
                 .set_border_bottom(rust_xlsxwriter::FormatBorder::Thin),
@@ -369,6 +387,7 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
         &formats,
         results,
     )?;
+    whatif::whatif_sheet(&mut workbook, &formats, results)?;
     overview(
         workbook.add_worksheet().set_name(OVERVIEW)?,
         &formats,
