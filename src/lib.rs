@@ -153,12 +153,14 @@ fn model_results(
             continue;
         }
         let design = design::build(&table, spec)?;
+        let response_format = input.number_format(&table, &spec.response);
         // The columns no later model reads are let go before this model is
         // fitted and checked.
         let later = &job.models[k + 1..];
         table.clear_columns(|name| later.iter().any(|m| m.reads(name)));
         let offer_ar1 = scope == Scope::Everything && spec.suggest;
-        let (results, fit) = fit_and_analyse(job, input, spec, &design, offer_ar1, inspect)?;
+        let (mut results, fit) = fit_and_analyse(job, input, spec, &design, offer_ar1, inspect)?;
+        results.response_number_format = response_format.clone();
         out.models.push(results);
         candidates.push(compare::Candidate::new(&spec.name, &design, &fit));
         let name = format!("{} (suggested)", spec.name);
@@ -175,6 +177,7 @@ fn model_results(
             };
             let mut m = analyse(&suggested, &design, &fit, Vec::new(), None);
             m.suggested_from = Some(spec.name.clone());
+            m.response_number_format = response_format;
             m.dropped_terms = dropped;
             suggested_candidates.push(compare::Candidate::new(&m.name, &design, &fit));
             suggestions.push(m);
@@ -293,6 +296,7 @@ fn by_level_results(
     out: &mut Analysed,
 ) -> Result<(), Error> {
     let column = spec.by.clone().unwrap_or_default();
+    let response_format = input.number_format(table, &spec.response);
     for (level, rows) in design::by_levels(table, spec)? {
         let level_spec = job::ModelSpec {
             name: format!("{} [{level}]", spec.name),
@@ -304,6 +308,7 @@ fn by_level_results(
             .and_then(|design| fit_and_analyse(job, input, &level_spec, &design, false, inspect));
         match fitted {
             Ok((mut results, _)) => {
+                results.response_number_format = response_format.clone();
                 results.by = Some(results::ByLevel {
                     model: spec.name.clone(),
                     column: column.clone(),

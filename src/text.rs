@@ -46,6 +46,93 @@ pub fn plain(x: f64) -> String {
     text.trim_end_matches('0').trim_end_matches('.').to_string()
 }
 
+/// How a spreadsheet number format shows a value's unit: the currency or
+/// other text before and after the digits, and whether thousands are
+/// grouped.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct NumberStyle {
+    /// Text before the digits, e.g. `$` or `€ `.
+    pub prefix: String,
+    /// Text after the digits, e.g. ` kr`.
+    pub suffix: String,
+    /// Whether thousands are separated.
+    pub grouped: bool,
+}
+
+/// The [`NumberStyle`] of a format code such as `"$"#,##0.00`,
+/// `[$€-407] #,##0` or `#,##0 "kr"` (its first section); `None` when it
+/// shows neither a unit nor grouped thousands, or is a percentage, date or
+/// text format.
+pub fn number_style(code: &str) -> Option<NumberStyle> {
+    let section = code.split(';').next().unwrap_or_default();
+    let (mut prefix, mut suffix) = (String::new(), String::new());
+    let (mut digits, mut grouped) = (false, false);
+    let mut chars = section.chars().peekable();
+    let mut push = |text: &str, digits: bool| {
+        if digits {
+            suffix.push_str(text);
+        } else {
+            prefix.push_str(text);
+        }
+    };
+    while let Some(c) = chars.next() {
+        match c {
+            '"' => {
+                let quoted: String = chars.by_ref().take_while(|&q| q != '"').collect();
+                push(&quoted, digits);
+            }
+            '\\' => {
+                if let Some(next) = chars.next() {
+                    push(&next.to_string(), digits);
+                }
+            }
+            '[' => {
+                let inner: String = chars.by_ref().take_while(|&q| q != ']').collect();
+                if let Some(currency) = inner.strip_prefix('$') {
+                    push(currency.split('-').next().unwrap_or_default(), digits);
+                }
+            }
+            // Padding to the width of a character, and fill characters.
+            '_' | '*' => {
+                chars.next();
+            }
+            '0' | '#' | '?' | '.' => digits = true,
+            ',' if digits => grouped = true,
+            '%' | 'y' | 'm' | 'd' | 'h' | 's' | '@' | 'E' | 'e' => return None,
+            '(' | ')' | '-' | '+' => {}
+            other => push(&other.to_string(), digits),
+        }
+    }
+    let (prefix, suffix) = (
+        prefix.trim_start().to_string(),
+        suffix.trim_end().to_string(),
+    );
+    (!prefix.is_empty() || !suffix.is_empty() || grouped).then_some(NumberStyle {
+        prefix,
+        suffix,
+        grouped,
+    })
+}
+
+/// `x` as [`plain`] writes it, in `style`: "$1,200", "-€4.5", "12 kr".
+pub fn styled(x: f64, style: Option<&NumberStyle>) -> String {
+    let Some(style) = style else {
+        return plain(x);
+    };
+    let digits = plain(x.abs());
+    let digits = if style.grouped {
+        digits
+    } else {
+        digits.replace(',', "")
+    };
+    format!(
+        "{}{}{digits}{}",
+        if x < 0.0 { "-" } else { "" },
+        style.prefix,
+        style.suffix
+    )
+}
+
 /// Ranges [`row_ranges`] spells out before it summarises the rest.
 const MAX_RANGES: usize = 30;
 
@@ -97,6 +184,31 @@ mod tests {
         assert_eq!(plain(100.0), "100");
         assert_eq!(plain(0.5), "0.5");
         assert_eq!(plain(-0.00012345), "-0.000123");
+    }
+
+    #[test]
+    fn number_formats_give_their_currency_and_grouping() {
+        let dollars = number_style("\"$\"#,##0.00").expect("a style");
+        assert_eq!(styled(-1234.6, Some(&dollars)), "-$1,235");
+        assert_eq!(styled(0.046, Some(&dollars)), "$0.046");
+        let euros = number_style("[$€-407] #,##0;-[$€-407] #,##0").expect("a style");
+        assert_eq!(euros.prefix, "€ ");
+        let crowns = number_style("#,##0 \"kr\"").expect("a style");
+        assert_eq!(styled(12.0, Some(&crowns)), "12 kr");
+        let builtin = number_style("$#,##0_);($#,##0)").expect("a style");
+        assert_eq!(styled(4518.0, Some(&builtin)), "$4,518");
+        assert_eq!(number_style("General"), None);
+        assert_eq!(number_style("0.00%"), None);
+        assert_eq!(number_style("yyyy-mm-dd"), None);
+        assert_eq!(number_style("0.0"), None);
+        assert_eq!(
+            number_style("#,##0"),
+            Some(NumberStyle {
+                prefix: String::new(),
+                suffix: String::new(),
+                grouped: true
+            })
+        );
     }
 
     #[test]

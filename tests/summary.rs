@@ -198,3 +198,41 @@ fn the_summary_sheet_comes_first_with_the_json_sentences() {
         assert_eq!(*got, want);
     }
 }
+
+#[test]
+fn a_currency_response_is_summarised_in_its_currency() {
+    use rust_xlsxwriter::{Format, Workbook};
+    let scratch = Scratch::new();
+    let mut workbook = Workbook::new();
+    let sheet = workbook.add_worksheet().set_name("sales").expect("name");
+    let money = Format::new().set_num_format("\"$\"#,##0.00");
+    sheet.write_string(0, 0, "spend").expect("write");
+    sheet.write_string(0, 1, "revenue").expect("write");
+    for i in 0..20u32 {
+        let spend = f64::from(i);
+        let noise = if i % 2 == 0 { 150.0 } else { -150.0 };
+        sheet.write_number(i + 1, 0, spend).expect("write");
+        sheet
+            .write_number_with_format(i + 1, 1, 1000.0 + 250.0 * spend + noise, &money)
+            .expect("write");
+    }
+    workbook.save(scratch.path("sales.xlsx")).expect("save");
+    scratch.write(
+        "job.toml",
+        "[input]\nworkbook = \"sales.xlsx\"\n[output]\nworkbook = \"report.xlsx\"\n[[model]]\nname = \"m\"\nresponse = \"revenue\"\nnumeric = [\"spend\"]\n",
+    );
+    let out = sheetfit(&scratch.path(""), &["run", "job.toml"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let json = read_json(&scratch.path("report.json"));
+    assert_eq!(json["models"][0]["response_number_format"], "\"$\"#,##0.00");
+    let b = coefficient(&json["models"][0], "spend");
+    assert_eq!(
+        json["summary"]["drivers"][0],
+        format!(
+            "Each extra unit of spend: +${} revenue (${} to ${}).",
+            plain(f(&b["estimate"])),
+            plain(f(&b["ci_lower"])),
+            plain(f(&b["ci_upper"]))
+        )
+    );
+}

@@ -122,6 +122,9 @@ pub struct ModelResults {
     pub by: Option<ByLevel>,
     /// Response column.
     pub response: String,
+    /// The response's number format in the input (a currency, thousands
+    /// separators), when the workbook gives it one.
+    pub response_number_format: Option<String>,
     /// Whether an intercept was fitted.
     pub intercept: bool,
     /// `HC3` or `HC1` when the coefficients' standard errors are
@@ -286,6 +289,7 @@ pub fn analyse(
         name: spec.name.clone(),
         by: None,
         response: spec.response.clone(),
+        response_number_format: None,
         intercept: spec.intercept,
         transform: design.log_response.then(|| "log".to_string()),
         weights: spec.weights.clone(),

@@ -8,7 +8,7 @@ use serde::Serialize;
 
 use super::model::{BaselineNote, ModelResults};
 use crate::fit::Coefficient;
-use crate::text::plain;
+use crate::text::{number_style, plain, styled, NumberStyle};
 
 /// Drivers the summary names before it refers to the Coefficients sheet.
 pub const DRIVERS_SHOWN: usize = 6;
@@ -152,21 +152,38 @@ fn indicator<'a>(m: &'a ModelResults, term: &str) -> Option<(&'a BaselineNote, S
 
 /// An estimate with its confidence interval, as a sentence quotes it.
 #[derive(Debug, Clone, Copy)]
-struct Quoted {
+struct Quoted<'a> {
     estimate: f64,
     lower: f64,
     upper: f64,
     /// Whether the numbers are on the log scale of the response.
     log: bool,
+    /// The response's number format (a currency, thousands separators).
+    style: Option<&'a NumberStyle>,
 }
 
-impl Quoted {
-    fn of(c: &Coefficient, log: bool) -> Self {
+impl<'a> Quoted<'a> {
+    fn of(c: &Coefficient, log: bool, style: Option<&'a NumberStyle>) -> Self {
         Quoted {
             estimate: c.estimate,
             lower: c.ci_lower,
             upper: c.ci_upper,
             log,
+            style,
+        }
+    }
+
+    /// An amount in the response's units, in its number format.
+    fn amount(self, x: f64) -> String {
+        styled(x, self.style)
+    }
+
+    /// A signed amount: "+$0.045".
+    fn signed(self, x: f64) -> String {
+        if x > 0.0 {
+            format!("+{}", self.amount(x))
+        } else {
+            self.amount(x)
         }
     }
 
@@ -175,7 +192,7 @@ impl Quoted {
         if self.log {
             format!("{} %", signed(log_percent(self.estimate)))
         } else {
-            signed(self.estimate)
+            self.signed(self.estimate)
         }
     }
 
@@ -188,7 +205,7 @@ impl Quoted {
                 plain(log_percent(self.upper))
             )
         } else {
-            format!("{} to {}", plain(self.lower), plain(self.upper))
+            format!("{} to {}", self.amount(self.lower), self.amount(self.upper))
         }
     }
 
@@ -221,9 +238,9 @@ fn level_sentence(column: &str, level: &str, baseline: &str, response: &str, q: 
     };
     format!(
         "{column} {level}: {} {more} {response} than {baseline} ({} to {} {more}).",
-        plain(q.estimate.abs()),
-        plain(lo),
-        plain(hi)
+        q.amount(q.estimate.abs()),
+        q.amount(lo),
+        q.amount(hi)
     )
 }
 
@@ -254,9 +271,9 @@ fn log_term_sentence(x: &str, response: &str, q: Quoted) -> String {
     } else {
         format!(
             "{x}: 1 % more {x} goes with about {} {response} ({} to {}){}.",
-            signed(q.estimate / 100.0),
-            plain(q.lower / 100.0),
-            plain(q.upper / 100.0),
+            q.signed(q.estimate / 100.0),
+            q.amount(q.lower / 100.0),
+            q.amount(q.upper / 100.0),
             q.caveat("the effect")
         )
     }
@@ -277,7 +294,8 @@ fn numeric_sentence(term: &str, response: &str, q: Quoted) -> String {
 /// the difference from the baseline; for a numeric column the change over
 /// one standard deviation of the column.
 fn driver(m: &ModelResults, c: &Coefficient, sd: f64) -> Driver {
-    let q = Quoted::of(c, m.transform.is_some());
+    let style = m.response_number_format.as_deref().and_then(number_style);
+    let q = Quoted::of(c, m.transform.is_some(), style.as_ref());
     let response = m.response.as_str();
     if let Some((b, level)) = indicator(m, &c.term) {
         return Driver {
@@ -329,24 +347,26 @@ fn drivers(m: &ModelResults) -> Vec<String> {
 fn outlook(m: &ModelResults) -> Vec<String> {
     let mut out = Vec::new();
     let level = percent(m.confidence);
+    let style = m.response_number_format.as_deref().and_then(number_style);
+    let amount = |x: f64| styled(x, style.as_ref());
     if let (Some(first), Some(last)) = (m.forecast_totals.first(), m.forecast_totals.last()) {
         out.push(format!(
             "Forecast total over the {} series: {} for {} ({} to {}), {} for {} ({} to {}), at the {level} prediction level.",
             first.series,
-            plain(first.estimate),
+            amount(first.estimate),
             first.period,
-            plain(first.pred_lower),
-            plain(first.pred_upper),
-            plain(last.estimate),
+            amount(first.pred_lower),
+            amount(first.pred_upper),
+            amount(last.estimate),
             last.period,
-            plain(last.pred_lower),
-            plain(last.pred_upper)
+            amount(last.pred_lower),
+            amount(last.pred_upper)
         ));
         let total: f64 = m.forecast_totals.iter().map(|t| t.estimate).sum();
         out.push(format!(
             "Over the {} periods forecast that adds up to {} (each period's own interval applies).",
             m.forecast_totals.len(),
-            plain(total)
+            amount(total)
         ));
     } else if let (Some(first), Some(last)) = (m.forecast.first(), m.forecast.last()) {
         let label = |r: &crate::forecast::ForecastRow| {
@@ -360,17 +380,17 @@ fn outlook(m: &ModelResults) -> Vec<String> {
         out.push(format!(
             "{what} of {} for the inputs on the Forecast sheet: {} for {} ({} to {}){}, at the {level} prediction level.",
             m.response,
-            plain(first.prediction.estimate),
+            amount(first.prediction.estimate),
             label(first),
-            plain(first.prediction.pred_lower),
-            plain(first.prediction.pred_upper),
+            amount(first.prediction.pred_lower),
+            amount(first.prediction.pred_upper),
             if m.forecast.len() > 1 {
                 format!(
                     " to {} for {} ({} to {})",
-                    plain(last.prediction.estimate),
+                    amount(last.prediction.estimate),
                     label(last),
-                    plain(last.prediction.pred_lower),
-                    plain(last.prediction.pred_upper)
+                    amount(last.prediction.pred_lower),
+                    amount(last.prediction.pred_upper)
                 )
             } else {
                 String::new()
@@ -389,7 +409,7 @@ fn outlook(m: &ModelResults) -> Vec<String> {
                 .map_or("row".to_string(), |t| t.frequency.name().to_string());
             out.push(format!(
                 "On average {} a {unit} over the {} forecast {unit}s.",
-                plain(mean),
+                amount(mean),
                 m.forecast.len()
             ));
         }
@@ -399,9 +419,9 @@ fn outlook(m: &ModelResults) -> Vec<String> {
             out.push(format!(
                 "With AR(1) errors (φ = {}), the first forecast is {} ({} to {}): it starts from the last actual and fades to the regression line.",
                 plain(a.phi.estimate),
-                plain(first.prediction.estimate),
-                plain(first.prediction.pred_lower),
-                plain(first.prediction.pred_upper)
+                amount(first.prediction.estimate),
+                amount(first.prediction.pred_lower),
+                amount(first.prediction.pred_upper)
             ));
         }
     }
@@ -413,7 +433,7 @@ fn outlook(m: &ModelResults) -> Vec<String> {
             a.points.iter().filter(|p| p.inside).count(),
             a.points.len(),
             percent(a.coverage),
-            plain(a.rmse)
+            amount(a.rmse)
         );
         if a.coverage + 0.1 < m.confidence {
             line.push_str(" That is well below the level: treat the intervals as too narrow.");
@@ -507,12 +527,13 @@ fn other_models(models: &[ModelResults], main: &ModelResults) -> Vec<String> {
 mod tests {
     use super::*;
 
-    fn q(estimate: f64, lower: f64, upper: f64, log: bool) -> Quoted {
+    fn q(estimate: f64, lower: f64, upper: f64, log: bool) -> Quoted<'static> {
         Quoted {
             estimate,
             lower,
             upper,
             log,
+            style: None,
         }
     }
 
@@ -566,6 +587,27 @@ mod tests {
         assert_eq!(
             log_term_sentence("spend", "sales", q(250.0, 100.0, 400.0, false)),
             "spend: 1 % more spend goes with about +2.5 sales (1 to 4)."
+        );
+    }
+
+    #[test]
+    fn amounts_take_the_responses_number_format() {
+        let dollars = number_style("\"$\"#,##0.00").expect("a style");
+        let east = Quoted {
+            style: Some(&dollars),
+            ..q(-4500.0, -6300.0, -2700.0, false)
+        };
+        assert_eq!(
+            level_sentence("region", "East", "North", "revenue", east),
+            "region East: $4,500 less revenue than North ($2,700 to $6,300 less)."
+        );
+        let area = Quoted {
+            style: Some(&dollars),
+            ..q(0.045, 0.036, 0.054, false)
+        };
+        assert_eq!(
+            numeric_sentence("floor_area", "revenue", area),
+            "Each extra unit of floor_area: +$0.045 revenue ($0.036 to $0.054)."
         );
     }
 

@@ -39,7 +39,7 @@ pub(super) fn recalculate_on_load(file: &File) -> bool {
 
 /// The value of the attribute `key` (its qualified name), with XML's five
 /// named entities unescaped.
-fn attribute(e: &BytesStart<'_>, key: &str) -> Option<String> {
+pub(super) fn attribute(e: &BytesStart<'_>, key: &str) -> Option<String> {
     e.attributes()
         .flatten()
         .find(|a| a.key.as_ref() == key)

@@ -14,6 +14,7 @@ mod csv;
 mod formulas;
 mod guard;
 mod input;
+mod number_format;
 pub mod screen;
 mod table;
 mod tables;
@@ -267,6 +268,19 @@ impl Input {
             return Ok(Vec::new());
         }
         workbook::worksheet_tables(self.path(), self.rewound()?)
+    }
+
+    /// The number format of the first number in `column` of `table` (read
+    /// from this input), when the workbook gives it one beyond General: a
+    /// currency or thousands separators the report can show the column's
+    /// values with. `None` for CSV and the other formats.
+    pub fn number_format(&self, table: &Table, column: &str) -> Option<String> {
+        if !self.is_zip_workbook() {
+            return None;
+        }
+        let c = table.columns.iter().find(|c| c.name == column)?;
+        let i = (0..table.rows.len()).find(|&i| matches!(c.values.get(i), Value::Number(_)))?;
+        number_format::cell_number_format(self.rewound().ok()?, &table.sheet, table.rows[i], c.col)
     }
 
     /// Refuses formula cells among the `used` columns of `table` (read

@@ -275,11 +275,17 @@ fn block(
             w.pred_upper,
         ),
     ];
+    // The outputs in the response's own number format, when the input
+    // gives it one.
+    let styled = m
+        .response_number_format
+        .as_deref()
+        .map(|code| Format::new().set_num_format(code).set_bold());
     for ((key, label, formula, value), (_, row)) in cells.into_iter().zip(&rows) {
         let format = if ["fitted", "variance", "t"].contains(&key) {
             &f.fixed
         } else {
-            &f.output
+            styled.as_ref().unwrap_or(&f.output)
         };
         sheet.write_string(*row, 0, label)?;
         sheet.write_formula_with_format(
