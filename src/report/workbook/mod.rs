@@ -18,20 +18,33 @@ use rust_xlsxwriter::{
 use crate::results::{ModelResults, Results, RUN_ID_PROPERTY};
 use crate::text::row_ranges;
 
+mod anova;
 mod ar1;
+mod backtest;
 mod by_series;
+mod changes;
 mod charts;
+mod checks;
+mod coefficients;
+mod comparison;
+mod fit_quality;
 mod forecast;
 mod overview;
+mod print;
 mod residuals;
 mod summary;
-mod tables;
 mod whatif;
 
+use self::anova::*;
+use self::changes::*;
 use self::charts::*;
+use self::checks::*;
+use self::coefficients::*;
+use self::comparison::*;
+use self::fit_quality::*;
 use self::overview::*;
+use self::print::*;
 use self::residuals::*;
-use self::tables::*;
 
 /// Sheet names.
 const SUMMARY: &str = "Summary";
@@ -441,7 +454,7 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
             results,
         )?;
     }
-    forecast::backtest_sheet(
+    backtest::backtest_sheet(
         workbook.add_worksheet().set_name(BACKTEST)?,
         &formats,
         results,
@@ -453,7 +466,7 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
     // the summary sheets and charts first. The one that grows with the data
     // is written row by row to disk.
     residuals(&mut workbook, &formats, results)?;
-    forecast::backtest_rows_sheet(
+    backtest::backtest_rows_sheet(
         workbook.add_worksheet().set_name(BACKTEST_ROWS)?,
         &formats,
         results,
@@ -483,138 +496,6 @@ pub fn write_workbook<W: Write + Seek + Send>(results: &Results, out: W) -> Resu
     summary::summary_chart(workbook.worksheet_from_name(SUMMARY)?, results, &history)?;
     print_setup(&mut workbook)?;
     workbook.save_to_writer(out)
-}
-
-/// Every sheet prints in landscape, one page wide (the Summary one page in
-/// all, the first tables as [`print_table`] sets them); a table's header
-/// row repeats on each printed page.
-fn print_setup(workbook: &mut Workbook) -> Result<(), XlsxError> {
-    for sheet in workbook.worksheets_mut() {
-        let name = sheet.name();
-        if name == SUMMARY {
-            continue;
-        }
-        if ![COEFFICIENTS, ANOVA, CHECKS, FORECAST].contains(&name.as_str()) {
-            sheet.set_landscape().set_print_fit_to_pages(1, 0);
-        }
-        if ![OVERVIEW, CHARTS].contains(&name.as_str()) {
-            sheet.set_repeat_rows(0, 0)?;
-        }
-    }
-    Ok(())
-}
-
-/// The models in the order the tables list them: the job's own and the
-/// suggested models, then the models fitted by level (`by`), which the By
-/// series sheet summarises and the printed tables leave out
-/// ([`print_first_rows`]).
-fn table_order(results: &Results) -> impl Iterator<Item = &ModelResults> + Clone {
-    let (own, by_level): (Vec<_>, Vec<_>) = results.models.iter().partition(|m| m.by.is_none());
-    own.into_iter().chain(by_level)
-}
-
-/// The print layout of a table a reader prints first (coefficients,
-/// ANOVA, checks, forecast): landscape, one page wide and at most a page
-/// per [`PRINTED_ROWS_A_PAGE`] rows, its print area the header and the
-/// first `rows` rows (those of the models not fitted by level) when more
-/// follow, so that with the summary, overview and charts these tables come
-/// within the first pages, not after hundreds.
-fn print_table(
-    sheet: &mut Worksheet,
-    rows: usize,
-    total: usize,
-    columns: usize,
-) -> Result<(), XlsxError> {
-    let pages = rows.div_ceil(PRINTED_ROWS_A_PAGE).max(1);
-    sheet
-        .set_landscape()
-        .set_print_fit_to_pages(1, u16::try_from(pages).unwrap_or(u16::MAX));
-    if rows < total && rows > 0 {
-        sheet.set_print_area(0, 0, rows as u32, columns as u16 - 1)?;
-    }
-    Ok(())
-}
-
-/// Table rows a printed page of the first tables holds at most.
-const PRINTED_ROWS_A_PAGE: usize = 70;
-
-/// Coefficient moves since last run, and how last run's forecasts did.
-fn changes_sheets(
-    workbook: &mut Workbook,
-    f: &Formats,
-    changes: &crate::results::RunChanges,
-) -> Result<(), XlsxError> {
-    let sheet = workbook.add_worksheet().set_name(CHANGES)?;
-    let headers = [
-        "Model",
-        "Term",
-        "Last run",
-        "This run",
-        "Change",
-        "Combined standard error",
-        "Change in standard errors",
-        "Notable (beyond ±1.96)",
-    ];
-    let rows: Vec<Vec<Cell>> = changes
-        .changes
-        .iter()
-        .map(|c| {
-            vec![
-                text(c.model.as_str()),
-                text(c.term.as_str()),
-                num(c.previous_estimate, Style::Value),
-                num(c.estimate, Style::Value),
-                num(c.change, Style::Value),
-                num(c.combined_std_error, Style::Value),
-                opt(c.z, Style::Value),
-                text(if c.notable { "yes" } else { "no" }),
-            ]
-        })
-        .collect();
-    if rows.is_empty() {
-        sheet.write_string(
-            0,
-            0,
-            format!(
-                "No model of {} has the same name as a model of this run.",
-                changes.previous
-            ),
-        )?;
-    } else {
-        write_table(sheet, f, "Change_table", 0, &headers, &rows)?;
-    }
-    let sheet = workbook.add_worksheet().set_name(TRACKING)?;
-    let headers = [
-        "Model",
-        "Period",
-        "Last run's estimate",
-        "Last run's prediction lower",
-        "Last run's prediction upper",
-        "Actual (period mean)",
-        "Error (actual − estimate)",
-        "Inside last run's interval",
-    ];
-    let rows: Vec<Vec<Cell>> = changes
-        .forecast_tracking
-        .iter()
-        .map(|t| {
-            vec![
-                text(t.model.as_str()),
-                text(t.period.as_str()),
-                num(t.previous_estimate, Style::Value),
-                num(t.previous_pred_lower, Style::Value),
-                num(t.previous_pred_upper, Style::Value),
-                num(t.actual, Style::Value),
-                num(t.error, Style::Value),
-                text(if t.inside { "yes" } else { "no" }),
-            ]
-        })
-        .collect();
-    if rows.is_empty() {
-        sheet.write_string(0, 0, "None of last run's forecast periods has data yet.")?;
-        return Ok(());
-    }
-    write_table(sheet, f, "Tracking_table", 0, &headers, &rows)
 }
 
 #[cfg(test)]
