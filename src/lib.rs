@@ -248,7 +248,15 @@ fn fit_and_analyse(
             })?,
         ),
         // An offer that cannot be fitted is simply not made.
-        job::Errors::Independent if offer_ar1 && ar1_called_for(design, &results) => {
+        job::Errors::Independent
+            if offer_ar1
+                && fit::ar1::offered(
+                    design,
+                    results.checks.iter().any(|c| {
+                        c.flagged && matches!(c.name.as_str(), "durbin-watson" | "breusch-godfrey")
+                    }),
+                ) =>
+        {
             fit::ar1::ar1_errors(design, &fit, fit::ar1::Ar1Origin::Suggested).ok()
         }
         job::Errors::Independent => None,
@@ -264,23 +272,6 @@ fn fit_and_analyse(
         results.ar1_errors = Some(results::ar1::ar1_results(&ar1, rows, backtest));
     }
     Ok((results, fit))
-}
-
-/// Whether a model's least-squares residuals call for an offer of its
-/// AR(1)-error version: a single series (one row per period, at most
-/// [`fit::ar1::OFFER_UP_TO_ROWS`]), unweighted, whose Durbin-Watson or
-/// Breusch-Godfrey check is flagged.
-fn ar1_called_for(design: &design::Design, results: &results::ModelResults) -> bool {
-    let Some(timing) = &design.timing else {
-        return false;
-    };
-    !timing.panel
-        && design.weights.is_none()
-        && design.y.len() <= fit::ar1::OFFER_UP_TO_ROWS
-        && results
-            .checks
-            .iter()
-            .any(|c| c.flagged && matches!(c.name.as_str(), "durbin-watson" | "breusch-godfrey"))
 }
 
 /// The model `spec` fitted to each level of its `by` column in turn, as a

@@ -88,6 +88,16 @@ impl Ar1Errors {
     }
 }
 
+/// Whether a model whose residuals are `flagged` for autocorrelation is
+/// offered its AR(1)-error version: a single series (one row per period,
+/// at most [`OFFER_UP_TO_ROWS`]), unweighted.
+pub fn offered(design: &Design, flagged: bool) -> bool {
+    flagged
+        && design.weights.is_none()
+        && design.y.len() <= OFFER_UP_TO_ROWS
+        && design.timing.as_ref().is_some_and(|t| !t.panel)
+}
+
 /// The standard normal quantile at `prob`.
 pub fn normal_quantile(prob: f64) -> f64 {
     Normal::new(0.0, 1.0).map_or(f64::NAN, |n| n.inverse_cdf(prob))

@@ -18,11 +18,8 @@ pub(super) fn anova(
         "p-value",
     ];
     let mut rows = Vec::new();
-    let mut printed = 0;
+    let printed = printed_rows(results, |m| m.anova.len() + m.term_tests.len());
     for m in table_order(results) {
-        if m.by.is_none() {
-            printed += m.anova.len() + m.term_tests.len();
-        }
         for (label, table) in [
             ("sequential (terms added in order)", &m.anova),
             ("each term given all others", &m.term_tests),

@@ -16,10 +16,7 @@ pub(super) fn checks(
         "Verdict",
         "Rule",
     ];
-    let printed = table_order(results)
-        .filter(|m| m.by.is_none())
-        .map(|m| m.checks.len())
-        .sum();
+    let printed = printed_rows(results, |m| m.checks.len());
     let rows: Vec<Vec<Cell>> = table_order(results)
         .flat_map(|m| {
             m.checks.iter().map(move |c| {

@@ -22,11 +22,8 @@ pub(super) fn coefficients(
         "Note",
     ];
     let mut rows = Vec::new();
-    let mut printed = 0;
+    let printed = printed_rows(results, |m| m.coefficients.len() + m.aliased.len());
     for m in table_order(results) {
-        if m.by.is_none() {
-            printed += m.coefficients.len() + m.aliased.len();
-        }
         for c in &m.coefficients {
             rows.push(vec![
                 text(&m.name),

@@ -6,8 +6,8 @@ use rust_xlsxwriter::{Chart, ChartFormat, ChartSolidFill, ChartType, Worksheet, 
 
 use super::ar1::ar1_name;
 use super::{
-    axis_range, charted, num, opt, print_table, table_order, text, write_table, Cell, Formats,
-    Style, CHART_DATA,
+    axis_range, charted, num, opt, print_table, printed_rows, table_order, text, write_table, Cell,
+    Formats, Style, CHART_DATA,
 };
 use crate::forecast::Predicted;
 use crate::results::model::SERIES_LINES_UP_TO;
@@ -83,10 +83,9 @@ pub(super) fn forecast_sheet(
         "Inputs",
     ];
     // Each model's rows, then those of its AR(1)-error version.
-    let printed = table_order(results)
-        .filter(|m| m.by.is_none())
-        .map(|m| m.forecast.len() + m.ar1_errors.as_ref().map_or(0, |a| a.forecast.len()))
-        .sum();
+    let printed = printed_rows(results, |m| {
+        m.forecast.len() + m.ar1_errors.as_ref().map_or(0, |a| a.forecast.len())
+    });
     let rows: Vec<Vec<Cell>> = table_order(results)
         .flat_map(|m| {
             let ar1 = m.ar1_errors.iter().flat_map(move |a| {

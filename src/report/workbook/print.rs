@@ -55,3 +55,12 @@ pub(super) fn print_table(
 
 /// Table rows a printed page of the first tables holds at most.
 const PRINTED_ROWS_A_PAGE: usize = 70;
+
+/// Rows of a first table that print: those of the models not fitted by
+/// level, `rows_of` each.
+pub(super) fn printed_rows(results: &Results, rows_of: impl Fn(&ModelResults) -> usize) -> usize {
+    table_order(results)
+        .filter(|m| m.by.is_none())
+        .map(rows_of)
+        .sum()
+}
