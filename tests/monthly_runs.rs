@@ -17,7 +17,7 @@ use std::time::Duration;
 use calamine::{open_workbook_auto, Data, Range, Reader};
 use serde_json::Value;
 
-use common::{read_json, sheetfit, stderr, Cell, Scratch, SHEETS};
+use common::{model_named as model, read_json, sheetfit, stderr, Cell, Scratch, SHEETS};
 use Cell::{N, S, T};
 
 /// The fixed run time used by the reproducibility tests, and the same
@@ -749,15 +749,6 @@ fn close(what: &str, a: f64, b: f64) {
         (a - b).abs() <= 1e-9 * b.abs().max(1.0),
         "{what}: got {a}, expected {b}"
     );
-}
-
-fn model<'a>(json: &'a Value, name: &str) -> &'a Value {
-    json["models"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .find(|m| m["name"] == name)
-        .unwrap_or_else(|| panic!("no model {name}"))
 }
 
 /// Checks `changes` against the two runs' coefficients: one entry per term

@@ -7,7 +7,7 @@ mod common;
 use std::path::PathBuf;
 
 use calamine::{open_workbook_auto, Data, Reader};
-use common::{read_json, sheetfit, stderr, Scratch};
+use common::{model_named as model, read_json, sheetfit, stderr, Scratch};
 use serde_json::Value;
 
 /// Runs the demo job and returns the report's path and its results.
@@ -48,15 +48,6 @@ fn plain(x: f64) -> String {
 
 fn f(v: &Value) -> f64 {
     v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
-}
-
-fn model<'a>(json: &'a Value, name: &str) -> &'a Value {
-    json["models"]
-        .as_array()
-        .expect("models")
-        .iter()
-        .find(|m| m["name"] == name)
-        .unwrap_or_else(|| panic!("no model {name}"))
 }
 
 fn coefficient<'a>(m: &'a Value, term: &str) -> &'a Value {

@@ -17,7 +17,7 @@ use std::process::Command;
 
 use calamine::{open_workbook_auto, Data, Reader};
 use common::grid::{Grid, Seen};
-use common::{program, read_json, sheetfit, stderr, Scratch};
+use common::{model_named as model, program, read_json, sheetfit, stderr, Scratch};
 use serde_json::Value;
 
 /// Agreement asked of a recalculated value.
@@ -44,15 +44,6 @@ fn run(folder: &Path, job: &str) -> Value {
     let out = sheetfit(folder, &["run", job]);
     assert!(out.status.success(), "{}", stderr(&out));
     read_json(&folder.join("reports/garden-centres-report.json"))
-}
-
-fn model<'a>(json: &'a Value, name: &str) -> &'a Value {
-    json["models"]
-        .as_array()
-        .expect("models")
-        .iter()
-        .find(|m| m["name"] == name)
-        .unwrap_or_else(|| panic!("no model {name}"))
 }
 
 /// The defined names of `workbook` as zero-based (row, col) on What-if.

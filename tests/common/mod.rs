@@ -135,6 +135,16 @@ pub fn stderr(out: &Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()
 }
 
+/// The model named `name` in a results JSON.
+pub fn model_named<'a>(json: &'a serde_json::Value, name: &str) -> &'a serde_json::Value {
+    json["models"]
+        .as_array()
+        .expect("a models list")
+        .iter()
+        .find(|m| m["name"] == name)
+        .unwrap_or_else(|| panic!("no model {name}"))
+}
+
 /// Reads a JSON file.
 pub fn read_json(path: &Path) -> serde_json::Value {
     let text = std::fs::read_to_string(path).expect("read JSON");

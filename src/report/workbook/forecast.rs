@@ -197,20 +197,7 @@ pub(super) fn chart_data(
                     .iter()
                     .filter(|r| r.series.as_deref() == Some(sh.series.as_str()))
                 {
-                    rows.push(vec![
-                        text(m.name.as_str()),
-                        r.period.as_deref().map_or(Cell::Empty, text),
-                        r.date.as_deref().map_or(Cell::Empty, date),
-                        Cell::Empty,
-                        Cell::Empty,
-                        num(r.prediction.estimate, Style::Value),
-                        num(r.prediction.pred_lower, Style::Value),
-                        num(
-                            r.prediction.pred_upper - r.prediction.pred_lower,
-                            Style::Value,
-                        ),
-                        text(sh.series.as_str()),
-                    ]);
+                    rows.push(forecast_chart_row(m, r, text(sh.series.as_str())));
                 }
                 series.push((sh.series.clone(), from, rows.len() as u32));
             }
@@ -276,20 +263,7 @@ pub(super) fn chart_data(
         }
         let ar1_forecast = m.ar1_errors.as_ref().map(|a| a.forecast.as_slice());
         for r in m.forecast.iter().filter(|_| !total) {
-            let mut row = vec![
-                text(m.name.as_str()),
-                r.period.as_deref().map_or(Cell::Empty, text),
-                r.date.as_deref().map_or(Cell::Empty, date),
-                Cell::Empty,
-                Cell::Empty,
-                num(r.prediction.estimate, Style::Value),
-                num(r.prediction.pred_lower, Style::Value),
-                num(
-                    r.prediction.pred_upper - r.prediction.pred_lower,
-                    Style::Value,
-                ),
-                Cell::Empty,
-            ];
+            let mut row = forecast_chart_row(m, r, Cell::Empty);
             if let Some(a) = ar1_forecast
                 .into_iter()
                 .flatten()
@@ -333,6 +307,27 @@ pub(super) fn chart_data(
     ];
     write_table(sheet, f, "Chart_data_table", 0, &headers, &rows)?;
     Ok(blocks)
+}
+
+/// A forecast row of the chart data: the period, the forecast, its lower
+/// limit and the band's height, and `series` in the last column.
+fn forecast_chart_row<'a>(
+    m: &'a ModelResults,
+    r: &'a crate::forecast::ForecastRow,
+    series: Cell<'a>,
+) -> Vec<Cell<'a>> {
+    let p = &r.prediction;
+    vec![
+        text(m.name.as_str()),
+        r.period.as_deref().map_or(Cell::Empty, text),
+        r.date.as_deref().map_or(Cell::Empty, date),
+        Cell::Empty,
+        Cell::Empty,
+        num(p.estimate, Style::Value),
+        num(p.pred_lower, Style::Value),
+        num(p.pred_upper - p.pred_lower, Style::Value),
+        series,
+    ]
 }
 
 /// Line colours of the series, at most [`SERIES_LINES_UP_TO`].
