@@ -8,7 +8,7 @@ mod common;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use common::{program, read_json, sheetfit, stderr, Scratch};
+use common::{program, read_json, sheetfit, soffice_convert, stderr, Scratch};
 
 /// The text of each page of `pdf`.
 fn pages(pdftotext: &Path, pdf: &Path) -> Vec<String> {
@@ -41,22 +41,13 @@ fn the_demo_prints_its_summary_on_page_one_and_its_charts_within_fifteen_pages()
     assert!(out.status.success(), "{}", stderr(&out));
     let reports = scratch.path("reports");
     let profile = scratch.path("profile");
-    let out = Command::new(soffice)
-        .arg(format!(
-            "-env:UserInstallation=file://{}",
-            profile.display()
-        ))
-        .args([
-            "--headless",
-            "--norestore",
-            "--convert-to",
-            "pdf",
-            "--outdir",
-        ])
-        .arg(&reports)
-        .arg(reports.join("garden-centres-report.xlsx"))
-        .output()
-        .expect("start soffice");
+    let out = soffice_convert(
+        &soffice,
+        &profile,
+        "pdf",
+        &reports.join("garden-centres-report.xlsx"),
+        &reports,
+    );
     assert!(out.status.success(), "soffice: {}", stderr(&out));
     let pages = pages(&pdftotext, &reports.join("garden-centres-report.pdf"));
     let json = read_json(&reports.join("garden-centres-report.json"));

@@ -23,7 +23,7 @@ use common::grid::{
     assert_anova, assert_chart_points, assert_checks, assert_coefficients, assert_fit_quality,
     assert_forecast, assert_residuals, Grid,
 };
-use common::{program, read_json, sheetfit, stderr, Scratch, SHEETS};
+use common::{program, read_json, sheetfit, soffice_convert, stderr, Scratch, SHEETS};
 
 /// Relative tolerance for stored values read back through CSV: LibreOffice
 /// writes 15 significant digits, Gnumeric 17. (LibreOffice writes some
@@ -195,22 +195,7 @@ fn libreoffice_opens_every_report_and_reads_back_the_json_numbers() {
     let scratch = Scratch::new();
     let profile = scratch.path("libreoffice-profile");
     let convert = |target: &str, input: &Path, folder: &Path| {
-        let out = Command::new(&soffice)
-            .arg(format!(
-                "-env:UserInstallation=file://{}",
-                profile.display()
-            ))
-            .args([
-                "--headless",
-                "--norestore",
-                "--convert-to",
-                target,
-                "--outdir",
-            ])
-            .arg(folder)
-            .arg(input)
-            .output()
-            .expect("start soffice");
+        let out = soffice_convert(&soffice, &profile, target, input, folder);
         let what = format!("soffice --convert-to {target} {}", input.display());
         assert_clean(&what, &out, &LIBREOFFICE_NOTICES);
     };

@@ -17,7 +17,9 @@ use std::process::Command;
 
 use calamine::{open_workbook_auto, Data, Reader};
 use common::grid::{Grid, Seen};
-use common::{model_named as model, program, read_json, sheetfit, stderr, Scratch};
+use common::{
+    model_named as model, program, read_json, sheetfit, soffice_convert, stderr, Scratch,
+};
 use serde_json::Value;
 
 /// Agreement asked of a recalculated value.
@@ -299,22 +301,13 @@ fn libreoffice_recalculates_the_what_if_sheet_to_the_tools_predictions() {
     .expect("profile settings");
     for (k, (workbook, rows)) in cases(&scratch).into_iter().enumerate() {
         let folder = scratch.path(&format!("libreoffice-{k}"));
-        let out = Command::new(&soffice)
-            .arg(format!(
-                "-env:UserInstallation=file://{}",
-                profile.display()
-            ))
-            .args([
-                "--headless",
-                "--norestore",
-                "--convert-to",
-                "csv:Text - txt - csv (StarCalc):44,34,UTF8,1,,0,false,true,false,false,false,-1",
-                "--outdir",
-            ])
-            .arg(&folder)
-            .arg(&workbook)
-            .output()
-            .expect("start soffice");
+        let out = soffice_convert(
+            &soffice,
+            &profile,
+            "csv:Text - txt - csv (StarCalc):44,34,UTF8,1,,0,false,true,false,false,false,-1",
+            &workbook,
+            &folder,
+        );
         assert!(out.status.success(), "soffice: {}", stderr(&out));
         let stem = workbook.file_stem().and_then(|s| s.to_str()).expect("stem");
         assert_recalculated(

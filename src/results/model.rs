@@ -238,7 +238,8 @@ pub fn analyse(
         collinearity(design, &fit.solution.kept)
     };
     let mut checks = assumption_checks(design, fit);
-    let what_if = super::whatif::what_if(spec, design, fit, &forecast);
+    let column_spread = column_spread(design, fit);
+    let what_if = super::whatif::what_if(spec, design, fit, &forecast, &column_spread);
     let residuals = RowTable::of(design, fit);
     checks.extend([condition_check(fit), influence_check(&residuals)]);
     checks.extend(robust_check(design, fit));
@@ -334,7 +335,7 @@ pub fn analyse(
             &fit.coefficients,
         ),
         coefficients: fit.coefficients.clone(),
-        column_spread: column_spread(design, fit),
+        column_spread,
         fit: fit.quality.clone(),
         anova: sequential_anova(design, fit),
         term_tests: each_term_last_anova(design, fit),

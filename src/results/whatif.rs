@@ -6,6 +6,7 @@
 
 use serde::Serialize;
 
+use super::model::ColumnSpread;
 use crate::design::{Design, TermKind};
 use crate::fit::{t_quantile, Fit};
 use crate::forecast::ForecastRow;
@@ -135,6 +136,7 @@ pub fn what_if(
     design: &Design,
     fit: &Fit,
     forecast: &[ForecastRow],
+    spread: &[ColumnSpread],
 ) -> Result<WhatIf, String> {
     if !fit.aliased.is_empty() {
         return Err(
@@ -149,6 +151,9 @@ pub fn what_if(
         return Err("its fiscal years are not formed on this sheet".into());
     }
     let prefill = forecast.first();
+    // Without aliased columns every design column is estimated, so
+    // `spread` (one per estimated column) is indexed by design column.
+    let mean = |j: usize| spread.get(j).map_or(f64::NAN, |s| s.mean);
     let mut inputs: Vec<WhatIfInput> = Vec::new();
     let mut input_of = |column: &str, kind: InputKind, value: String| -> usize {
         if let Some(k) = inputs.iter().position(|i| i.column == column) {
@@ -164,7 +169,7 @@ pub fn what_if(
     let number = |column: &str, j: usize| -> String {
         prefill
             .and_then(|r| r.inputs.get(column).cloned())
-            .unwrap_or_else(|| mean(design, j).to_string())
+            .unwrap_or_else(|| mean(j).to_string())
     };
     let period_input = |input_of: &mut dyn FnMut(&str, InputKind, String) -> usize| {
         let t = design.timing.as_ref()?;
@@ -196,7 +201,7 @@ pub fn what_if(
             TermKind::Log => {
                 let value = prefill
                     .and_then(|r| r.inputs.get(&term.column).cloned())
-                    .unwrap_or_else(|| mean(design, range.start).exp().to_string());
+                    .unwrap_or_else(|| mean(range.start).exp().to_string());
                 let k = input_of(&term.column, InputKind::Number, value);
                 columns[range.start].push(Part::Ln { input: k });
             }
@@ -338,16 +343,6 @@ pub fn what_if(
         pred_lower: back(fitted - t * se_new),
         pred_upper: back(fitted + t * se_new),
     })
-}
-
-/// The mean of design column `j` over the rows used.
-fn mean(design: &Design, j: usize) -> f64 {
-    let c = design.x.column(j);
-    c.iter()
-        .enumerate()
-        .map(|(i, &v)| design.unscaled(i, v))
-        .sum::<f64>()
-        / c.len().max(1) as f64
 }
 
 /// The value of one factor at the prefilled inputs.

@@ -135,6 +135,33 @@ pub fn stderr(out: &Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()
 }
 
+/// Converts `input` with headless LibreOffice (`soffice`) to `target` (a
+/// filter such as `pdf`) in `folder`, its user profile in `profile`.
+pub fn soffice_convert(
+    soffice: &Path,
+    profile: &Path,
+    target: &str,
+    input: &Path,
+    folder: &Path,
+) -> Output {
+    Command::new(soffice)
+        .arg(format!(
+            "-env:UserInstallation=file://{}",
+            profile.display()
+        ))
+        .args([
+            "--headless",
+            "--norestore",
+            "--convert-to",
+            target,
+            "--outdir",
+        ])
+        .arg(folder)
+        .arg(input)
+        .output()
+        .expect("start soffice")
+}
+
 /// The model named `name` in a results JSON.
 pub fn model_named<'a>(json: &'a serde_json::Value, name: &str) -> &'a serde_json::Value {
     json["models"]
